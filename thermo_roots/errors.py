@@ -1,0 +1,36 @@
+"""The project's error classes.
+
+Every error raised on purpose by thermo_roots derives from :class:`ThermoRootsError`,
+which is a :class:`ValueError`, so callers can catch one class. Subclasses say the cause.
+Messages name what was given, what is allowed, and what to try.
+"""
+
+from __future__ import annotations
+
+
+class ThermoRootsError(ValueError):
+    """Base class of every error thermo_roots raises on purpose."""
+
+
+class InputError(ThermoRootsError):
+    """An input could not be read or is not allowed (wrong unit, NaN, wrong count of knowns)."""
+
+
+class UnknownFluidError(ThermoRootsError):
+    """A fluid name is not in the fluid library; the message offers close matches."""
+
+    def __init__(self, message: str, suggestions: tuple[str, ...] = ()):
+        super().__init__(message)
+        self.suggestions = tuple(suggestions)
+
+
+class DomainError(ThermoRootsError):
+    """A state lies outside where the model is defined (v <= b, T <= 0, saturation above Tc)."""
+
+
+class ConvergenceError(ThermoRootsError):
+    """An iterative method did not converge; ``result`` holds its trace for diagnosis."""
+
+    def __init__(self, message: str, result=None):
+        super().__init__(message)
+        self.result = result
