@@ -1,0 +1,170 @@
+"""The shared loop: keep the still-active problems packed, ask a method for the next
+points, evaluate f once per iteration for all of them, and retire the finished ones.
+
+Every method, scalar or vectorized, runs through :func:`drive`. State lives in a dict
+of 1-D arrays (one entry per active problem); retiring finished problems compresses
+all of them at once, so the cost of an iteration follows the number still active.
+Arrays in the state are replaced, never changed in place, so the trace can keep
+references to them instead of copies.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from thermo_roots.errors import InputError
+from thermo_roots.roots._result import CODE, Status
+
+ACTIVE = 0
+CONVERGED = CODE[Status.CONVERGED]
+ITERATION_LIMIT = CODE[Status.ITERATION_LIMIT]
+DIVERGED = CODE[Status.DIVERGED]
+LEFT_DOMAIN = CODE[Status.LEFT_DOMAIN]
+NO_SIGN_CHANGE = CODE[Status.NO_SIGN_CHANGE]
+
+
+@dataclass(frozen=True)
+class Options:
+    """Stopping rules shared by all methods (see :func:`find_root`)."""
+
+    xtol: float
+    rtol: float
+    ftol: float
+    maxiter: int
+
+    def tol(self, x: np.ndarray) -> np.ndarray:
+        """Allowed error |x - x*| at x [unit of x]."""
+        return self.xtol + self.rtol * np.abs(x)
+
+    def small_f(self, fx: np.ndarray) -> np.ndarray:
+        """Where f is zero, or within ftol of it when ftol is on [unit of f]."""
+        if self.ftol > 0:
+            return np.abs(fx) <= self.ftol
+        return fx == 0
+
+
+class Outputs:
+    """Per-problem results, filled in as problems retire."""
+
+    def __init__(self, n: int):
+        self.root = np.full(n, np.nan)
+        self.code = np.zeros(n, dtype=np.int8)
+        self.iterations = np.zeros(n, dtype=np.int64)
+        self.evaluations = np.zeros(n, dtype=np.int64)
+
+
+class Work:
+    """The packed state of the problems still being solved.
+
+    Every active problem takes part in every call of f, so one counter of calls
+    gives each problem's evaluation count when it retires.
+    """
+
+    def __init__(self, f, fprime, state: dict, args: list, packed: list, scalar: bool):
+        self.f, self.fprime = f, fprime
+        self.v = state
+        self.idx = np.arange(len(next(iter(state.values()))))
+        self.args, self.packed, self.scalar = args, packed, scalar
+        self.calls = 0
+
+    @property
+    def size(self) -> int:
+        return self.idx.size
+
+    def call(self, func, x: np.ndarray) -> np.ndarray:
+        """func at x with the matching args; a scalar problem passes a float."""
+        value = func(x[0] if self.scalar else x, *self.args)
+        value = np.asarray(value, dtype=float)
+        if value.shape == x.shape:
+            return value
+        try:
+            return np.broadcast_to(value, x.shape)
+        except ValueError:
+            raise InputError(
+                f"{getattr(func, '__name__', 'f')} returned shape {value.shape} for {x.shape} inputs; "
+                "it must work elementwise and return one value per input."
+            ) from None
+
+    def evaluate(self, x: np.ndarray) -> np.ndarray:
+        """f at x for every active problem."""
+        self.calls += 1
+        return self.call(self.f, x)
+
+    def retire(self, codes, roots, iterations: int, out: Outputs) -> None:
+        """Move the problems whose code is not ACTIVE into ``out``; pack the rest.
+
+        ``roots(done)`` gives the roots of the retiring problems (a boolean mask in),
+        so the best point is only worked out for them; an array or a number also do.
+        """
+        if codes is None:
+            return
+        done = codes != ACTIVE
+        if not done.any():
+            return
+        where = self.idx[done]
+        out.root[where] = roots(done) if callable(roots) else np.broadcast_to(roots, done.shape)[done]
+        out.code[where] = codes[done]
+        out.iterations[where] = iterations
+        out.evaluations[where] = self.calls
+        self._pack(np.flatnonzero(~done))
+
+    def _pack(self, keep: np.ndarray) -> None:
+        self.idx = self.idx.take(keep)
+        self.v = {name: values.take(keep) for name, values in self.v.items()}
+        self.args = [a.take(keep) if p else a for a, p in zip(self.args, self.packed)]
+
+
+def as_codes(done: np.ndarray) -> np.ndarray:
+    """CONVERGED where done, else ACTIVE, without a copy (a bool is one byte, 0 or 1)."""
+    return done.view(np.int8)
+
+
+assert (ACTIVE, CONVERGED) == (0, 1)  # as_codes relies on this
+
+
+class Tracer:
+    """Collects (iteration, indices, x, fx, a, b) records, or nothing when off."""
+
+    def __init__(self, enabled: bool):
+        self.records = [] if enabled else None
+
+    def record(self, iteration: int, work: Work, method) -> None:
+        if self.records is not None:
+            self.records.append((iteration, work.idx, *method.snapshot(work.v)))
+
+
+_QUIET = dict(divide="ignore", invalid="ignore", over="ignore")
+
+
+def drive(method, work: Work, opts: Options, out: Outputs, tracer: Tracer) -> None:
+    """Run ``method`` until every problem has retired or maxiter is reached.
+
+    A method provides ``start(work, opts) -> (codes, roots)`` (evaluates the
+    starting points), ``propose(work, opts) -> codes or None`` (stores the next
+    points in ``v["xn"]``; non-ACTIVE codes stop a problem before f is called
+    there), ``accept(work, fx, opts) -> (codes, roots)``, ``best(v)`` and
+    ``snapshot(v) -> (x, fx, a, b)``; ``roots`` may be a callable of the mask of
+    retiring problems (see :meth:`Work.retire`). Arithmetic warnings inside the methods are
+    silenced: IEEE results (inf, NaN) are checked explicitly; f's own warnings are not.
+    """
+    with np.errstate(**_QUIET):
+        codes, roots = method.start(work, opts)
+    tracer.record(0, work, method)
+    work.retire(codes, roots, 0, out)
+    iteration = 0
+    while work.size and iteration < opts.maxiter:
+        iteration += 1
+        with np.errstate(**_QUIET):
+            work.retire(method.propose(work, opts), np.nan, iteration - 1, out)
+        if not work.size:
+            break
+        fx = work.evaluate(work.v["xn"])
+        with np.errstate(**_QUIET):
+            codes, roots = method.accept(work, fx, opts)
+        tracer.record(iteration, work, method)
+        work.retire(codes, roots, iteration, out)
+    if work.size:
+        limit = np.full(work.size, ITERATION_LIMIT, dtype=np.int8)
+        work.retire(limit, lambda done: method.best(work.v)[done], iteration, out)
