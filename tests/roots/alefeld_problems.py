@@ -5,6 +5,10 @@ continuous functions", ACM Transactions on Mathematical Software 21(3):327-344, 
 section 5 (test problems). Written here from memory of the paper, not copied from a file.
 The functions are vectorized (numpy) so a whole parameter family can be solved at once.
 
+Checked against scipy's own copy of the set (``scipy.optimize._tstutils``, see
+test_alefeld.py): that check corrected one slip of memory, the parameter list of
+problem 12 (n = 2..6 and the odd n from 7 to 33, not every n from 2 to 33).
+
 Uncertain from memory: the left end of the brackets of problems 14 and 15. The paper
 (as remembered) uses -1e4; scipy's copy of the set (``scipy.optimize._tstutils``) uses
 -1e3. Every comparison in the tests runs all solvers on the same brackets, so either

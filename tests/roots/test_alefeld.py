@@ -46,6 +46,18 @@ def test_the_set_has_15_functions_and_154_problems():
     assert len(PROBLEMS) == 154
 
 
+def test_functions_match_scipys_copy_of_the_set():
+    """Same values as scipy's private copy of the set, problem by problem in the same order."""
+    tstutils = pytest.importorskip("scipy.optimize._tstutils")
+    theirs = tstutils.get_tests("aps")
+    assert len(theirs) == len(PROBLEMS)
+    for p, d in zip(PROBLEMS, theirs):
+        assert p.args == tuple(d["args"]), p.name
+        lo, hi = d["bracket"]  # their copy starts problems 14 and 15 at -1e3 (ours at -1e4)
+        for x in np.linspace(lo, hi, 9)[1:-1]:
+            assert float(p.f(x, *p.args)) == pytest.approx(d["f"](x, *d["args"]), rel=1e-12, abs=0), p.name
+
+
 def test_every_problem_brackets_a_sign_change():
     for p in PROBLEMS:
         fa, fb = float(p.f(p.a, *p.args)), float(p.f(p.b, *p.args))
