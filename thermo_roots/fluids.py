@@ -1,0 +1,172 @@
+"""Layer 2: the :class:`Fluid` value and the lookup of the fluid library's constants.
+
+The constants come from CoolProp's fluid library (its multiparameter Helmholtz-energy
+equations carry the critical point, acentric factor and molar mass of each fluid).
+"""
+
+from __future__ import annotations
+
+import difflib
+import functools
+import math
+import re
+from dataclasses import dataclass
+
+from .errors import InputError, UnknownFluidError
+
+
+@dataclass(frozen=True)
+class Fluid:
+    """A pure fluid as the cubic equations of state see it.
+
+    Parameters
+    ----------
+    name : str
+        Name shown in results.
+    Tc : float
+        Critical temperature [K].
+    Pc : float
+        Critical pressure [Pa].
+    omega : float
+        Pitzer acentric factor [-].
+    molar_mass : float
+        Molar mass [kg/mol].
+    library_name : str or None
+        The fluid's name in CoolProp's library, used by the reference cross-check;
+        None for a user-defined fluid.
+
+    References
+    ----------
+    Pitzer, K. S. et al. (1955), J. Am. Chem. Soc. 77, 3433 (acentric factor).
+    """
+
+    name: str
+    Tc: float
+    Pc: float
+    omega: float
+    molar_mass: float
+    library_name: str | None = None
+
+    def __post_init__(self):
+        for label, value in (("Tc", self.Tc), ("Pc", self.Pc), ("molar_mass", self.molar_mass)):
+            if not (isinstance(value, (int, float)) and math.isfinite(value) and value > 0):
+                raise InputError(
+                    f"Fluid {self.name!r}: {label} = {value!r} must be a positive finite number in SI "
+                    "units (Tc [K], Pc [Pa], molar_mass [kg/mol])."
+                )
+        if not (isinstance(self.omega, (int, float)) and math.isfinite(self.omega) and -1 < self.omega < 2):
+            raise InputError(f"Fluid {self.name!r}: omega = {self.omega!r} must be a finite number between -1 and 2.")
+
+    def __repr__(self):
+        return (
+            f"Fluid({self.name!r}, Tc={self.Tc:.6g} K, Pc={self.Pc / 1e6:.6g} MPa, "
+            f"omega={self.omega:.4g}, molar_mass={self.molar_mass * 1e3:.6g} g/mol)"
+        )
+
+    def _repr_html_(self):
+        rows = [
+            ("Critical temperature", f"{self.Tc:.6g} K"),
+            ("Critical pressure", f"{self.Pc / 1e6:.6g} MPa"),
+            ("Acentric factor", f"{self.omega:.4g}"),
+            ("Molar mass", f"{self.molar_mass * 1e3:.6g} g/mol"),
+        ]
+        body = "".join(f"<tr><th style='text-align:left'>{k}</th><td>{v}</td></tr>" for k, v in rows)
+        return f"<table><caption>{self.name}</caption>{body}</table>"
+
+
+def _normalise(name: str) -> str:
+    """Key for matching: lower case without spaces, hyphens, underscores or brackets."""
+    return re.sub(r"[\s\-_()\[\],.]", "", name.lower())
+
+
+# Everyday names that CoolProp's own alias lists do not carry (common practice).
+_EXTRA_ALIASES = {
+    "carbon dioxide": "CarbonDioxide",
+    "carbon monoxide": "CarbonMonoxide",
+    "hydrogen sulfide": "HydrogenSulfide",
+    "hydrogen sulphide": "HydrogenSulfide",
+    "steam": "Water",
+    "natural gas": "Methane",
+    "isobutane": "IsoButane",
+    "i-butane": "IsoButane",
+    "isopentane": "Isopentane",
+    "sulfur dioxide": "SulfurDioxide",
+    "sulphur dioxide": "SulfurDioxide",
+}
+
+
+@functools.lru_cache(maxsize=1)
+def _library_index() -> dict[str, str]:
+    """Map every normalised name, alias and CAS number to CoolProp's fluid name."""
+    import CoolProp.CoolProp as CP
+
+    index: dict[str, str] = {}
+    for fluid in CP.get_global_param_string("FluidsList").split(","):
+        names = [fluid, CP.get_fluid_param_string(fluid, "CAS")]
+        names += CP.get_fluid_param_string(fluid, "aliases").split(",")
+        for alias in names:
+            if alias:
+                index.setdefault(_normalise(alias), fluid)
+    for alias, fluid in _EXTRA_ALIASES.items():
+        index.setdefault(_normalise(alias), fluid)
+    return index
+
+
+def fluid_names() -> list[str]:
+    """Names of every fluid in the library, sorted case-insensitively."""
+    return sorted(set(_library_index().values()), key=str.lower)
+
+
+@functools.lru_cache(maxsize=None)
+def get_fluid(name: str) -> Fluid:
+    """Look a fluid up by name, alias, refrigerant number or CAS number.
+
+    Parameters
+    ----------
+    name : str
+        For example ``"CO2"``, ``"carbon dioxide"``, ``"n-butane"``, ``"R134a"``, ``"R-744"``.
+        Case, spaces and hyphens do not matter.
+
+    Returns
+    -------
+    Fluid
+        Critical temperature [K], critical pressure [Pa], acentric factor [-] and molar
+        mass [kg/mol] of the fluid's reference equation in CoolProp.
+
+    Raises
+    ------
+    UnknownFluidError
+        The name is not in the library; the message lists the closest names.
+
+    References
+    ----------
+    Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp).
+    """
+    if not isinstance(name, str) or not name.strip():
+        raise InputError(f"A fluid name must be a non-empty string, not {name!r}.")
+    index = _library_index()
+    key = _normalise(name)
+    if key not in index:
+        close = difflib.get_close_matches(key, index.keys(), n=5, cutoff=0.6)
+        suggestions = tuple(dict.fromkeys(index[k] for k in close))
+        hint = f" Did you mean {', '.join(suggestions)}?" if suggestions else ""
+        raise UnknownFluidError(
+            f"Unknown fluid {name!r}.{hint} thermo_roots.fluid_names() lists all "
+            f"{len(set(index.values()))}; or define your own with Fluid(name, Tc, Pc, omega, molar_mass).",
+            suggestions,
+        )
+    return _fluid_from_library(index[key])
+
+
+def _fluid_from_library(library_name: str) -> Fluid:
+    import CoolProp
+
+    state = CoolProp.AbstractState("HEOS", library_name)
+    return Fluid(
+        name=library_name,
+        Tc=float(state.T_critical()),
+        Pc=float(state.p_critical()),
+        omega=float(state.acentric_factor()),
+        molar_mass=float(state.molar_mass()),
+        library_name=library_name,
+    )

@@ -1,0 +1,370 @@
+"""Layer 3: the ideal gas and ONE generalized two-parameter cubic equation of state.
+
+Every cubic here is the form
+
+    P = R T / (v - b) - a(T) / ((v + delta1 b) (v + delta2 b))
+
+with a(T) = Omega_a (R Tc)^2 / Pc * alpha(T) and b = Omega_b R Tc / Pc. Van der Waals,
+Redlich-Kwong, Soave-Redlich-Kwong and Peng-Robinson differ only in (delta1, delta2) and
+the alpha function: they are parameter sets (:class:`CubicFamily`) of one implementation
+(:class:`CubicModel`). Omega_a and Omega_b are derived from the critical conditions, so
+every model reproduces the fluid's Tc and Pc.
+
+All property functions take temperature T [K] and molar volume v [m^3/mol] as floats or
+numpy arrays and broadcast like numpy.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Callable
+
+import numpy as np
+
+from .fluids import Fluid
+
+#: Molar gas constant [J/(mol K)], exact since the 2019 SI redefinition (CODATA 2018).
+R = 8.31446261815324
+
+
+# --------------------------------------------------------------------------- alpha functions
+# Each returns (alpha, d alpha / d T) for T [K], Tc [K], omega [-].
+
+def _alpha_constant(T, Tc, omega):
+    T = np.asarray(T, dtype=float)
+    return np.ones_like(T), np.zeros_like(T)
+
+
+def _alpha_redlich_kwong(T, Tc, omega):
+    Tr = np.asarray(T, dtype=float) / Tc
+    alpha = Tr**-0.5
+    return alpha, -0.5 * alpha / (Tr * Tc)
+
+
+def _soave_alpha(m):
+    """alpha = (1 + m (1 - sqrt(Tr)))^2, the Soave (1972) form used by SRK and PR."""
+
+    def alpha_function(T, Tc, omega):
+        sqrt_Tr = np.sqrt(np.asarray(T, dtype=float) / Tc)
+        k = m(omega)
+        root = 1.0 + k * (1.0 - sqrt_Tr)
+        return root * root, -k * root / (sqrt_Tr * Tc)
+
+    return alpha_function
+
+
+def _m_soave(omega):
+    return 0.480 + 1.574 * omega - 0.176 * omega**2
+
+
+def _kappa_pr76(omega):
+    return 0.37464 + 1.54226 * omega - 0.26992 * omega**2
+
+
+def _kappa_pr78(omega):
+    if omega <= 0.491:
+        return _kappa_pr76(omega)
+    return 0.379642 + 1.48503 * omega - 0.164423 * omega**2 + 0.016666 * omega**3
+
+
+# --------------------------------------------------------------------------- parameter sets
+
+def critical_constants(delta1: float, delta2: float) -> tuple[float, float, float]:
+    """Omega_a, Omega_b and Zc of the generalized cubic from the critical conditions.
+
+    At the critical point the cubic in Z has a triple root Zc. Matching
+    Z^3 + ((u-1)B - 1) Z^2 + (A + wB^2 - uB - uB^2) Z - (AB + wB^2 + wB^3) with (Z - Zc)^3,
+    u = delta1 + delta2, w = delta1 delta2, gives Zc = (1 - (u-1)B)/3,
+    A = 3 Zc^2 - wB^2 + uB + uB^2 and a cubic in B; its root in (0, 1) is Omega_b.
+
+    Returns
+    -------
+    (Omega_a, Omega_b, Zc) : tuple of float [-]
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., Tie-Line Publications, ch. 3 (generalized cubic).
+    """
+    u, w = delta1 + delta2, delta1 * delta2
+    P = np.polynomial.Polynomial
+    B = P([0.0, 1.0])
+    Zc = (1.0 - (u - 1.0) * B) / 3.0
+    A = 3.0 * Zc**2 - w * B**2 + u * B + u * B**2
+    residual = Zc**3 - A * B - w * B**2 - w * B**3
+    candidates = [r.real for r in residual.roots() if abs(r.imag) < 1e-9 and 0 < r.real < 1]
+    omega_b = min(candidates, key=lambda r: abs(Zc(r) - 0.3))
+    slope = residual.deriv()
+    for _ in range(3):  # Newton polish to the last bit
+        omega_b -= residual(omega_b) / slope(omega_b)
+    return float(A(omega_b)), float(omega_b), float(Zc(omega_b))
+
+
+@dataclass(frozen=True)
+class CubicFamily:
+    """A named parameter set of the generalized cubic: (delta1, delta2) and alpha(T).
+
+    ``alpha(T, Tc, omega)`` returns (alpha [-], d alpha/dT [1/K]).
+    """
+
+    name: str
+    delta1: float
+    delta2: float
+    alpha: Callable = field(repr=False)
+    reference: str = field(default="", repr=False)
+    omega_a: float = field(init=False)
+    omega_b: float = field(init=False)
+    Zc: float = field(init=False)
+
+    def __post_init__(self):
+        omega_a, omega_b, Zc = critical_constants(self.delta1, self.delta2)
+        object.__setattr__(self, "omega_a", omega_a)
+        object.__setattr__(self, "omega_b", omega_b)
+        object.__setattr__(self, "Zc", Zc)
+
+
+SQRT2 = math.sqrt(2.0)
+
+VDW = CubicFamily("van der Waals", 0.0, 0.0, _alpha_constant,
+                  "van der Waals, J. D. (1873), doctoral thesis, Leiden.")
+RK = CubicFamily("Redlich-Kwong", 1.0, 0.0, _alpha_redlich_kwong,
+                 "Redlich, O. & Kwong, J. N. S. (1949), Chem. Rev. 44, 233-244.")
+SRK = CubicFamily("Soave-Redlich-Kwong", 1.0, 0.0, _soave_alpha(_m_soave),
+                  "Soave, G. (1972), Chem. Eng. Sci. 27, 1197-1203.")
+PR76 = CubicFamily("Peng-Robinson", 1.0 + SQRT2, 1.0 - SQRT2, _soave_alpha(_kappa_pr76),
+                   "Peng, D.-Y. & Robinson, D. B. (1976), Ind. Eng. Chem. Fundam. 15, 59-64.")
+PR78 = CubicFamily("Peng-Robinson 1978", 1.0 + SQRT2, 1.0 - SQRT2, _soave_alpha(_kappa_pr78),
+                   "Robinson, D. B. & Peng, D.-Y. (1978), GPA Research Report RR-28.")
+
+
+# --------------------------------------------------------------------------- models
+
+class _Model:
+    """Behaviour shared by every model: Z and the fluid it belongs to."""
+
+    short_name = ""
+    fluid: Fluid
+
+    def compressibility(self, T, v):
+        """Compressibility factor Z = P v / (R T) [-]."""
+        T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+        return _scalar_or_array(self.pressure(T, v) * v / (R * T))
+
+    def __repr__(self):
+        return f"{type(self).__name__}({self.fluid.name!r})"
+
+
+class IdealGas(_Model):
+    """The ideal gas, P v = R T. No residual properties; ln phi = 0.
+
+    References
+    ----------
+    Clapeyron, E. (1834), J. Ec. Polytech. 14, 153-190.
+    """
+
+    name = "ideal gas"
+    short_name = "IG"
+    b = 0.0
+
+    def __init__(self, fluid: Fluid):
+        self.fluid = fluid
+
+    def pressure(self, T, v):
+        """Pressure [Pa] at T [K] and v [m^3/mol]."""
+        return _scalar_or_array(R * np.asarray(T, dtype=float) / np.asarray(v, dtype=float))
+
+    def dP_dv(self, T, v):
+        """(dP/dv) at constant T [Pa mol/m^3]."""
+        v = np.asarray(v, dtype=float)
+        return _scalar_or_array(-R * np.asarray(T, dtype=float) / (v * v))
+
+    def dP_dT(self, T, v):
+        """(dP/dT) at constant v [Pa/K]."""
+        return _scalar_or_array(R / np.asarray(v, dtype=float) + 0.0 * np.asarray(T, dtype=float))
+
+    def ln_phi(self, T, v, P=None):
+        """Natural log of the fugacity coefficient [-]: zero for the ideal gas."""
+        return _scalar_or_array(np.zeros(np.broadcast(np.asarray(T), np.asarray(v)).shape))
+
+    residual_gibbs = ln_phi
+
+
+class CubicModel(_Model):
+    """One generalized two-parameter cubic equation of state for a pure fluid.
+
+    Parameters
+    ----------
+    fluid : Fluid
+        Critical constants, acentric factor and molar mass.
+    family : CubicFamily
+        Which cubic: (delta1, delta2) and alpha function.
+
+    Attributes
+    ----------
+    a_c : float
+        Attraction parameter at Tc [Pa m^6/mol^2].
+    b : float
+        Co-volume [m^3/mol].
+    v_c : float
+        The model's critical molar volume Zc R Tc / Pc [m^3/mol].
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., ch. 3 and 4 (generalized cubic, fugacity, residual
+    properties).
+    """
+
+    family: CubicFamily
+
+    def __init__(self, fluid: Fluid, family: CubicFamily | None = None):
+        if not isinstance(fluid, Fluid):
+            from .errors import InputError
+
+            raise InputError(f"A model needs a Fluid (see get_fluid), not {fluid!r}.")
+        self.fluid = fluid
+        if family is not None:
+            self.family = family
+        f = self.family
+        self.name = f.name
+        self.delta1, self.delta2 = f.delta1, f.delta2
+        self.a_c = f.omega_a * (R * fluid.Tc) ** 2 / fluid.Pc
+        self.b = f.omega_b * R * fluid.Tc / fluid.Pc
+        self.v_c = f.Zc * R * fluid.Tc / fluid.Pc
+        self.Zc = f.Zc
+
+    # -- the pieces of the equation
+    def attraction(self, T):
+        """a(T) [Pa m^6/mol^2] and da/dT [Pa m^6/(mol^2 K)]."""
+        alpha, dalpha = self.family.alpha(T, self.fluid.Tc, self.fluid.omega)
+        return self.a_c * alpha, self.a_c * dalpha
+
+    def _denominator(self, v):
+        return (v + self.delta1 * self.b) * (v + self.delta2 * self.b)
+
+    def _attraction_integral(self, v):
+        """I(v) = integral from v to infinity of dv' / ((v' + d1 b)(v' + d2 b)) [mol/m^3]."""
+        d1, d2, b = self.delta1, self.delta2, self.b
+        if d1 == d2:
+            return 1.0 / (v + d1 * b)
+        return np.log((v + d1 * b) / (v + d2 * b)) / ((d1 - d2) * b)
+
+    # -- properties of (T, v)
+    def pressure(self, T, v):
+        """Pressure [Pa] at T [K] and v [m^3/mol]."""
+        T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+        a, _ = self.attraction(T)
+        return _scalar_or_array(R * T / (v - self.b) - a / self._denominator(v))
+
+    def dP_dv(self, T, v):
+        """(dP/dv) at constant T [Pa mol/m^3]."""
+        T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+        a, _ = self.attraction(T)
+        D = self._denominator(v)
+        u = self.delta1 + self.delta2
+        return _scalar_or_array(-R * T / (v - self.b) ** 2 + a * (2.0 * v + u * self.b) / (D * D))
+
+    def dP_dT(self, T, v):
+        """(dP/dT) at constant v [Pa/K]."""
+        T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+        _, da = self.attraction(T)
+        return _scalar_or_array(R / (v - self.b) - da / self._denominator(v))
+
+    def residual_helmholtz(self, T, v):
+        """Residual Helmholtz energy a_res(T, v) [J/mol] against the ideal gas at the same T, v."""
+        T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+        a, _ = self.attraction(T)
+        return _scalar_or_array(-R * T * np.log1p(-self.b / v) - a * self._attraction_integral(v))
+
+    def residual_entropy(self, T, v):
+        """Residual entropy s_res(T, v) [J/(mol K)] against the ideal gas at the same T, v."""
+        T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+        _, da = self.attraction(T)
+        return _scalar_or_array(R * np.log1p(-self.b / v) + da * self._attraction_integral(v))
+
+    def residual_enthalpy(self, T, v):
+        """Residual enthalpy h_res [J/mol] against the ideal gas at the same T and P."""
+        T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+        a, da = self.attraction(T)
+        u_res = (T * da - a) * self._attraction_integral(v)
+        return _scalar_or_array(u_res + self.pressure(T, v) * v - R * T)
+
+    def ln_phi(self, T, v, P=None):
+        """Natural log of the fugacity coefficient ln(f/P) [-] at T [K], v [m^3/mol].
+
+        ln phi = a_res/(RT) + Z - 1 - ln Z, which is also the residual Gibbs energy
+        g_res(T, P)/(RT) against the ideal gas at the same T and P. Pass the pressure P [Pa]
+        when v is a root at a known P: on a dense liquid at very low pressure, P(T, v) is a
+        small difference of large terms and would spoil ln Z.
+        """
+        T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+        P = self.pressure(T, v) if P is None else np.asarray(P, dtype=float)
+        Z = P * v / (R * T)
+        return _scalar_or_array(self.residual_helmholtz(T, v) / (R * T) + Z - 1.0 - np.log(Z))
+
+    def residual_gibbs(self, T, v, P=None):
+        """Residual Gibbs energy g_res = R T ln phi [J/mol] at T [K], v [m^3/mol] (P as in ln_phi)."""
+        return _scalar_or_array(R * np.asarray(T, dtype=float) * self.ln_phi(T, v, P))
+
+    # -- the cubic in Z at given (T, P), used by the inversion layer
+    def cubic_coefficients(self, T, P):
+        """Coefficients (c2, c1, c0) of Z^3 + c2 Z^2 + c1 Z + c0 = 0 and B = bP/(RT)."""
+        T, P = np.asarray(T, dtype=float), np.asarray(P, dtype=float)
+        a, _ = self.attraction(T)
+        A = a * P / (R * T) ** 2
+        B = self.b * P / (R * T)
+        u, w = self.delta1 + self.delta2, self.delta1 * self.delta2
+        c2 = (u - 1.0) * B - 1.0
+        c1 = A + w * B * B - u * B * (1.0 + B)
+        c0 = -B * (A + w * B * (1.0 + B))
+        return c2, c1, c0, B
+
+
+class VanDerWaals(CubicModel):
+    """van der Waals (1873): delta1 = delta2 = 0, alpha = 1."""
+
+    family = VDW
+    short_name = "vdW"
+
+
+class RedlichKwong(CubicModel):
+    """Redlich-Kwong (1949): delta1 = 1, delta2 = 0, alpha = Tr^-1/2."""
+
+    family = RK
+    short_name = "RK"
+
+
+class SoaveRedlichKwong(CubicModel):
+    """Soave-Redlich-Kwong (Soave 1972): delta1 = 1, delta2 = 0, Soave alpha with
+    m = 0.480 + 1.574 omega - 0.176 omega^2."""
+
+    family = SRK
+    short_name = "SRK"
+
+
+class PengRobinson(CubicModel):
+    """Peng-Robinson (1976): delta = 1 +/- sqrt(2), Soave-type alpha with
+    kappa = 0.37464 + 1.54226 omega - 0.26992 omega^2."""
+
+    family = PR76
+    short_name = "PR"
+
+
+class PengRobinson78(CubicModel):
+    """Peng-Robinson with the 1978 kappa for omega > 0.491:
+    kappa = 0.379642 + 1.48503 omega - 0.164423 omega^2 + 0.016666 omega^3."""
+
+    family = PR78
+    short_name = "PR78"
+
+
+#: Model classes by their short name, for panels and command lines.
+MODELS = {cls.short_name: cls for cls in
+          (IdealGas, VanDerWaals, RedlichKwong, SoaveRedlichKwong, PengRobinson, PengRobinson78)}
+
+
+def _scalar_or_array(x):
+    """A 0-d array becomes a float, so a scalar in gives a scalar out."""
+    x = np.asarray(x)
+    return float(x) if x.ndim == 0 else x
