@@ -1,0 +1,9 @@
+"""Layer 5: two knowns to a state (`solve`) and saturation (`saturation`)."""
+
+from .cubic import cubic_real_roots, volume_roots
+from .display import CAUTION
+from .saturation import Saturation, saturation, spinodal_volumes
+from .state import PHASES, Root, State, solve
+
+__all__ = ["CAUTION", "PHASES", "Root", "Saturation", "State", "cubic_real_roots", "saturation",
+           "solve", "spinodal_volumes", "volume_roots"]

@@ -1,0 +1,65 @@
+"""Plain-text and HTML views of a solved state, in the units engineers read."""
+
+from __future__ import annotations
+
+import html
+
+import numpy as np
+
+#: Shown with every state a person reads: these numbers can lead to filling, heating or
+#: pressurising equipment.
+CAUTION = (
+    "Screening estimate from a cubic equation of state: expect errors of several percent, "
+    "more in liquid density. Do not fill, heat or pressurise equipment on this number alone; "
+    "follow local codes and have a licensed engineer check the design."
+)
+
+
+def _fmt(x, scale=1.0, digits=6):
+    return "-" if x is None or not np.isfinite(x) else f"{x * scale:.{digits}g}"
+
+
+def state_rows(state) -> list[tuple[str, str]]:
+    """(label, value with unit) rows of a scalar state."""
+    if np.ndim(state.T):
+        raise ValueError("state_rows shows one state; index the arrays of an array solve instead.")
+    M = state.model.fluid.molar_mass
+    rows = [
+        ("Phase", str(state.phase)),
+        ("Temperature", f"{_fmt(state.T)} K ({_fmt(state.T - 273.15)} °C)"),
+        ("Pressure", f"{_fmt(state.P, 1e-5)} bar ({_fmt(state.P, 1e-6)} MPa)"),
+        ("Molar volume", f"{_fmt(state.v, 1e3)} L/mol"),
+        ("Molar density", f"{_fmt(state.rho, 1e-3)} mol/L"),
+        ("Mass density", f"{_fmt(state.rho_mass)} kg/m³"),
+        ("Specific volume", f"{_fmt(state.v / M)} m³/kg"),
+        ("Compressibility factor Z", _fmt(state.Z)),
+    ]
+    if state.phase == "two-phase":
+        rows += [("Vapour quality", _fmt(state.quality, digits=4)),
+                 ("Saturated liquid density", f"{_fmt(M / state.v_liquid)} kg/m³"),
+                 ("Saturated vapour density", f"{_fmt(M / state.v_vapor)} kg/m³")]
+    elif state.T < state.model.fluid.Tc and state.P < state.model.fluid.Pc:
+        margin = state.superheat
+        word = "superheat" if margin >= 0 else "subcooling"
+        rows += [("Saturation pressure at T", f"{_fmt(state.P_sat, 1e-5)} bar"),
+                 (f"Margin to saturation ({word})", f"{_fmt(abs(margin), digits=4)} K")]
+    if state.metastable:
+        rows.append(("Stability", "METASTABLE: between binodal and spinodal"))
+    return rows
+
+
+def state_html(state) -> str:
+    """An HTML table of a state, its roots and the caution; arrays show a short note."""
+    if np.ndim(state.T):
+        return f"<pre>{html.escape(repr(state))}</pre>"
+    title = f"{state.model.fluid.name} — {state.model.name}"
+    body = "".join(f"<tr><th style='text-align:left'>{html.escape(k)}</th><td>{html.escape(v)}</td></tr>"
+                   for k, v in state_rows(state))
+    roots = "".join(
+        f"<tr><td>{r.v * 1e3:.6g}</td><td>{r.Z:.6g}</td><td>{html.escape(r.kind)}</td>"
+        f"<td>{r.ln_phi:.6g}</td><td>{'yes' if r.stable else ''}</td></tr>" for r in state.roots)
+    root_table = ("<table><caption>Volume roots of the cubic at this T and P</caption>"
+                  "<tr><th>v [L/mol]</th><th>Z</th><th>kind</th><th>ln φ</th><th>lowest Gibbs energy</th></tr>"
+                  f"{roots}</table>")
+    return (f"<div><table><caption>{html.escape(title)}</caption>{body}</table>{root_table}"
+            f"<p style='font-size:smaller'><b>Caution.</b> {html.escape(CAUTION)}</p></div>")
