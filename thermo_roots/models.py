@@ -166,6 +166,8 @@ class IdealGas(_Model):
     name = "ideal gas"
     short_name = "IG"
     b = 0.0
+    c = 0.0
+    v_min = 0.0
 
     def __init__(self, fluid: Fluid):
         self.fluid = fluid
@@ -199,26 +201,36 @@ class CubicModel(_Model):
         Critical constants, acentric factor and molar mass.
     family : CubicFamily
         Which cubic: (delta1, delta2) and alpha function.
+    volume_shift : float or "peneloux", optional
+        Volume translation c [m^3/mol]: the model's volume is v = v_cubic - c, which moves
+        liquid densities and leaves saturation pressures unchanged. "peneloux" takes the
+        Peneloux-Rauzy-Freze (1982) correlation for SRK (and its usual PR analogue).
+        Default 0 (no translation).
 
     Attributes
     ----------
     a_c : float
         Attraction parameter at Tc [Pa m^6/mol^2].
     b : float
-        Co-volume [m^3/mol].
+        Co-volume of the untranslated cubic [m^3/mol].
+    c : float
+        Volume translation [m^3/mol].
+    v_min : float
+        Smallest admissible molar volume b - c [m^3/mol].
     v_c : float
-        The model's critical molar volume Zc R Tc / Pc [m^3/mol].
+        The model's critical molar volume Zc R Tc / Pc - c [m^3/mol].
 
     References
     ----------
     Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
     Computational Aspects, 2nd ed., ch. 3 and 4 (generalized cubic, fugacity, residual
     properties).
+    Peneloux, A., Rauzy, E. & Freze, R. (1982), Fluid Phase Equilib. 8, 7-23 (volume translation).
     """
 
     family: CubicFamily
 
-    def __init__(self, fluid: Fluid, family: CubicFamily | None = None):
+    def __init__(self, fluid: Fluid, family: CubicFamily | None = None, volume_shift=0.0):
         if not isinstance(fluid, Fluid):
             from .errors import InputError
 
@@ -231,8 +243,12 @@ class CubicModel(_Model):
         self.delta1, self.delta2 = f.delta1, f.delta2
         self.a_c = f.omega_a * (R * fluid.Tc) ** 2 / fluid.Pc
         self.b = f.omega_b * R * fluid.Tc / fluid.Pc
-        self.v_c = f.Zc * R * fluid.Tc / fluid.Pc
-        self.Zc = f.Zc
+        self.c = _volume_shift(volume_shift, f, fluid)
+        self.v_min = self.b - self.c
+        self.v_c = f.Zc * R * fluid.Tc / fluid.Pc - self.c
+        self.Zc = f.Zc - self.c * fluid.Pc / (R * fluid.Tc)
+        if self.c:
+            self.name = f"{f.name} (translated)"
 
     # -- the pieces of the equation
     def attraction(self, T):
@@ -241,21 +257,23 @@ class CubicModel(_Model):
         return self.a_c * alpha, self.a_c * dalpha
 
     def _denominator(self, v):
-        return (v + self.delta1 * self.b) * (v + self.delta2 * self.b)
+        """(v_cubic + d1 b)(v_cubic + d2 b) at the model volume v."""
+        w = v + self.c
+        return (w + self.delta1 * self.b) * (w + self.delta2 * self.b)
 
     def _attraction_integral(self, v):
         """I(v) = integral from v to infinity of dv' / ((v' + d1 b)(v' + d2 b)) [mol/m^3]."""
-        d1, d2, b = self.delta1, self.delta2, self.b
+        d1, d2, b, w = self.delta1, self.delta2, self.b, v + self.c
         if d1 == d2:
-            return 1.0 / (v + d1 * b)
-        return np.log((v + d1 * b) / (v + d2 * b)) / ((d1 - d2) * b)
+            return 1.0 / (w + d1 * b)
+        return np.log((w + d1 * b) / (w + d2 * b)) / ((d1 - d2) * b)
 
     # -- properties of (T, v)
     def pressure(self, T, v):
         """Pressure [Pa] at T [K] and v [m^3/mol]."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         a, _ = self.attraction(T)
-        return _scalar_or_array(R * T / (v - self.b) - a / self._denominator(v))
+        return _scalar_or_array(R * T / (v - self.v_min) - a / self._denominator(v))
 
     def dP_dv(self, T, v):
         """(dP/dv) at constant T [Pa mol/m^3]."""
@@ -263,25 +281,25 @@ class CubicModel(_Model):
         a, _ = self.attraction(T)
         D = self._denominator(v)
         u = self.delta1 + self.delta2
-        return _scalar_or_array(-R * T / (v - self.b) ** 2 + a * (2.0 * v + u * self.b) / (D * D))
+        return _scalar_or_array(-R * T / (v - self.v_min) ** 2 + a * (2.0 * (v + self.c) + u * self.b) / (D * D))
 
     def dP_dT(self, T, v):
         """(dP/dT) at constant v [Pa/K]."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         _, da = self.attraction(T)
-        return _scalar_or_array(R / (v - self.b) - da / self._denominator(v))
+        return _scalar_or_array(R / (v - self.v_min) - da / self._denominator(v))
 
     def residual_helmholtz(self, T, v):
         """Residual Helmholtz energy a_res(T, v) [J/mol] against the ideal gas at the same T, v."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         a, _ = self.attraction(T)
-        return _scalar_or_array(-R * T * np.log1p(-self.b / v) - a * self._attraction_integral(v))
+        return _scalar_or_array(-R * T * np.log1p(-self.v_min / v) - a * self._attraction_integral(v))
 
     def residual_entropy(self, T, v):
         """Residual entropy s_res(T, v) [J/(mol K)] against the ideal gas at the same T, v."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         _, da = self.attraction(T)
-        return _scalar_or_array(R * np.log1p(-self.b / v) + da * self._attraction_integral(v))
+        return _scalar_or_array(R * np.log1p(-self.v_min / v) + da * self._attraction_integral(v))
 
     def residual_enthalpy(self, T, v):
         """Residual enthalpy h_res [J/mol] against the ideal gas at the same T and P."""
@@ -309,7 +327,10 @@ class CubicModel(_Model):
 
     # -- the cubic in Z at given (T, P), used by the inversion layer
     def cubic_coefficients(self, T, P):
-        """Coefficients (c2, c1, c0) of Z^3 + c2 Z^2 + c1 Z + c0 = 0 and B = bP/(RT)."""
+        """Coefficients (c2, c1, c0) of Z^3 + c2 Z^2 + c1 Z + c0 = 0 and B = bP/(RT).
+
+        Z here is the untranslated cubic's, P v_cubic / (R T); subtract c from its volumes.
+        """
         T, P = np.asarray(T, dtype=float), np.asarray(P, dtype=float)
         a, _ = self.attraction(T)
         A = a * P / (R * T) ** 2
@@ -357,6 +378,45 @@ class PengRobinson78(CubicModel):
 
     family = PR78
     short_name = "PR78"
+
+
+def _volume_shift(option, family: CubicFamily, fluid: Fluid) -> float:
+    """The translation c [m^3/mol] for a float or the "peneloux" option."""
+    if isinstance(option, str):
+        if option.lower() != "peneloux":
+            from .errors import InputError
+
+            raise InputError(f"volume_shift={option!r}: give a number [m^3/mol] or 'peneloux'.")
+        return peneloux_shift(family, fluid)
+    c = float(option)
+    if not math.isfinite(c):
+        from .errors import InputError
+
+        raise InputError(f"volume_shift={option!r} must be finite [m^3/mol].")
+    return c
+
+
+def peneloux_shift(family: CubicFamily, fluid: Fluid) -> float:
+    """Peneloux volume translation c [m^3/mol] from the Rackett compressibility factor.
+
+    SRK: c = 0.40768 (R Tc/Pc)(0.29441 - Z_RA) (Peneloux, Rauzy & Freze 1982); PR: the
+    analogous c = 0.50033 (R Tc/Pc)(0.25969 - Z_RA); Z_RA = 0.29056 - 0.08775 omega
+    (Yamada & Gunn 1973). Coefficients from memory.
+
+    References
+    ----------
+    Peneloux, A., Rauzy, E. & Freze, R. (1982), Fluid Phase Equilib. 8, 7-23.
+    Yamada, T. & Gunn, R. D. (1973), J. Chem. Eng. Data 18, 234-236.
+    """
+    z_ra = 0.29056 - 0.08775 * fluid.omega
+    scale = R * fluid.Tc / fluid.Pc
+    if family.delta1 == 1.0 and family.delta2 == 0.0 and family is not RK:
+        return 0.40768 * scale * (0.29441 - z_ra)
+    if family.delta1 == 1.0 + SQRT2:
+        return 0.50033 * scale * (0.25969 - z_ra)
+    from .errors import InputError
+
+    raise InputError(f"The Peneloux correlation is given for SRK and PR, not {family.name}.")
 
 
 #: Model classes by their short name, for panels and command lines.

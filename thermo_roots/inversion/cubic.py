@@ -100,4 +100,4 @@ def volume_roots(model, T, P):
     Z = cubic_real_roots(c2, c1, c0)
     Z = np.where(Z > np.asarray(B)[..., None], Z, np.nan)
     Z = np.sort(Z, axis=-1)  # NaN sort last: valid roots first, ascending
-    return Z * (R * T / P)[..., None]
+    return Z * (R * T / P)[..., None] - model.c   # translated volumes

@@ -197,7 +197,7 @@ def spinodal_volumes(model, T):
     v_big = _beyond_vapor_spinodal(model, T)
     common = dict(args=(T,), xtol=0.0, rtol=1e-13, maxiter=200, trace=False)
     slope = _isotherm_slope(model)
-    liquid = find_root(slope, bracket=(np.full(T.shape, model.b * (1.0 + 1e-12)), v_c), **common)
+    liquid = find_root(slope, bracket=(np.full(T.shape, model.v_min + 1e-12 * model.b), v_c), **common)
     vapor = find_root(slope, bracket=(v_c, v_big), **common)
     return liquid.root, vapor.root
 

@@ -244,10 +244,11 @@ def _read_knowns(model, knowns, atmosphere):
         si["v"] = 1.0 / si.pop("rho")
     if "rho_mass" in si:
         si["v"] = M / si.pop("rho_mass")
-    if "v" in si and np.any(si["v"] <= model.b):
+    v_min = getattr(model, "v_min", 0.0)
+    if "v" in si and np.any(si["v"] <= v_min):
         raise DomainError(
-            f"v = {_first(si['v'], si['v'] <= model.b):.6g} m3/mol is at or below the co-volume "
-            f"b = {model.b:.6g} m3/mol of {model.name} for {model.fluid.name}: no fluid is that dense "
+            f"v = {_first(si['v'], si['v'] <= v_min):.6g} m3/mol is at or below the co-volume "
+            f"b = {v_min:.6g} m3/mol of {model.name} for {model.fluid.name}: no fluid is that dense "
             "in this model. Check the volume or density and its unit."
         )
     if "quality" in si and np.any((si["quality"] < 0.0) | (si["quality"] > 1.0)):
@@ -316,9 +317,9 @@ def _from_P_v(model, P, v):
 def _temperature_at(model, P, v):
     """T [K] with P(T, v) = P, bracketed from the physics (see solve's Notes)."""
     D = model._denominator(v)
-    T_lo = P * (v - model.b) / R
+    T_lo = P * (v - model.v_min) / R
     a_lo, _ = model.attraction(T_lo)
-    T_hi = (P + a_lo / D) * (v - model.b) / R * (1.0 + 1e-12)
+    T_hi = (P + a_lo / D) * (v - model.v_min) / R * (1.0 + 1e-12)
     for _ in range(60):  # only needed where the Soave alpha has turned upwards
         short = model.pressure(T_hi, v) < P
         if not np.any(short):
