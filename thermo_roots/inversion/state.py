@@ -191,8 +191,9 @@ def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, **kn
     Notes
     -----
     (P, v) -> T: at fixed v, P = RT/(v-b) - a(T)/D(v) rises with T wherever a(T) does
-    not, which holds for every alpha function here below Tc (1 + 1/m)^2 (4 to 12 Tc for
-    common fluids). The bracket is T_lo = P (v-b)/R, where P(T_lo) <= P because a >= 0,
+    not, which holds for every alpha function here below Tc (1 + 1/m)^2, where the Soave
+    alpha has its minimum (about 2.5 Tc for heavy fluids, omega ~ 0.9, up to about 9 Tc
+    for omega ~ 0). The bracket is T_lo = P (v-b)/R, where P(T_lo) <= P because a >= 0,
     and T_hi = (P + a(T_lo)/D) (v-b)/R, where P(T_hi) >= P while a falls. Should the
     Soave alpha rise again past its minimum, T_hi is doubled until the sign changes, and
     the root found is the lowest-temperature one in that bracket.
