@@ -1,0 +1,744 @@
+"""Layer 6: the reference equation of state, and how far a model is from it.
+
+This module is the only code that drives CoolProp's state objects. It evaluates the
+fluid's multiparameter Helmholtz-energy equation (CoolProp's ``HEOS`` backend, one
+``AbstractState`` per fluid and process) at the same knowns as a solved model state and
+reports the deviations. A state the reference cannot give -- below its triple point,
+beyond its temperature or pressure limits, in the solid, or where CoolProp raises -- comes
+back as *unavailable* with a readable reason, never as an exception out of a sweep.
+
+Only the ``HEOS`` backend is used: the tabular backends have crashed the process on bulk
+calls. ``PropsSI`` is not used either: the low-level ``update`` is several times faster.
+
+References
+----------
+Bell, I. H., Wronski, J., Quoilin, S. & Lemort, V. (2014), Pure and pseudo-pure fluid
+thermophysical property evaluation and the open-source thermophysical property library
+CoolProp, Ind. Eng. Chem. Res. 53, 2498-2508.
+Span, R. (2000), Multiparameter Equations of State, Springer (form of the reference equations).
+"""
+
+from __future__ import annotations
+
+import functools
+import html
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .errors import DomainError, InputError
+from .inversion import CAUTION, saturation
+from .models import R, _scalar_or_array
+from .units import to_si
+
+#: The pairs of knowns the reference understands, as the names used by ``solve``.
+REFERENCE_PAIRS = ("T,P", "T,v", "P,v", "T,quality", "P,quality")
+#: States per chunk of reference work (a chunk is the unit of progress, interruption and
+#: parallel dispatch).
+DEFAULT_CHUNK = 1000
+#: Above this many states ``progress="auto"`` shows a progress bar.
+AUTO_PROGRESS_ABOVE = 5000
+#: The reason given to states a run did not reach because it was interrupted.
+INTERRUPTED = "not checked: the run was interrupted before this state"
+
+_FIELDS = ("T", "P", "v", "quality", "P_sat", "T_sat", "v_liquid", "v_vapor")
+
+
+# --------------------------------------------------------------------------- CoolProp access
+
+@functools.lru_cache(maxsize=None)
+def _abstract_state(library_name: str):
+    """One HEOS AbstractState per fluid and process, with its limits."""
+    import CoolProp
+
+    state = CoolProp.AbstractState("HEOS", library_name)
+    limits = dict(T_min=max(state.Tmin(), state.Ttriple()), T_max=state.Tmax(), P_max=state.pmax(),
+                  P_triple=state.p_triple(), Tc=state.T_critical(), Pc=state.p_critical(),
+                  melting=state.has_melting_line())
+    return state, limits
+
+
+@functools.lru_cache(maxsize=1)
+def _coolprop():
+    import CoolProp
+
+    inputs = {"T,P": CoolProp.PT_INPUTS, "T,v": CoolProp.DmolarT_INPUTS, "P,v": CoolProp.DmolarP_INPUTS,
+              "T,quality": CoolProp.QT_INPUTS, "P,quality": CoolProp.PQ_INPUTS}
+    phases = {
+        CoolProp.iphase_liquid: "liquid", CoolProp.iphase_supercritical_liquid: "liquid",
+        CoolProp.iphase_gas: "vapor", CoolProp.iphase_supercritical_gas: "vapor",
+        CoolProp.iphase_supercritical: "supercritical", CoolProp.iphase_critical_point: "supercritical",
+        CoolProp.iphase_twophase: "two-phase",
+    }
+    return CoolProp, inputs, phases
+
+
+def reference_limits(fluid) -> dict:
+    """Range of the fluid's reference equation: T_min (triple point) [K], T_max [K], P_max [Pa],
+    P_triple [Pa], Tc [K], Pc [Pa]; raises InputError for a fluid without a library name."""
+    name = _library_name(fluid)
+    return {k: v for k, v in _abstract_state(name)[1].items() if k != "melting"}
+
+
+def _library_name(fluid) -> str:
+    name = getattr(fluid, "library_name", None)
+    if not name:
+        raise InputError(f"Fluid {getattr(fluid, 'name', fluid)!r} has no library_name, so it has no "
+                         "reference equation; use a library fluid (get_fluid) to cross-check.")
+    return name
+
+
+def _limit_reason(limits, T, P):
+    """Why (T, P) is outside the reference, or "" when it is inside (NaN means not known yet)."""
+    if T == T and T < limits["T_min"]:
+        return (f"T = {T:.6g} K is below the triple point of the reference equation "
+                f"({limits['T_min']:.6g} K): solid or outside its range")
+    if T == T and T > limits["T_max"]:
+        return f"T = {T:.6g} K is above the reference equation's upper limit of {limits['T_max']:.6g} K"
+    if P == P and P > limits["P_max"]:
+        return f"P = {P:.6g} Pa is above the reference equation's upper limit of {limits['P_max']:.6g} Pa"
+    return ""
+
+
+def _solid_reason(state, limits, T, P):
+    """A reason when (T, P) lies on the solid side of the melting line, else ""."""
+    if not limits["melting"] or not (P > limits["P_triple"]):
+        return ""
+    CoolProp = _coolprop()[0]
+    try:
+        T_melt = state.melting_line(CoolProp.iT, CoolProp.iP, P)
+    except ValueError:
+        return ""
+    if T < T_melt:
+        return f"solid: T = {T:.6g} K is below the melting temperature {T_melt:.6g} K at P = {P:.6g} Pa"
+    return ""
+
+
+def _reference_chunk(library_name: str, pair: str, a, b, with_saturation: bool = True) -> dict:
+    """Evaluate the reference at the knowns (a, b) of ``pair`` (SI), one state at a time.
+
+    Module-level and fed only with a name and arrays, so it can be sent to worker processes.
+    Returns a dict of arrays: T, P, v, quality, P_sat (at T), T_sat (at P), v_liquid,
+    v_vapor (saturated, at T), phase and reason ("" where available).
+    """
+    CoolProp, inputs, phases = _coolprop()
+    a, b = np.broadcast_arrays(np.asarray(a, dtype=float).ravel(), np.asarray(b, dtype=float).ravel())
+    n = a.size
+    out = {k: np.full(n, np.nan) for k in _FIELDS}
+    out["phase"] = np.full(n, "", dtype=object)
+    out["reason"] = np.full(n, "", dtype=object)
+    state, limits = _abstract_state(library_name)
+    key = inputs[pair]
+    first, second = pair.split(",")
+    for i in range(n):
+        x, y = float(a[i]), float(b[i])
+        if not (math.isfinite(x) and math.isfinite(y)):
+            out["reason"][i] = "the model state is not finite (it did not solve)"
+            continue
+        T = x if first == "T" else math.nan
+        P = x if first == "P" else (y if second == "P" else math.nan)
+        reason = _limit_reason(limits, T, P)
+        if not reason and second == "v" and y <= 0.0:
+            reason = f"v = {y:.6g} m3/mol is not positive"
+        if not reason and second == "quality" and not 0.0 <= y <= 1.0:
+            reason = f"quality = {y:.6g} is outside [0, 1]"
+        if not reason and second == "quality":
+            critical = limits["Tc"] if first == "T" else limits["Pc"]
+            if x > critical:
+                unit = "K" if first == "T" else "Pa"
+                reason = (f"{first} = {x:.6g} {unit} is above the reference's critical value "
+                          f"{critical:.6g} {unit}: no saturation there")
+        if reason:
+            out["reason"][i] = reason
+            continue
+        try:
+            if pair == "T,P":
+                state.update(key, P, T)
+            elif second == "v":
+                state.update(key, 1.0 / y, x)
+            elif pair == "T,quality":
+                state.update(key, y, x)
+            else:
+                state.update(key, x, y)
+            T, P = state.T(), state.p()
+            reason = _limit_reason(limits, T, P) or _solid_reason(state, limits, T, P)
+            if reason:
+                out["reason"][i] = reason
+                continue
+            out["T"][i], out["P"][i], out["v"][i] = T, P, 1.0 / state.rhomolar()
+            phase = phases.get(state.phase(), "")
+            if phase == "two-phase":
+                out["quality"][i] = state.Q()
+            out["phase"][i] = phase
+        except ValueError as error:
+            out["reason"][i] = f"the reference equation failed here: {error}"
+            continue
+        if with_saturation:
+            _saturation_into(out, i, state, limits, T, P)
+    return out
+
+
+def _saturation_into(out, i, state, limits, T, P):
+    """Saturation pressure and volumes at T, saturation temperature at P (NaN where none)."""
+    CoolProp = _coolprop()[0]
+    try:
+        if limits["T_min"] <= T < limits["Tc"]:
+            state.update(CoolProp.QT_INPUTS, 0.0, T)
+            out["P_sat"][i] = state.p()
+            out["v_liquid"][i] = 1.0 / state.saturated_liquid_keyed_output(CoolProp.iDmolar)
+            out["v_vapor"][i] = 1.0 / state.saturated_vapor_keyed_output(CoolProp.iDmolar)
+        if limits["P_triple"] <= P < limits["Pc"]:
+            state.update(CoolProp.PQ_INPUTS, P, 0.0)
+            out["T_sat"][i] = state.T()
+    except ValueError:
+        pass  # saturation is a supplement: its failure leaves NaN, not an unavailable state
+
+
+def _resolve_progress(progress, n):
+    if progress == "auto":
+        return n > AUTO_PROGRESS_ABOVE
+    if progress in (True, False):
+        return bool(progress)
+    raise InputError(f"progress={progress!r}: give True, False or 'auto'.")
+
+
+def evaluate_reference(library_name: str, pair: str, a, b, *, with_saturation: bool = True,
+                       progress=False, executor=None, chunk_size: int | None = None,
+                       on_interrupt: str = "raise"):
+    """Reference values at many knowns, in chunks, with progress, interruption and workers.
+
+    Parameters
+    ----------
+    library_name : str
+        CoolProp's fluid name.
+    pair : {"T,P", "T,v", "P,v", "T,quality", "P,quality"}
+        Which knowns ``a`` and ``b`` are (SI: T [K], P [Pa], v [m^3/mol], quality [-]).
+    a, b : array_like
+        The knowns, broadcast together and flattened.
+    with_saturation : bool
+        Also evaluate saturation at each state's T and P (about twice the work).
+    progress : bool or "auto"
+        A tqdm progress bar; "auto" shows one above :data:`AUTO_PROGRESS_ABOVE` states.
+    executor : concurrent.futures.Executor, optional
+        Spread the chunks over its workers; only the fluid name and arrays are sent.
+    chunk_size : int, optional
+        States per chunk (default :data:`DEFAULT_CHUNK`).
+    on_interrupt : {"raise", "partial"}
+        On KeyboardInterrupt, re-raise, or return what the finished chunks computed
+        (states not reached get the reason :data:`INTERRUPTED`).
+
+    Returns
+    -------
+    (values, completed) : (dict of numpy.ndarray, int)
+        The arrays of :func:`_reference_chunk` in input order, and how many leading states
+        were evaluated (all of them unless interrupted).
+    """
+    if pair not in REFERENCE_PAIRS:
+        raise InputError(f"pair={pair!r} is not one of {', '.join(REFERENCE_PAIRS)}.")
+    if on_interrupt not in ("raise", "partial"):
+        raise InputError(f"on_interrupt={on_interrupt!r}: give 'raise' or 'partial'.")
+    a, b = np.broadcast_arrays(np.asarray(a, dtype=float).ravel(), np.asarray(b, dtype=float).ravel())
+    n = a.size
+    size = int(chunk_size or DEFAULT_CHUNK)
+    if size < 1:
+        raise InputError(f"chunk_size={chunk_size!r} must be a positive whole number.")
+    starts = list(range(0, n, size)) or [0]
+    show = _resolve_progress(progress, n)
+    pieces, completed = [], 0
+    from tqdm.auto import tqdm
+
+    bar = tqdm(total=n, disable=not show, desc=f"reference {library_name}", unit="state", leave=False)
+    futures = []
+    try:
+        if executor is None:
+            for s in starts:
+                pieces.append(_reference_chunk(library_name, pair, a[s:s + size], b[s:s + size], with_saturation))
+                completed = min(n, s + size)
+                bar.update(completed - bar.n)
+        else:
+            futures = [executor.submit(_reference_chunk, library_name, pair, a[s:s + size], b[s:s + size],
+                                       with_saturation) for s in starts]
+            for s, fut in zip(starts, futures):
+                pieces.append(fut.result())
+                completed = min(n, s + size)
+                bar.update(completed - bar.n)
+    except KeyboardInterrupt:
+        for fut in futures:
+            fut.cancel()
+        if on_interrupt == "raise":
+            raise
+    finally:
+        bar.close()
+    rest = _unavailable_values(n - completed, INTERRUPTED)
+    values = {k: np.concatenate([p[k] for p in pieces] + [rest[k]]) for k in rest}
+    return values, completed
+
+
+# --------------------------------------------------------------------------- reference states
+
+@dataclass(frozen=True)
+class ReferenceState:
+    """The reference equation at given knowns. Scalars for scalar knowns, arrays otherwise.
+
+    Attributes
+    ----------
+    fluid : Fluid
+    T : temperature [K]
+    P : pressure [Pa]
+    v : molar volume [m^3/mol] (mixture mean in the two-phase region)
+    phase : "liquid", "vapor", "supercritical", "two-phase" ("" where unavailable)
+    quality : vapour mole fraction [-] in the two-phase region, else NaN
+    P_sat : saturation pressure at T [Pa], NaN at or above Tc
+    T_sat : saturation temperature at P [K], NaN at or above Pc
+    v_liquid, v_vapor : saturated volumes at T [m^3/mol]
+    available : bool
+    reason : why a state is unavailable ("" where available)
+    completed : how many leading states were evaluated (less than the size if interrupted)
+    """
+
+    fluid: object = field(repr=False)
+    T: object
+    P: object
+    v: object
+    phase: object
+    quality: object = field(repr=False)
+    P_sat: object = field(repr=False)
+    T_sat: object = field(repr=False)
+    v_liquid: object = field(repr=False)
+    v_vapor: object = field(repr=False)
+    available: object = field(repr=False)
+    reason: object = field(repr=False)
+    completed: int = field(repr=False, default=0)
+
+    @property
+    def Z(self):
+        """Compressibility factor P v / (R T) [-]."""
+        return _scalar_or_array(np.asarray(self.P) * np.asarray(self.v) / (R * np.asarray(self.T)))
+
+    @property
+    def rho_mass(self):
+        """Mass density [kg/m^3]."""
+        return _scalar_or_array(self.fluid.molar_mass / np.asarray(self.v))
+
+    def __repr__(self):
+        if np.ndim(self.T):
+            return (f"ReferenceState({self.fluid.name!r}, {np.size(self.T)} states, "
+                    f"{int(np.sum(self.available))} available)")
+        if not self.available:
+            return f"ReferenceState({self.fluid.name!r}, unavailable: {self.reason})"
+        return (f"ReferenceState({self.fluid.name!r}, T={self.T:.6g} K, P={self.P:.6g} Pa, "
+                f"v={self.v:.6g} m3/mol, phase={self.phase!r})")
+
+    def _repr_html_(self):
+        return f"<pre>{html.escape(repr(self))}</pre>"
+
+
+def _shape_values(values, shape):
+    def shaped(x):
+        x = np.asarray(x).reshape(shape)
+        return x.item() if shape == () else x
+
+    return {k: shaped(x) for k, x in values.items()}
+
+
+def _unavailable_values(n, reason):
+    out = {k: np.full(n, np.nan) for k in _FIELDS}
+    out["phase"] = np.full(n, "", dtype=object)
+    out["reason"] = np.full(n, reason, dtype=object)
+    return out
+
+
+def reference_state(fluid, *, with_saturation: bool = True, progress=False, executor=None,
+                    chunk_size=None, **knowns) -> ReferenceState:
+    """The reference equation of the fluid at two knowns.
+
+    Parameters
+    ----------
+    fluid : Fluid
+        A library fluid (with ``library_name``).
+    with_saturation, progress, executor, chunk_size
+        As in :func:`evaluate_reference`.
+    **knowns
+        Two of T [K], P [Pa], v [m^3/mol], rho [mol/m^3], rho_mass [kg/m^3], quality [-]
+        in the pairs (T, P), (T, v), (P, v), (T, quality), (P, quality); numbers (SI),
+        arrays, or text with units.
+
+    Returns
+    -------
+    ReferenceState
+        Unavailable states (and a user fluid without a library name) carry a reason.
+
+    References
+    ----------
+    Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp).
+    """
+    pair, a, b = _reference_knowns(fluid, knowns)
+    shape = np.broadcast(a, b).shape
+    if not getattr(fluid, "library_name", None):
+        values, completed = _unavailable_values(int(np.prod(shape)), _no_library_reason(fluid)), 0
+    else:
+        values, completed = evaluate_reference(fluid.library_name, pair, a, b, with_saturation=with_saturation,
+                                               progress=progress, executor=executor, chunk_size=chunk_size)
+    reason = values.pop("reason")
+    shaped = _shape_values({**values, "reason": reason, "available": reason == ""}, shape)
+    return ReferenceState(fluid=fluid, completed=completed, **shaped)
+
+
+def _no_library_reason(fluid):
+    return f"fluid {getattr(fluid, 'name', fluid)!r} is a user fluid without a reference equation (no library_name)"
+
+
+def _reference_knowns(fluid, knowns):
+    if len(knowns) != 2:
+        raise InputError(f"Give exactly two knowns, got {', '.join(knowns) or 'none'}; "
+                         "e.g. reference_state(fluid, T=300.0, P=1e5).")
+    si = {k: np.asarray(to_si(val, k, molar_mass=fluid.molar_mass), dtype=float) for k, val in knowns.items()}
+    if "rho" in si:
+        si["v"] = 1.0 / si.pop("rho")
+    if "rho_mass" in si:
+        si["v"] = fluid.molar_mass / si.pop("rho_mass")
+    for pair in REFERENCE_PAIRS:
+        first, second = pair.split(",")
+        if set(si) == {first, second}:
+            return pair, si[first], si[second]
+    raise InputError(f"The reference takes the pairs {', '.join(REFERENCE_PAIRS)}; got {', '.join(knowns)}.")
+
+
+# --------------------------------------------------------------------------- saturation
+
+@dataclass(frozen=True)
+class ReferenceSaturation:
+    """Saturation of the reference equation at T or P; NaN and a reason where unavailable.
+
+    Attributes: T [K], P [Pa], v_liquid, v_vapor [m^3/mol], available, reason.
+    """
+
+    fluid: object = field(repr=False)
+    T: object
+    P: object
+    v_liquid: object
+    v_vapor: object
+    available: object = field(repr=False)
+    reason: object = field(repr=False)
+
+    def __repr__(self):
+        if np.ndim(self.T):
+            return f"ReferenceSaturation({self.fluid.name!r}, {np.size(self.T)} points)"
+        return (f"ReferenceSaturation({self.fluid.name!r}, T={self.T:.6g} K, P={self.P:.6g} Pa, "
+                f"v_liquid={self.v_liquid:.6g} m3/mol, v_vapor={self.v_vapor:.6g} m3/mol)")
+
+    def _repr_html_(self):
+        return f"<pre>{html.escape(repr(self))}</pre>"
+
+
+def reference_saturation(fluid, T=None, P=None) -> ReferenceSaturation:
+    """Saturation pressure (given T) or temperature (given P) of the reference equation.
+
+    Parameters
+    ----------
+    fluid : Fluid
+    T : float, array_like or str, optional
+        Temperature [K].
+    P : float, array_like or str, optional
+        Pressure [Pa]. Give exactly one of T and P.
+
+    Returns
+    -------
+    ReferenceSaturation
+        NaN with a reason above the critical point, below the triple point, or for a
+        user fluid.
+
+    References
+    ----------
+    Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp).
+    """
+    if (T is None) == (P is None):
+        raise InputError("reference_saturation() needs exactly one of T= or P=.")
+    known = {"T": T} if T is not None else {"P": P}
+    x = np.asarray(to_si(*next(iter(known.items()))[::-1]), dtype=float)
+    ref = reference_state(fluid, quality=np.zeros(x.shape), **{k: x for k in known})
+    T_out = ref.T if T is None else _scalar_or_array(x)
+    P_out = ref.P if P is None else _scalar_or_array(x)
+    return ReferenceSaturation(fluid, T_out, P_out, ref.v_liquid, ref.v_vapor, ref.available, ref.reason)
+
+
+# --------------------------------------------------------------------------- cross-check
+
+@dataclass(frozen=True)
+class CrossCheck:
+    """A model state beside the reference equation at the same knowns.
+
+    Scalars for a scalar state, arrays for an array state. Deviations are
+    100 (model - reference) / reference [%]; NaN where they do not apply or the reference
+    is unavailable.
+
+    Attributes
+    ----------
+    available : bool
+    reason : str, "" where available
+    reference_v : molar volume [m^3/mol] of the reference at the state's knowns
+    reference_Z : [-]
+    reference_rho_mass : [kg/m^3]
+    reference_P : pressure [Pa] of the reference at the knowns (at the model's (T, v)
+        for states whose knowns include v)
+    reference_T : temperature [K] of the reference at the knowns
+    reference_phase : "liquid", "vapor", "supercritical", "two-phase" ("" if unavailable)
+    deviation_v_percent : 100 (v_model - v_ref)/v_ref; NaN for states whose volume was
+        given (compare the pressure there)
+    deviation_rho_percent : 100 (rho_model - rho_ref)/rho_ref, likewise
+    deviation_P_percent : 100 (P_model - P_ref)/P_ref for states whose knowns include v,
+        and for (T, quality) states (saturation pressure); NaN where P was given
+    deviation_T_K : T_model - T_ref [K] for (P, quality) states; NaN elsewhere
+    phase_agrees : model and reference phase are the same (False where unavailable)
+    reference_P_sat : saturation pressure at T [Pa], NaN at or above Tc
+    reference_T_sat : saturation temperature at P [K], NaN at or above Pc
+    reference_v_liquid, reference_v_vapor : saturated volumes at T [m^3/mol]
+    reference_quality : vapour mole fraction [-] where the reference is two-phase
+    completed : how many leading states were checked (less than the size if interrupted)
+    """
+
+    state: object = field(repr=False)
+    available: object
+    reason: object
+    reference_v: object
+    reference_Z: object = field(repr=False)
+    reference_rho_mass: object = field(repr=False)
+    reference_P: object = field(repr=False)
+    reference_T: object = field(repr=False)
+    reference_phase: object = field(repr=False)
+    deviation_v_percent: object = field(repr=False)
+    deviation_rho_percent: object = field(repr=False)
+    deviation_P_percent: object = field(repr=False)
+    deviation_T_K: object = field(repr=False)
+    phase_agrees: object = field(repr=False)
+    reference_P_sat: object = field(repr=False)
+    reference_T_sat: object = field(repr=False)
+    reference_v_liquid: object = field(repr=False)
+    reference_v_vapor: object = field(repr=False)
+    reference_quality: object = field(repr=False)
+    completed: int = field(repr=False, default=0)
+
+    #: Names of the per-state fields, in display order (for tables).
+    FIELDS = ("available", "reason", "reference_v", "reference_Z", "reference_rho_mass", "reference_P",
+              "reference_T", "reference_phase", "deviation_v_percent", "deviation_rho_percent",
+              "deviation_P_percent", "deviation_T_K", "phase_agrees", "reference_P_sat", "reference_T_sat",
+              "reference_v_liquid", "reference_v_vapor", "reference_quality")
+
+    def __repr__(self):
+        s = self.state
+        if np.ndim(self.available):
+            dev = np.asarray(self.deviation_v_percent, dtype=float)
+            mean = np.nanmean(np.abs(dev)) if np.any(np.isfinite(dev)) else math.nan
+            return (f"CrossCheck({s.model.fluid.name!r}, {s.model.name}, {np.size(self.available)} states, "
+                    f"{int(np.sum(self.available))} available, mean |deviation v| = {mean:.3g} %)")
+        if not self.available:
+            return f"CrossCheck({s.model.fluid.name!r}, {s.model.name}, unavailable: {self.reason})"
+        main = (f"deviation P = {self.deviation_P_percent:+.3g} %" if math.isnan(self.deviation_v_percent)
+                else f"deviation v = {self.deviation_v_percent:+.3g} %")
+        return (f"CrossCheck({s.model.fluid.name!r}, {s.model.name}, {main}, "
+                f"phase {s.phase!r} vs reference {self.reference_phase!r})")
+
+    def rows(self) -> list[tuple[str, str, str, str]]:
+        """(quantity [unit], model, reference, deviation) rows of a scalar cross-check."""
+        if np.ndim(self.available):
+            raise InputError("rows() shows one state; cross-check a scalar state or index the arrays.")
+        s = self.state
+        M = s.model.fluid.molar_mass
+
+        def fmt(x, scale=1.0, digits=6):
+            return "-" if x is None or not np.isfinite(x) else f"{x * scale:.{digits}g}"
+
+        def dev(x, unit="%"):
+            return "-" if not np.isfinite(x) else f"{x:+.3g} {unit}"
+
+        dev_v, dev_rho = self.deviation_v_percent, self.deviation_rho_percent
+        rows = [
+            ("Phase", str(s.phase), self.reference_phase or "-", "agrees" if self.phase_agrees else "DIFFERS"),
+            ("Temperature [K]", fmt(s.T), fmt(self.reference_T), dev(self.deviation_T_K, "K")),
+            ("Pressure [bar]", fmt(s.P, 1e-5), fmt(self.reference_P, 1e-5), dev(self.deviation_P_percent)),
+            ("Molar volume [L/mol]", fmt(s.v, 1e3), fmt(self.reference_v, 1e3), dev(dev_v)),
+            ("Mass density [kg/m³]", fmt(s.rho_mass), fmt(self.reference_rho_mass), dev(dev_rho)),
+            ("Compressibility factor Z [-]", fmt(s.Z), fmt(self.reference_Z), dev(_percent(s.Z, self.reference_Z))),
+            ("Saturation pressure at T [bar]", fmt(s.P_sat, 1e-5), fmt(self.reference_P_sat, 1e-5),
+             dev(_percent(s.P_sat, self.reference_P_sat))),
+        ]
+        if s.phase == "two-phase" or self.reference_phase == "two-phase":
+            rows += [
+                ("Vapour quality [-]", fmt(s.quality, digits=4), fmt(self.reference_quality, digits=4), "-"),
+                ("Saturation temperature at P [K]", fmt(s.T_sat), fmt(self.reference_T_sat),
+                 dev(np.asarray(s.T_sat) - self.reference_T_sat, "K")),
+                ("Saturated liquid density [kg/m³]", fmt(M / s.v_liquid), fmt(M / self.reference_v_liquid),
+                 dev(_percent(self.reference_v_liquid, s.v_liquid))),
+                ("Saturated vapour density [kg/m³]", fmt(M / s.v_vapor), fmt(M / self.reference_v_vapor),
+                 dev(_percent(self.reference_v_vapor, s.v_vapor))),
+            ]
+        return rows
+
+    def _repr_html_(self):
+        s = self.state
+        title = html.escape(f"{s.model.fluid.name} — {s.model.name} against the reference equation (CoolProp HEOS)")
+        caution = f"<p style='font-size:smaller'><b>Caution.</b> {html.escape(CAUTION)}</p>"
+        if np.ndim(self.available) or not self.available:
+            return f"<div><p><b>{title}</b></p><pre>{html.escape(repr(self))}</pre>{caution}</div>"
+        head = "<tr><th>quantity</th><th>model</th><th>reference</th><th>deviation</th></tr>"
+        body = "".join("<tr>" + "".join(f"<td>{html.escape(c)}</td>" for c in row) + "</tr>" for row in self.rows())
+        return f"<div><table><caption>{title}</caption>{head}{body}</table>{caution}</div>"
+
+
+def _percent(model, reference):
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return _scalar_or_array(100.0 * (np.asarray(model, dtype=float) - reference) / reference)
+
+
+def state_pair(state) -> str:
+    """The reference pair for a model state: (T, P); (T, v) for any state with a volume
+    known (the model's T then stands beside v); or (T|P, quality)."""
+    names = set(state.knowns)
+    if "quality" in names:
+        return "T,quality" if "T" in names else "P,quality"
+    if names == {"T", "P"}:
+        return "T,P"
+    return "T,v"
+
+
+def cross_check(state, *, progress=False, executor=None, chunk_size=None, on_interrupt="raise",
+                with_saturation=True) -> CrossCheck:
+    """Compare a solved model state with the fluid's reference equation at the same knowns.
+
+    Parameters
+    ----------
+    state : State
+        From :func:`thermo_roots.solve`, scalar or array.
+    progress : bool or "auto"
+        A tqdm progress bar over the states.
+    executor : concurrent.futures.Executor, optional
+        Spread the reference evaluations over workers (in chunks).
+    chunk_size : int, optional
+        States per chunk.
+    on_interrupt : {"raise", "partial"}
+        On KeyboardInterrupt, re-raise (default) or return the states checked so far
+        (``completed`` tells how many; the rest are unavailable with reason
+        :data:`INTERRUPTED`).
+    with_saturation : bool
+        Also evaluate the reference saturation at each state's T and P.
+
+    Returns
+    -------
+    CrossCheck
+        Unavailable where the reference has no answer (below its triple point, beyond its
+        limits, solid, a user fluid); never raises for such states.
+
+    Notes
+    -----
+    (T, P) states are compared at (T, P); states whose knowns include a volume at the
+    model's (T, v), which yields the pressure deviation; quality states on the saturation
+    line at the same T (or P) and quality.
+
+    References
+    ----------
+    Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp).
+    Span, R. & Wagner, W. (1996), J. Phys. Chem. Ref. Data 25, 1509-1596 (CO2); Wagner, W. &
+    Pruss, A. (2002), J. Phys. Chem. Ref. Data 31, 387-535 (water): two of the reference
+    equations behind it.
+    """
+    pair = state_pair(state)
+    T, P, v = (np.asarray(getattr(state, k), dtype=float) for k in ("T", "P", "v"))
+    first, second = pair.split(",")
+    a = T if first == "T" else P
+    b = {"P": P, "v": v}.get(second)
+    if b is None:
+        b = np.asarray(state.knowns["quality"], dtype=float) * np.ones_like(a)
+    shape = np.shape(state.T)
+    fluid = state.model.fluid
+    if not getattr(fluid, "library_name", None):
+        values, completed = _unavailable_values(int(np.prod(shape)), _no_library_reason(fluid)), 0
+    else:
+        values, completed = evaluate_reference(fluid.library_name, pair, a, b, with_saturation=with_saturation,
+                                               progress=progress, executor=executor, chunk_size=chunk_size,
+                                               on_interrupt=on_interrupt)
+    return _combine(state, pair, values, completed)
+
+
+def _combine(state, pair, ref, completed):
+    """Deviations of the model state from reference values (flat arrays in state order)."""
+    shape = np.shape(state.T)
+    flat = {k: np.asarray(getattr(state, k), dtype=float).ravel() for k in ("T", "P", "v")}
+    phase = np.asarray(state.phase, dtype=object).ravel()
+    available = ref["reason"] == ""
+    nan = np.full(flat["T"].shape, np.nan)
+    volume_known = pair in ("T,v",)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        dev_v = nan if volume_known else 100.0 * (flat["v"] - ref["v"]) / ref["v"]
+        dev_rho = nan if volume_known else 100.0 * (ref["v"] / flat["v"] - 1.0)
+        dev_P = 100.0 * (flat["P"] - ref["P"]) / ref["P"] if pair in ("T,v", "T,quality") else nan
+        dev_T = flat["T"] - ref["T"] if pair == "P,quality" else nan
+        Z = ref["P"] * ref["v"] / (R * ref["T"])
+        rho_mass = state.model.fluid.molar_mass / ref["v"]
+    values = dict(
+        available=available, reason=ref["reason"], reference_v=ref["v"], reference_Z=Z,
+        reference_rho_mass=rho_mass, reference_P=ref["P"], reference_T=ref["T"], reference_phase=ref["phase"],
+        deviation_v_percent=dev_v, deviation_rho_percent=dev_rho, deviation_P_percent=dev_P,
+        deviation_T_K=dev_T, phase_agrees=available & (phase == ref["phase"]),
+        reference_P_sat=ref["P_sat"], reference_T_sat=ref["T_sat"], reference_v_liquid=ref["v_liquid"],
+        reference_v_vapor=ref["v_vapor"], reference_quality=ref["quality"],
+    )
+    return CrossCheck(state=state, completed=completed, **_shape_values(values, shape))
+
+
+# --------------------------------------------------------------------------- volume translation
+
+def fit_volume_shift(model_class, fluid, Tr: float = 0.7) -> float:
+    """Volume translation c [m^3/mol] that matches the reference saturated-liquid volume at Tr.
+
+    c = v_liquid,model(T) - v_liquid,reference(T) at T = Tr Tc, from the untranslated
+    model; then ``model_class(fluid, volume_shift=c)`` reproduces the reference's
+    saturated-liquid volume there, and its saturation pressures are unchanged.
+
+    Parameters
+    ----------
+    model_class : type, str or model
+        A cubic model class (e.g. ``PengRobinson``), its short name ("PR"), or a model
+        instance (its class is used, untranslated).
+    fluid : Fluid
+        A library fluid.
+    Tr : float
+        Reduced temperature T/Tc of the match [-], default 0.7 (where the acentric factor
+        is defined).
+
+    Returns
+    -------
+    float
+        c [m^3/mol].
+
+    Raises
+    ------
+    DomainError
+        Tr not in (0, 1), or the reference has no saturated liquid at that temperature.
+
+    References
+    ----------
+    Peneloux, A., Rauzy, E. & Freze, R. (1982), Fluid Phase Equilib. 8, 7-23 (a constant
+    translation leaves the phase equilibrium unchanged).
+    """
+    from .models import MODELS, CubicModel
+
+    if isinstance(model_class, str):
+        if model_class not in MODELS:
+            raise InputError(f"Unknown model {model_class!r}; allowed: {', '.join(MODELS)}.")
+        model_class = MODELS[model_class]
+    elif isinstance(model_class, CubicModel):
+        model_class = type(model_class)
+    if not (isinstance(model_class, type) and issubclass(model_class, CubicModel)):
+        raise InputError(f"fit_volume_shift needs a cubic model class such as PengRobinson, not {model_class!r}.")
+    if not 0.0 < Tr < 1.0:
+        raise DomainError(f"Tr = {Tr!r} must lie between 0 and 1 (a saturated liquid exists only below Tc).")
+    T = Tr * fluid.Tc
+    ref = reference_saturation(fluid, T=T)
+    if not ref.available:
+        lowest = reference_limits(fluid)["T_min"] / fluid.Tc
+        raise DomainError(f"The reference has no saturated liquid of {fluid.name} at Tr = {Tr:.6g} (T = {T:.6g} K): "
+                          f"{ref.reason}. Choose Tr between {lowest:.4g} (its triple point) and 1, e.g. "
+                          f"Tr={max(0.7, math.ceil(lowest * 20) / 20):.2f}.")
+    model = model_class(fluid)
+    return float(saturation(model, T=T).v_liquid - ref.v_liquid)
