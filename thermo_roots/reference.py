@@ -55,7 +55,7 @@ def _abstract_state(library_name: str):
     state = CoolProp.AbstractState("HEOS", library_name)
     limits = dict(T_min=max(state.Tmin(), state.Ttriple()), T_max=state.Tmax(), P_max=state.pmax(),
                   P_triple=state.p_triple(), Tc=state.T_critical(), Pc=state.p_critical(),
-                  melting=state.has_melting_line())
+                  v_c=1.0 / state.rhomolar_critical(), melting=state.has_melting_line())
     return state, limits
 
 
@@ -76,7 +76,8 @@ def _coolprop():
 
 def reference_limits(fluid) -> dict:
     """Range of the fluid's reference equation: T_min (triple point) [K], T_max [K], P_max [Pa],
-    P_triple [Pa], Tc [K], Pc [Pa]; raises InputError for a fluid without a library name."""
+    P_triple [Pa], and its critical point Tc [K], Pc [Pa], v_c [m^3/mol]; raises InputError
+    for a fluid without a library name."""
     name = _library_name(fluid)
     return {k: v for k, v in _abstract_state(name)[1].items() if k != "melting"}
 

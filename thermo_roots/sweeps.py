@@ -1,0 +1,542 @@
+"""Layer 7: sweeps of many states into pandas tables, with the reference beside them.
+
+Every function returns a :class:`pandas.DataFrame`, one row per state. Conventions:
+
+* Column names are plain (``T``, ``P``, ``v``, ``rho_mass``, ``reference_v``,
+  ``deviation_v_percent`` ...) and every value is SI. The unit of each column is in
+  ``frame.attrs["units"]`` (``{"T": "K", "P": "Pa", ...}``); "-" for a dimensionless
+  column, "" for text and flags.
+* ``frame.attrs`` also records ``fluid`` (name), ``fluid_constants`` (Tc [K], Pc [Pa],
+  omega, molar_mass [kg/mol], library_name), ``model`` (name), ``model_short_name``,
+  ``volume_shift`` [m^3/mol], ``table`` (what sweep), ``version`` (of thermo_roots),
+  ``caution`` and ``interrupted``.
+* Ranges: a list or array gives the values themselves (numbers in SI, or text with
+  units); a tuple ``(start, stop)`` or :func:`between` gives ``n`` evenly spaced values
+  (logarithmically for pressures and volumes, linearly for temperatures, unless
+  ``log=`` says otherwise); a single number or text is one value.
+* ``reference=True`` adds the cross-check with the reference equation per state
+  (see :func:`thermo_roots.reference.cross_check`): ``progress`` shows a bar,
+  ``executor`` spreads the work over processes, and an interruption (Ctrl-C, the
+  notebook's stop button) returns the rows finished so far with
+  ``attrs["interrupted"] = True`` and a warning.
+
+References
+----------
+McKinney, W. (2010), Data Structures for Statistical Computing in Python, Proc. 9th
+Python in Science Conf., 56-61 (pandas).
+"""
+
+from __future__ import annotations
+
+import datetime
+import io
+import json
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from .errors import DomainError, InputError
+from .inversion import CAUTION, saturation, solve
+from .models import IdealGas, R
+from .reference import CrossCheck, cross_check, reference_limits, reference_saturation
+from .roots import find_root
+from .units import to_si
+
+#: Quantities whose ranges are spaced logarithmically by default.
+_LOG_QUANTITIES = ("P", "v", "rho", "rho_mass")
+#: Default number of points of a range.
+DEFAULT_POINTS = 60
+_REFERENCE_RENAME = {"available": "reference_available", "reason": "reference_reason"}
+
+
+@dataclass(frozen=True)
+class Span:
+    """``n`` values from ``start`` to ``stop`` (numbers in SI or text with units).
+
+    ``log=None`` spaces pressures and volumes logarithmically, temperatures linearly.
+    """
+
+    start: object
+    stop: object
+    n: int = DEFAULT_POINTS
+    log: bool | None = None
+
+    def __repr__(self):
+        return f"between({self.start!r}, {self.stop!r}, n={self.n})"
+
+
+def between(start, stop, n: int = DEFAULT_POINTS, log: bool | None = None) -> Span:
+    """A range for a sweep: ``n`` values from ``start`` to ``stop`` inclusive.
+
+    Parameters
+    ----------
+    start, stop : float or str
+        SI numbers or text with units ("1 bar", "80 degC").
+    n : int
+        Number of values (at least 2).
+    log : bool, optional
+        Logarithmic spacing; default: for pressures and volumes, not for temperatures.
+    """
+    if int(n) < 2:
+        raise InputError(f"n = {n!r}: a range needs at least 2 points.")
+    return Span(start, stop, int(n), log)
+
+
+def _values(spec, quantity, *, molar_mass, n=DEFAULT_POINTS, log=None):
+    """A sweep input to a 1-D SI array (see the module's conventions)."""
+    if isinstance(spec, tuple):
+        if len(spec) != 2:
+            raise InputError(f"A range is a tuple (start, stop); got {spec!r}. For given values pass a list.")
+        spec = Span(spec[0], spec[1], n, log)
+    if isinstance(spec, Span):
+        lo, hi = (float(to_si(x, quantity, molar_mass=molar_mass)) for x in (spec.start, spec.stop))
+        use_log = (quantity in _LOG_QUANTITIES) if spec.log is None else spec.log
+        if use_log:
+            if lo <= 0 or hi <= 0:
+                raise DomainError(f"A logarithmic range of {quantity} needs positive ends; got {lo:.6g} to {hi:.6g}.")
+            return np.geomspace(lo, hi, spec.n)
+        return np.linspace(lo, hi, spec.n)
+    if isinstance(spec, (list, np.ndarray, pd.Series, pd.Index)):
+        items = list(np.asarray(spec, dtype=object).ravel())
+        return np.array([float(to_si(x, quantity, molar_mass=molar_mass)) for x in items], dtype=float)
+    return np.atleast_1d(np.asarray(to_si(spec, quantity, molar_mass=molar_mass), dtype=float)).ravel()
+
+
+def _default_T(fluid, low, high):
+    """(low Tc, high Tc) [K], the low end raised to the reference's triple point if higher."""
+    lo = low * fluid.Tc
+    if fluid.library_name:
+        lo = max(lo, reference_limits(fluid)["T_min"])
+    return lo, high * fluid.Tc
+
+
+def _scalar(value, quantity, molar_mass=None):
+    x = np.asarray(to_si(value, quantity, molar_mass=molar_mass), dtype=float)
+    if x.ndim:
+        raise InputError(f"{quantity} is the fixed value of this sweep; give one value, not {x.size}.")
+    return float(x)
+
+
+# --------------------------------------------------------------------------- frames
+
+def _unit_of(column: str) -> str:
+    """The SI unit of a column, by its name."""
+    if column.endswith("_percent"):
+        return "%"
+    if column.endswith("_K"):
+        return "K"
+    base = column.removeprefix("reference_")
+    for prefix, unit in (("v_", "m3/mol"), ("rho_mass", "kg/m3"), ("rho", "mol/m3"), ("Z", "-"),
+                         ("quality", "-"), ("P_sat", "Pa"), ("T_sat", "K")):
+        if base.startswith(prefix):
+            return unit
+    return {"T": "K", "P": "Pa", "v": "m3/mol"}.get(base, "")
+
+
+def _attrs(model, table: str, **extra) -> dict:
+    fluid = model.fluid
+    attrs = {
+        "table": table,
+        "fluid": fluid.name,
+        "fluid_constants": {"Tc": fluid.Tc, "Pc": fluid.Pc, "omega": fluid.omega, "molar_mass": fluid.molar_mass,
+                            "library_name": fluid.library_name},
+        "model": model.name,
+        "model_short_name": model.short_name,
+        "volume_shift": float(getattr(model, "c", 0.0)),
+        "version": _version(),
+        "caution": CAUTION,
+        "interrupted": False,
+    }
+    attrs.update(extra)
+    return attrs
+
+
+def _version() -> str:
+    from . import __version__
+
+    return __version__
+
+
+def _finish(frame: pd.DataFrame, attrs: dict) -> pd.DataFrame:
+    attrs["units"] = {c: _unit_of(c) for c in frame.columns}
+    frame.attrs.update(attrs)
+    return frame
+
+
+def state_frame(state, *, reference=False, progress="auto", executor=None, chunk_size=None,
+                table="states", extra_attrs=None) -> pd.DataFrame:
+    """One row per state of a solved (array) State, optionally with the reference beside it.
+
+    Columns: T, P, v, rho, rho_mass, Z, phase, quality, v_liquid, v_vapor, metastable,
+    n_roots, v_root_1..v_root_3 (every real volume root, ascending, NaN where fewer), and
+    with ``reference=True`` the :class:`~thermo_roots.reference.CrossCheck` fields
+    (``available`` and ``reason`` as ``reference_available`` and ``reference_reason``).
+
+    Parameters
+    ----------
+    state : State
+    reference : bool
+    progress : bool or "auto"
+    executor : concurrent.futures.Executor, optional
+    chunk_size : int, optional
+    table : str
+        Recorded in ``attrs["table"]``.
+
+    Returns
+    -------
+    pandas.DataFrame
+        SI values; units in ``attrs["units"]``.
+    """
+    flat = {k: np.atleast_1d(np.asarray(getattr(state, k))).ravel()
+            for k in ("T", "P", "v", "rho", "rho_mass", "Z", "phase", "quality", "v_liquid", "v_vapor", "metastable")}
+    roots = np.asarray(state.root_volumes, dtype=float).reshape(-1, 3)
+    data = dict(flat)
+    data["phase"] = flat["phase"].astype(object)
+    data["n_roots"] = np.isfinite(roots).sum(axis=1)
+    for i in range(3):
+        data[f"v_root_{i + 1}"] = roots[:, i]
+    frame = pd.DataFrame(data)
+    attrs = _attrs(state.model, table, **(extra_attrs or {}))
+    if reference:
+        check = cross_check(state, progress=progress, executor=executor, chunk_size=chunk_size,
+                            on_interrupt="partial")
+        for name in CrossCheck.FIELDS:
+            frame[_REFERENCE_RENAME.get(name, name)] = np.atleast_1d(np.asarray(getattr(check, name))).ravel()
+        if check.completed < len(frame):
+            frame = frame.iloc[:check.completed].copy()
+            attrs["interrupted"] = True
+            warnings.warn(f"Interrupted: the reference cross-check finished {check.completed} of "
+                          f"{np.size(state.T)} states; the table holds those rows.", stacklevel=3)
+    return _finish(frame, attrs)
+
+
+def isotherm(model, T, P=None, v=None, *, n=DEFAULT_POINTS, log=None, branch="stable", reference=False,
+             progress="auto", executor=None, chunk_size=None) -> pd.DataFrame:
+    """States along an isotherm, by pressure or by molar volume.
+
+    Parameters
+    ----------
+    model : IdealGas or CubicModel
+    T : float or str
+        The temperature [K].
+    P : range, optional
+        Pressures [Pa]; the default is Pc/1000 to 3 Pc, logarithmic.
+    v : range, optional
+        Molar volumes [m^3/mol] instead of pressures (inside the dome the states are
+        two-phase at the saturation pressure). Give P or v, not both.
+    n, log : int, bool
+        Points and spacing of a (start, stop) range.
+    branch : {"stable", "liquid", "vapor"}
+        Root choice for (T, P) states, as in :func:`thermo_roots.solve`.
+    reference, progress, executor, chunk_size
+        The reference cross-check (module conventions).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns as in :func:`state_frame`; ``attrs["T"]`` the temperature [K].
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models, 2nd ed., ch. 3.
+    """
+    if P is not None and v is not None:
+        raise InputError("isotherm() takes P or v, not both.")
+    T = _scalar(T, "T")
+    M = model.fluid.molar_mass
+    if v is not None:
+        state = solve(model, T=T, v=_values(v, "v", molar_mass=M, n=n, log=log))
+    else:
+        P = (model.fluid.Pc / 1000.0, 3.0 * model.fluid.Pc) if P is None else P
+        state = solve(model, T=T, P=_values(P, "P", molar_mass=M, n=n, log=log), branch=branch)
+    return state_frame(state, reference=reference, progress=progress, executor=executor, chunk_size=chunk_size,
+                       table=f"isotherm at T = {T:.6g} K", extra_attrs={"T": T})
+
+
+def isobar(model, P, T=None, *, n=DEFAULT_POINTS, log=None, branch="stable", reference=False,
+           progress="auto", executor=None, chunk_size=None) -> pd.DataFrame:
+    """States along an isobar.
+
+    Parameters
+    ----------
+    model : IdealGas or CubicModel
+    P : float or str
+        The pressure [Pa] ("8 barg" is read against the standard atmosphere).
+    T : range, optional
+        Temperatures [K]; default 0.5 Tc (or the reference's triple point, if higher) to 1.5 Tc.
+    n, log, branch, reference, progress, executor, chunk_size
+        As in :func:`isotherm`.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``attrs["P"]`` the pressure [Pa].
+    """
+    P = _scalar(P, "P")
+    T = _values(_default_T(model.fluid, 0.5, 1.5) if T is None else T, "T", molar_mass=None, n=n, log=log)
+    state = solve(model, T=T, P=P, branch=branch)
+    return state_frame(state, reference=reference, progress=progress, executor=executor, chunk_size=chunk_size,
+                       table=f"isobar at P = {P:.6g} Pa", extra_attrs={"P": P})
+
+
+def state_grid(model, T, P, *, n=DEFAULT_POINTS, log=None, branch="stable", reference=False,
+               progress="auto", executor=None, chunk_size=None) -> pd.DataFrame:
+    """States on every (T, P) pair of two ranges, one row each (T varies slowest).
+
+    Parameters
+    ----------
+    model : IdealGas or CubicModel
+    T : range
+        Temperatures [K].
+    P : range
+        Pressures [Pa].
+    n, log, branch, reference, progress, executor, chunk_size
+        As in :func:`isotherm` (``n`` and ``log`` apply to each range).
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``attrs["grid_shape"]`` is (number of T, number of P).
+    """
+    Ts = _values(T, "T", molar_mass=None, n=n, log=log)
+    Ps = _values(P, "P", molar_mass=None, n=n, log=log)
+    TT, PP = np.meshgrid(Ts, Ps, indexing="ij")
+    state = solve(model, T=TT.ravel(), P=PP.ravel(), branch=branch)
+    return state_frame(state, reference=reference, progress=progress, executor=executor, chunk_size=chunk_size,
+                       table="state grid", extra_attrs={"grid_shape": [len(Ts), len(Ps)]})
+
+
+def isochore(model, v=None, *, rho=None, rho_mass=None, T=None, n=DEFAULT_POINTS, log=None, reference=False,
+             progress="auto", executor=None, chunk_size=None) -> pd.DataFrame:
+    """A closed vessel heated up: states at fixed molar volume along temperature.
+
+    Below Tc a vessel filled more densely than the critical density holds liquid and
+    vapour until the liquid has expanded to fill it (the *liquid-full* point), after which
+    the pressure climbs steeply with temperature; one filled less densely dries out
+    instead (the *vapor-full* point). That point is inserted as a row of its own
+    (column ``fill_point`` True) and recorded in ``attrs["fill_point"]``:
+    {"kind": "liquid-full" | "vapor-full", "T" [K], "P" [Pa]}, or None where the sweep has
+    none. With ``reference=True``, ``attrs["reference_fill_point"]`` gives the reference
+    equation's point (its saturated volume equal to the vessel's).
+
+    Parameters
+    ----------
+    model : CubicModel or IdealGas
+    v, rho, rho_mass : float or str
+        Exactly one: molar volume [m^3/mol], molar density [mol/m^3] or mass density
+        (fill mass over vessel volume) [kg/m^3].
+    T : range, optional
+        Temperatures [K]; default 0.6 Tc (or the reference's triple point, if higher) to 1.3 Tc.
+    n, log, reference, progress, executor, chunk_size
+        As in :func:`isotherm`.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns as in :func:`state_frame` plus ``fill_point``.
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models, 2nd ed., ch. 3; the
+    hydraulic overpressure of a liquid-full vessel is common practice in pressure-relief design.
+    """
+    given = {k: x for k, x in (("v", v), ("rho", rho), ("rho_mass", rho_mass)) if x is not None}
+    if len(given) != 1:
+        raise InputError(f"isochore() takes exactly one of v, rho, rho_mass; got {', '.join(given) or 'none'}.")
+    (name, value), = given.items()
+    M = model.fluid.molar_mass
+    x = _scalar(value, name, M)
+    v_fixed = {"v": x, "rho": 1.0 / x, "rho_mass": M / x}[name]
+    Ts = _values(_default_T(model.fluid, 0.6, 1.3) if T is None else T, "T", molar_mass=None, n=n, log=log)
+    point = fill_point(model, v_fixed, T_range=(Ts.min(), Ts.max()))
+    fill = np.zeros(Ts.size, bool)
+    if point is not None:
+        at = np.searchsorted(Ts, point["T"]) if np.all(np.diff(Ts) >= 0) else Ts.size
+        Ts = np.insert(Ts, at, point["T"])
+        fill = np.insert(fill, at, True)
+    state = solve(model, T=Ts, v=np.full(Ts.shape, v_fixed))
+    extra = {"v": v_fixed, "rho_mass": M / v_fixed, "fill_point": point}
+    if reference:
+        extra["reference_fill_point"] = reference_fill_point(model.fluid, v_fixed, T_range=(Ts.min(), Ts.max()))
+    frame = state_frame(state, reference=reference, progress=progress, executor=executor, chunk_size=chunk_size,
+                        table=f"isochore at v = {v_fixed:.6g} m3/mol ({M / v_fixed:.6g} kg/m3)", extra_attrs=extra)
+    frame["fill_point"] = fill[:len(frame)]
+    return _finish(frame, dict(frame.attrs))
+
+
+def _fill_temperature(saturated_volume, v, T_lo, T_hi):
+    """T where a saturated volume of T equals v, in [T_lo, T_hi] (None when no sign change)."""
+    def gap(T):
+        return saturated_volume(np.asarray(T, dtype=float)) / v - 1.0
+
+    g_lo, g_hi = gap(T_lo), gap(T_hi)
+    if not (np.isfinite(g_lo) and np.isfinite(g_hi)) or g_lo * g_hi > 0:
+        return None
+    result = find_root(gap, bracket=(T_lo, T_hi), xtol=1e-9, rtol=1e-12)
+    return float(result.root) if result.converged else None
+
+
+def fill_point(model, v, T_range=None):
+    """Where a closed vessel at molar volume v [m^3/mol] stops being two-phase in the model.
+
+    Returns {"kind": "liquid-full" | "vapor-full", "T" [K], "P" [Pa]} or None when the
+    vessel crosses no saturation line within ``T_range`` [K] (default 0.3 Tc to Tc).
+    """
+    if isinstance(model, IdealGas):
+        return None
+    Tc = model.fluid.Tc
+    lo, hi = T_range if T_range is not None else (0.3 * Tc, Tc)
+    lo, hi = max(lo, 0.3 * Tc), min(hi, Tc * (1.0 - 1e-9))
+    if lo >= hi:
+        return None
+    liquid = v < model.v_c
+    kind = "liquid-full" if liquid else "vapor-full"
+    T = _fill_temperature(lambda T: getattr(saturation(model, T=T), "v_liquid" if liquid else "v_vapor"), v, lo, hi)
+    if T is None:
+        return None
+    return {"kind": kind, "T": T, "P": float(saturation(model, T=T).P)}
+
+
+def reference_fill_point(fluid, v, T_range=None):
+    """The reference equation's liquid-full or vapor-full point of a vessel at v [m^3/mol]
+    (as :func:`fill_point`); None where the reference is unavailable or not crossed."""
+    if not getattr(fluid, "library_name", None):
+        return None
+    Tc = fluid.Tc
+    lo, hi = T_range if T_range is not None else (0.3 * Tc, Tc)
+    hi = min(hi, Tc * (1.0 - 1e-7))
+    limits = reference_limits(fluid)
+    liquid = v < limits["v_c"]
+    name = "v_liquid" if liquid else "v_vapor"
+    lo = max(lo, limits["T_min"])
+    T = _fill_temperature(lambda T: getattr(reference_saturation(fluid, T=T), name), v, lo, hi) if lo < hi else None
+    if T is None:
+        return None
+    return {"kind": "liquid-full" if liquid else "vapor-full", "T": T, "P": float(reference_saturation(fluid, T=T).P)}
+
+
+def saturation_curve(model, T=None, *, n=DEFAULT_POINTS, log=None, reference=False) -> pd.DataFrame:
+    """The model's saturation curve, optionally beside the reference's.
+
+    Parameters
+    ----------
+    model : CubicModel
+    T : range, optional
+        Temperatures [K], at most Tc; default from 0.5 Tc (or the reference's triple point,
+        if higher) to Tc.
+    n, log : int, bool
+        Points and spacing of a (start, stop) range.
+    reference : bool
+        Add reference_P, reference_v_liquid, reference_v_vapor, reference_rho_mass_liquid,
+        reference_rho_mass_vapor, deviation_P_percent, deviation_rho_liquid_percent,
+        deviation_rho_vapor_percent, reference_available and reference_reason.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns T, P (saturation pressure), v_liquid, v_vapor, rho_mass_liquid,
+        rho_mass_vapor, Z_liquid, Z_vapor.
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models, 2nd ed., ch. 11.
+    """
+    fluid = model.fluid
+    if T is None:
+        T = _default_T(fluid, 0.5, 1.0)
+    Ts = _values(T, "T", molar_mass=None, n=n, log=log)
+    sat = saturation(model, T=Ts)
+    M = fluid.molar_mass
+    v_l, v_v, P = (np.atleast_1d(np.asarray(x, dtype=float)) for x in (sat.v_liquid, sat.v_vapor, sat.P))
+    frame = pd.DataFrame({"T": Ts, "P": P, "v_liquid": v_l, "v_vapor": v_v, "rho_mass_liquid": M / v_l,
+                          "rho_mass_vapor": M / v_v, "Z_liquid": P * v_l / (R * Ts), "Z_vapor": P * v_v / (R * Ts)})
+    if reference:
+        ref = reference_saturation(fluid, T=Ts)
+        r_vl, r_vv, r_P = (np.atleast_1d(np.asarray(x, dtype=float)) for x in (ref.v_liquid, ref.v_vapor, ref.P))
+        with np.errstate(invalid="ignore", divide="ignore"):
+            frame["reference_P"] = r_P
+            frame["reference_v_liquid"], frame["reference_v_vapor"] = r_vl, r_vv
+            frame["reference_rho_mass_liquid"], frame["reference_rho_mass_vapor"] = M / r_vl, M / r_vv
+            frame["deviation_P_percent"] = 100.0 * (P / r_P - 1.0)
+            frame["deviation_rho_liquid_percent"] = 100.0 * (r_vl / v_l - 1.0)
+            frame["deviation_rho_vapor_percent"] = 100.0 * (r_vv / v_v - 1.0)
+        frame["reference_available"] = np.atleast_1d(ref.available)
+        frame["reference_reason"] = np.atleast_1d(np.asarray(ref.reason, dtype=object))
+    return _finish(frame, _attrs(model, "saturation curve"))
+
+
+# --------------------------------------------------------------------------- CSV
+
+_HEADER_MARK = "# "
+_ATTRS_LINE = "# attrs (JSON): "
+
+
+def to_csv(frame: pd.DataFrame, path) -> None:
+    """Write a sweep table as CSV under a commented header.
+
+    The header (lines starting with "#") states the fluid and its constants, the model,
+    the table, the package version, the date written, the units of every column and the
+    caution, and ends with the attrs as one JSON line so :func:`read_csv` restores them.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        A table from this module.
+    path : str or path-like
+    """
+    a = frame.attrs
+    fc = a.get("fluid_constants") or {}
+    lines = ["thermo_roots state table"]
+    if fc:
+        lines.append(f"fluid: {a.get('fluid')} (library name {fc.get('library_name')}); Tc = {fc['Tc']:.8g} K, "
+                     f"Pc = {fc['Pc']:.8g} Pa, omega = {fc['omega']:.6g}, molar mass = {fc['molar_mass']:.8g} kg/mol")
+    if "model" in a:
+        lines.append(f"model: {a['model']} ({a.get('model_short_name', '')}), volume shift c = "
+                     f"{a.get('volume_shift', 0.0):.6g} m3/mol")
+    lines.append(f"table: {a.get('table', '')}")
+    lines.append(f"written: {datetime.datetime.now().astimezone().isoformat(timespec='seconds')} by thermo_roots "
+                 f"{a.get('version', _version())}")
+    units = a.get("units") or {c: _unit_of(str(c)) for c in frame.columns}
+    lines.append("units: " + ", ".join(f"{c} [{u}]" if u else str(c) for c, u in units.items()))
+    lines.append(f"caution: {a.get('caution', CAUTION)}")
+    meta = dict(a)
+    meta["dtypes"] = {str(c): str(t) for c, t in frame.dtypes.items()}
+    text = "".join(_HEADER_MARK + line.replace("\n", " ") + "\n" for line in lines)
+    text += _ATTRS_LINE + json.dumps(meta, default=_json_default) + "\n"
+    with open(path, "w", encoding="utf-8", newline="") as handle:
+        handle.write(text)
+        frame.to_csv(handle, index=False, na_rep="NaN")
+
+
+def _json_default(x):
+    if isinstance(x, np.generic):
+        return x.item()
+    if isinstance(x, np.ndarray):
+        return x.tolist()
+    raise TypeError(f"{type(x).__name__} is not JSON serialisable")
+
+
+def read_csv(path) -> pd.DataFrame:
+    """Read a table written by :func:`to_csv`, with its attrs and column types restored."""
+    with open(path, encoding="utf-8") as handle:
+        text = handle.read()
+    header, meta = 0, {}
+    lines = text.splitlines(keepends=True)
+    for line in lines:
+        if not line.startswith("#"):
+            break
+        header += 1
+        if line.startswith(_ATTRS_LINE):
+            meta = json.loads(line[len(_ATTRS_LINE):])
+    body = "".join(lines[header:])
+    # pandas 3 parses floats round-trip by default and deprecates the option; pandas 2 needs it
+    exact = {} if int(pd.__version__.split(".")[0]) >= 3 else {"float_precision": "round_trip"}
+    frame = pd.read_csv(io.StringIO(body), keep_default_na=False, na_values=["NaN"], **exact)
+    dtypes = meta.pop("dtypes", {})
+    for column, dtype in dtypes.items():
+        if column in frame and str(frame[column].dtype) != dtype:
+            frame[column] = frame[column].astype(dtype)
+    frame.attrs.update(meta)
+    return frame
