@@ -1,0 +1,16 @@
+"""Layer 9: notebook panels (ipywidgets 8). Thin: read the fields, call the library, render.
+
+Every panel is an ipywidgets box that can be filled and driven from Python as well as by
+hand: build it with the values, call ``.solve()`` (what its button does), read ``.result``
+(the library result last shown) and ``.error`` (None, or the message last shown).
+
+- :class:`StatePanel` -- one state point from two knowns, its roots and reference check.
+- :class:`IsothermExplorer` -- a live P-v isotherm with the dome and the roots at a pressure.
+- :class:`AccuracyPanel` -- where in T and P each model departs from the reference equation.
+- :class:`RootTracePanel` -- the residual and every root finder's iterates for one state.
+"""
+
+from .root_trace import RootTracePanel
+from .state_panel import StatePanel
+
+__all__ = ["RootTracePanel", "StatePanel"]

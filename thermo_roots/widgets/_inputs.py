@@ -1,0 +1,269 @@
+"""Input pieces shared by the panels: a fluid chooser, a model chooser and a value-with-unit
+field, each with a message line beside it for plain-words errors.
+
+These only read what the person typed and hand it to the library (``get_fluid``, the model
+classes, ``to_si``); the library decides what is valid and words the message.
+"""
+
+from __future__ import annotations
+
+import html
+
+import ipywidgets as w
+
+from .. import MODELS, Fluid, get_fluid, to_si
+from ..errors import ThermoRootsError
+from ..units import QUANTITIES
+
+#: Unit choices per known quantity: (label shown, unit text the units layer reads).
+UNITS = {
+    "T": (("°C", "degC"), ("K", "K"), ("°F", "degF")),
+    "P": (("bar", "bar"), ("barg", "barg"), ("kPa", "kPa"), ("kPag", "kPag"), ("MPa", "MPa"),
+          ("Pa", "Pa"), ("psi", "psi"), ("psig", "psig")),
+    "v": (("L/mol", "L/mol"), ("m³/mol", "m^3/mol"), ("m³/kg", "m^3/kg")),
+    "rho": (("kg/m³", "kg/m^3"), ("mol/L", "mol/L"), ("mol/m³", "mol/m^3")),
+    "quality": (("fraction", ""), ("%", "percent")),
+}
+#: What each field is called on screen.
+LABELS = {"T": "Temperature", "P": "Pressure", "v": "Volume", "rho": "Density", "quality": "Vapour quality"}
+#: Short names of the fluid chooser's "my own constants" entry.
+CUSTOM = "custom"
+
+_LABEL_WIDTH = "150px"
+_ERROR_STYLE = "color:#b00020;font-size:0.9em"
+
+
+def message_html(text: str | None) -> str:
+    """The HTML of a message line: empty, or the message in red."""
+    return "" if not text else f"<span style='{_ERROR_STYLE}'>{html.escape(text)}</span>"
+
+
+def _label(text: str) -> w.HTML:
+    return w.HTML(f"<b>{html.escape(text)}</b>", layout=w.Layout(width=_LABEL_WIDTH))
+
+
+class QuantityField:
+    """A number and a unit for one known quantity, with a message line beside it.
+
+    The box takes a plain number (read in the chosen unit) or a number with its own unit
+    ("293.15 K", "8 bar(g)"), which then wins over the unit selector.
+    """
+
+    def __init__(self, quantity: str, value="", *, label: str | None = None, units=None):
+        self.quantity = quantity
+        options = units if units is not None else UNITS[quantity]
+        self.text = w.Text(layout=w.Layout(width="120px"), continuous_update=False)
+        self.unit = w.Dropdown(options=list(options), layout=w.Layout(width="95px"))
+        self.message = w.HTML()
+        self.label = _label(label or LABELS[quantity])
+        self.box = w.HBox([self.label, self.text, self.unit, self.message],
+                          layout=w.Layout(align_items="center"))
+        self.set(value)
+
+    def set(self, value) -> None:
+        """Fill the field from Python: a number (SI, or in the selected unit's terms when a
+        unit is selected by text) or a text such as "20 degC" or "8 barg"."""
+        if isinstance(value, (int, float)):
+            self._select(QUANTITIES[self.quantity][1])
+            self.text.value = f"{value:g}"
+            return
+        text = str(value).strip()
+        number, _, unit = text.partition(" ")
+        if unit and self._select(unit.strip()):
+            self.text.value = number
+        else:
+            self.text.value = text
+
+    def _select(self, unit: str) -> bool:
+        for label, code in self.unit.options:
+            if unit.lower() in (label.lower(), code.lower()):
+                self.unit.value = code
+                return True
+        return False
+
+    def _with_unit(self, shown: bool) -> str:
+        text = self.text.value.strip()
+        try:
+            float(text)
+        except ValueError:
+            return text      # a unit typed in the box wins
+        code = self.unit.value
+        unit = dict((c, label) for label, c in self.unit.options)[code] if shown and code else code
+        return f"{text} {unit}".strip()
+
+    def entered(self) -> str:
+        """The value as text with its unit, as the units layer reads it ("20 degC")."""
+        return self._with_unit(shown=False)
+
+    def shown(self) -> str:
+        """The value as a person reads it ("20 °C")."""
+        return self._with_unit(shown=True)
+
+    def to_si(self, *, molar_mass=None, atmosphere=None) -> float:
+        """The value in SI; a message beside the field and the error re-raised if unreadable."""
+        text = self.text.value.strip()
+        if not text:
+            raise self.fail(f"Enter a {LABELS[self.quantity].lower()}.")
+        kwargs = {} if atmosphere is None else {"atmosphere": atmosphere}
+        try:
+            return to_si(self.entered(), self.quantity, molar_mass=molar_mass, **kwargs)
+        except ThermoRootsError as err:
+            raise self.fail(str(err)) from None
+
+    def fail(self, text: str) -> ThermoRootsError:
+        self.message.value = message_html(text)
+        return FieldError(text)
+
+    def clear(self) -> None:
+        self.message.value = ""
+
+
+class FieldError(ThermoRootsError):
+    """An input a panel could not use; its message is already shown beside the field."""
+
+
+class FluidField:
+    """Type-ahead over the fluid library, plus "custom" for constants of one's own."""
+
+    def __init__(self, fluid="propane"):
+        from .. import fluid_names
+
+        self.name = w.Combobox(options=[*fluid_names(), CUSTOM], ensure_option=False,
+                               placeholder="type a name, e.g. propane", layout=w.Layout(width="217px"))
+        self.message = w.HTML()
+        self.custom_name = w.Text(value="my fluid", layout=w.Layout(width="120px"))
+        self.Tc = QuantityField("T", "369.9 K", label="Critical temperature")
+        self.Pc = QuantityField("P", "42.5 bar", label="Critical pressure",
+                                units=[u for u in UNITS["P"] if not u[1].endswith("g")])
+        self.omega = w.Text(value="0.152", layout=w.Layout(width="120px"))
+        self.molar_mass = w.Text(value="44.1", layout=w.Layout(width="120px"))
+        self.custom_message = w.HTML()
+        self.custom_box = w.VBox([
+            w.HBox([_label("Name"), self.custom_name]),
+            self.Tc.box, self.Pc.box,
+            w.HBox([_label("Acentric factor ω"), self.omega]),
+            w.HBox([_label("Molar mass [g/mol]"), self.molar_mass, self.custom_message]),
+        ], layout=w.Layout(margin="0 0 0 20px"))
+        self.box = w.VBox([w.HBox([_label("Fluid"), self.name, self.message],
+                                  layout=w.Layout(align_items="center")), self.custom_box])
+        self.name.observe(self._show_custom, "value")
+        self.set(fluid)
+
+    def set(self, fluid) -> None:
+        """A library name or alias, ``"custom"``, or a :class:`Fluid` (shown as custom)."""
+        if isinstance(fluid, Fluid):
+            self.custom_name.value = fluid.name
+            self.Tc.set(f"{fluid.Tc:.6g} K")
+            self.Pc.set(f"{fluid.Pc:.6g} Pa")
+            self.omega.value = f"{fluid.omega:.6g}"
+            self.molar_mass.value = f"{fluid.molar_mass * 1e3:.6g}"
+            fluid = CUSTOM
+        self.name.value = str(fluid)
+        self._show_custom()
+
+    def _show_custom(self, *_):
+        self.custom_box.layout.display = None if self.is_custom else "none"
+
+    @property
+    def is_custom(self) -> bool:
+        return self.name.value.strip().lower() == CUSTOM
+
+    def fluid(self) -> Fluid:
+        """The chosen fluid; the message beside the field and an error if it cannot be had."""
+        self.message.value = self.custom_message.value = ""
+        self.Tc.clear()
+        self.Pc.clear()
+        if not self.is_custom:
+            try:
+                return get_fluid(self.name.value)
+            except ThermoRootsError as err:
+                self.message.value = message_html(str(err))
+                raise FieldError(str(err)) from None
+        Tc, Pc = self.Tc.to_si(), self.Pc.to_si()
+        try:
+            omega, grams = float(self.omega.value), float(self.molar_mass.value)
+        except ValueError:
+            text = (f"Acentric factor {self.omega.value!r} and molar mass {self.molar_mass.value!r} "
+                    "must be plain numbers, e.g. 0.152 and 44.1 (g/mol).")
+            self.custom_message.value = message_html(text)
+            raise FieldError(text) from None
+        try:
+            return Fluid(self.custom_name.value.strip() or "my fluid", Tc, Pc, omega,
+                         to_si_molar_mass(grams))
+        except ThermoRootsError as err:
+            self.custom_message.value = message_html(str(err))
+            raise FieldError(str(err)) from None
+
+
+def to_si_molar_mass(grams_per_mol: float) -> float:
+    """Molar mass in g/mol to kg/mol, through the units layer's registry."""
+    from ..units import registry
+
+    return float(registry().Quantity(grams_per_mol, "g/mol").to("kg/mol").magnitude)
+
+
+def model_label(short: str) -> str:
+    cls = MODELS[short]
+    name = cls.family.name if hasattr(cls, "family") else "ideal gas"
+    return f"{name} ({short})"
+
+
+class ModelField:
+    """One equation of state, and volume translation where the library offers it."""
+
+    def __init__(self, model="PR", volume_shift=None):
+        self.short = w.Dropdown(options=[(model_label(k), k) for k in MODELS], value=model,
+                                layout=w.Layout(width="217px"))
+        self.translate = w.Checkbox(value=bool(volume_shift), description="Peneloux volume translation",
+                                    indent=False, layout=w.Layout(width="230px"),
+                                    tooltip="Shifts the molar volume by a constant: better liquid "
+                                            "densities, same saturation pressures.")
+        self.message = w.HTML()
+        self.box = w.HBox([_label("Equation of state"), self.short, self.translate, self.message],
+                          layout=w.Layout(align_items="center"))
+
+    def model(self, fluid: Fluid):
+        """The model for ``fluid``; the message beside the field and an error if refused."""
+        self.message.value = ""
+        cls = MODELS[self.short.value]
+        try:
+            if self.translate.value:
+                if cls is MODELS["IG"]:
+                    raise FieldError("The ideal gas has no co-volume to translate; untick volume "
+                                     "translation or choose a cubic model.")
+                return cls(fluid, volume_shift="peneloux")
+            return cls(fluid)
+        except ThermoRootsError as err:
+            self.message.value = message_html(str(err))
+            raise FieldError(str(err)) from None
+
+
+class ModelChoice:
+    """Several models at once, as tick boxes."""
+
+    def __init__(self, models=("SRK", "PR")):
+        models = [models] if isinstance(models, str) else list(models)
+        unknown = [m for m in models if m not in MODELS]
+        if unknown:
+            raise FieldError(f"Unknown model {', '.join(map(repr, unknown))}; choose from {', '.join(MODELS)}.")
+        self.boxes = {k: w.Checkbox(value=k in models, description=k, indent=False,
+                                    tooltip=model_label(k), layout=w.Layout(width="70px"))
+                      for k in MODELS}
+        self.message = w.HTML()
+        self.box = w.HBox([_label("Equations of state"), *self.boxes.values(), self.message],
+                          layout=w.Layout(align_items="center"))
+
+    @property
+    def chosen(self) -> list[str]:
+        return [k for k, box in self.boxes.items() if box.value]
+
+    def models(self, fluid: Fluid) -> list:
+        self.message.value = ""
+        if not self.chosen:
+            self.message.value = message_html("Tick at least one equation of state.")
+            raise FieldError("Tick at least one equation of state.")
+        return [MODELS[k](fluid) for k in self.chosen]
+
+    def observe(self, handler) -> None:
+        for box in self.boxes.values():
+            box.observe(handler, "value")

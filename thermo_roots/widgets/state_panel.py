@@ -1,0 +1,239 @@
+"""StatePanel: two knowns in, one state point out, with every root and a reference check."""
+
+from __future__ import annotations
+
+import html
+
+import ipywidgets as w
+
+from .. import solve
+from ..errors import ThermoRootsError
+from ._inputs import LABELS, UNITS, FieldError, FluidField, ModelField, QuantityField, message_html
+from ._render import (caution_html, convergence_text, csv_link, error_html, fmt, in_unit, label_rows,
+                      side_by_side, table)
+
+#: The pairs of knowns a person can choose, as (label, (first, second)).
+PAIRS = (
+    ("temperature and pressure", ("T", "P")),
+    ("temperature and volume", ("T", "v")),
+    ("pressure and volume", ("P", "v")),
+    ("temperature and density", ("T", "rho")),
+    ("pressure and density", ("P", "rho")),
+    ("temperature and vapour quality", ("T", "quality")),
+    ("pressure and vapour quality", ("P", "quality")),
+)
+_DEFAULTS = {"T": "20 degC", "P": "8 bar", "v": "0.5 L/mol", "rho": "500 kg/m^3", "quality": "0.5"}
+#: Columns of the collected table, in order.
+TABLE_COLUMNS = ("tag", "fluid", "model", "given", "phase", "T [degC]", "P [bar]", "v [L/mol]",
+                 "rho [kg/m3]", "Z [-]", "quality [-]", "P_sat [bar]", "reference rho [kg/m3]",
+                 "rho deviation [%]", "reference phase")
+
+
+class StatePanel(w.VBox):
+    """Solve one state point from two knowns and show its roots and reference cross-check.
+
+    Parameters
+    ----------
+    fluid : str or Fluid
+        A name in the fluid library (any alias, e.g. "propane", "R-744"), "custom", or a
+        :class:`~thermo_roots.Fluid`.
+    model : str
+        A key of :data:`thermo_roots.MODELS` ("IG", "vdW", "RK", "SRK", "PR", "PR78").
+    volume_shift : None or "peneloux"
+        Tick the Peneloux volume translation.
+    tag : str
+        Equipment tag or note stored with each point added to the table.
+    atmosphere : str or float
+        Atmospheric pressure that gauge pressures (barg, psig, kPag) refer to [Pa or text].
+    **knowns
+        Two of T, P, v, rho, rho_mass, quality, as text with units ("20 degC", "7 barg",
+        "0.5 L/mol", "400 kg/m^3") or SI numbers. They choose the pair shown.
+
+    Attributes
+    ----------
+    result : State or None
+        The state last shown.
+    check : CrossCheck or None
+        Its reference cross-check.
+    error : str or None
+        The message of the last failed solve, None after a good one.
+    table : pandas.DataFrame
+        The points added with :meth:`add_to_table`.
+
+    References
+    ----------
+    The state and its roots come from :func:`thermo_roots.solve`; the check from
+    :func:`thermo_roots.reference.cross_check`.
+    """
+
+    def __init__(self, fluid="propane", model="PR", *, volume_shift=None, tag="",
+                 atmosphere="101.325 kPa", **knowns):
+        self.result = self.check = self.error = None
+        self._given = ""
+        self._rows = []          # (tag, given text, State, CrossCheck) of each added point
+        self.fluid_field = FluidField(fluid)
+        self.model_field = ModelField(model, volume_shift)
+        pair = self._pair_of(knowns)
+        self.pair = w.Dropdown(options=list(PAIRS), value=pair, layout=w.Layout(width="217px"))
+        self.fields = {q: QuantityField(q, _DEFAULTS[q]) for q in UNITS}
+        for name, value in knowns.items():
+            field = self.fields["rho" if name == "rho_mass" else name]
+            field.set(value)
+            if name == "rho_mass" and isinstance(value, (int, float)):
+                field.unit.value = "kg/m^3"
+        self.atmosphere = QuantityField("P", atmosphere, label="Atmosphere (for gauge)",
+                                        units=[u for u in UNITS["P"] if not u[1].endswith("g")])
+        self.tag = w.Text(value=tag, placeholder="e.g. V-212", layout=w.Layout(width="120px"))
+        self.solve_button = w.Button(description="Solve state", button_style="primary", icon="check")
+        self.add_button = w.Button(description="Add to table", icon="plus")
+        self.pair_message = w.HTML()
+        self.status = w.HTML()
+        self.output = w.HTML()
+        self.table_html = w.HTML()
+        self.download = w.HTML()
+        self.known_box = w.VBox()
+        self.pair.observe(self._show_pair, "value")
+        self.solve_button.on_click(lambda _: self.solve())
+        self.add_button.on_click(lambda _: self.add_to_table())
+        self._show_pair()
+        inputs = w.VBox([
+            self.fluid_field.box, self.model_field.box,
+            w.HBox([w.HTML("<b>Known quantities</b>", layout=w.Layout(width="150px")), self.pair,
+                    self.pair_message], layout=w.Layout(align_items="center")),
+            self.known_box, self.atmosphere.box,
+            w.HBox([w.HTML("<b>Tag</b>", layout=w.Layout(width="150px")), self.tag,
+                    self.solve_button, self.add_button], layout=w.Layout(align_items="center")),
+        ])
+        super().__init__([inputs, self.status, self.output, self.table_html, self.download])
+        self.add_class("thermo-roots-state-panel")
+
+    # -- inputs
+    @staticmethod
+    def _pair_of(knowns):
+        names = tuple("rho" if k == "rho_mass" else k for k in knowns)
+        if not names:
+            return PAIRS[0][1]
+        for _, pair in PAIRS:
+            if set(pair) == set(names):
+                return pair
+        allowed = "; ".join(f"{a} and {b}" for _, (a, b) in PAIRS)
+        raise FieldError(f"The panel takes one of these pairs of knowns: {allowed}; got {', '.join(knowns)}.")
+
+    def _show_pair(self, *_):
+        self.known_box.children = [self.fields[q].box for q in self.pair.value]
+
+    @property
+    def knowns(self) -> dict:
+        """The two knowns as entered, e.g. {"T": "20 degC", "P": "7 barg"}."""
+        return {q: self.fields[q].entered() for q in self.pair.value}
+
+    # -- actions
+    def solve(self):
+        """Read the fields, solve the state and its cross-check, and show them.
+
+        Returns the :class:`State`, or None when an input was refused (then :attr:`error`
+        holds the message, shown beside the field, and the previous result stays).
+        """
+        from ..reference import cross_check
+
+        for field in (*self.fields.values(), self.atmosphere):
+            field.clear()
+        self.pair_message.value = ""
+        try:
+            fluid = self.fluid_field.fluid()
+            model = self.model_field.model(fluid)
+            atmosphere = self.atmosphere.to_si()
+            knowns = {q: self.fields[q].to_si(molar_mass=fluid.molar_mass, atmosphere=atmosphere)
+                      for q in self.pair.value}
+            try:
+                state = solve(model, **knowns)
+            except ThermoRootsError as err:
+                raise self._blame(str(err)) from None
+            check = cross_check(state)
+        except ThermoRootsError as err:
+            self.error = str(err)
+            self.status.value = error_html(self.error)
+            return None
+        self.result, self.check, self.error = state, check, None
+        self._given = ", ".join(f"{LABELS[q].lower()} {self.fields[q].shown()}" for q in self.pair.value)
+        self.status.value = ""
+        self.output.value = self._render(state, check)
+        return state
+
+    def _blame(self, text: str) -> FieldError:
+        """Show a solve error beside the field it is about (or beside the pair)."""
+        first = text.split(" ", 1)[0].rstrip(",")
+        volume = first in ("v", "rho", "rho_mass")
+        for q in self.pair.value:
+            if q == first or (volume and q in ("v", "rho")):
+                return self.fields[q].fail(text)
+        self.pair_message.value = message_html(text)
+        return FieldError(text)
+
+    def add_to_table(self):
+        """Add the state last shown to the table; returns the table."""
+        if self.result is None:
+            self.error = "Solve a state first; the table collects solved states."
+            self.status.value = error_html(self.error)
+            return self.table
+        self._rows.append((self.tag.value.strip(), self._given, self.result, self.check))
+        self.table_html.value = self.table.to_html(index=False, float_format=lambda x: f"{x:.5g}",
+                                                   na_rep="-", border=0)
+        self.download.value = csv_link(self.table_csv(), "state_points.csv")
+        return self.table
+
+    @property
+    def table(self):
+        """The collected points as a DataFrame (one row a point, units in the column names)."""
+        import pandas as pd
+
+        return pd.DataFrame([_table_row(*row) for row in self._rows], columns=list(TABLE_COLUMNS))
+
+    def table_csv(self) -> str:
+        """The collected table as CSV text."""
+        return self.table.to_csv(index=False)
+
+    # -- display
+    def _render(self, state, check) -> str:
+        fluid, model = state.model.fluid.name, state.model.name
+        tag = self.tag.value.strip()
+        given = html.escape(self._given)
+        head = (f"<div style='font-size:1.05em;margin:8px 0 4px 0'><b>{html.escape(tag + ': ' if tag else '')}"
+                f"{html.escape(fluid)}, {html.escape(model)}</b> — {html.escape(str(state.phase))} "
+                f"<span style='color:#555'>(given {given})</span></div>")
+        state_table = table(label_rows(state.summary()), caption="State point")
+        roots = [(fmt(in_unit(r.v, "v", "L/mol"), 6), fmt(r.Z, 5), r.kind, fmt(r.fugacity_coefficient, 5),
+                  "yes: lowest Gibbs energy" if r.stable else "no") for r in state.roots]
+        stable = next((i for i, r in enumerate(state.roots) if r.stable), None)
+        where = "at the saturation pressure" if state.phase == "two-phase" else "at this T and P"
+        root_table = table(roots, header=("v [L/mol]", "Z", "kind", "fugacity coeff. φ", "stable?"),
+                           caption=f"Every root of the cubic {where}", highlight=stable)
+        if len(roots) == 1:
+            root_table += "<div style='font-size:0.85em;color:#555'>One real root: no choice to make.</div>"
+        return (head + side_by_side(state_table, root_table) + _check_table(check)
+                + f"<div style='color:#444;font-size:0.9em'>{html.escape(convergence_text(state))}</div>"
+                + caution_html())
+
+
+def _check_table(check) -> str:
+    if not check.available:
+        return table([(html.escape(check.reason),)], caption="Reference equation: not available")
+    rows = [tuple(html.escape(c) for c in row) for row in check.rows()]
+    return table(rows, header=("quantity", "model", "reference", "deviation"),
+                 caption="Against the reference equation (CoolProp multiparameter); "
+                         "deviation = (model - reference) / reference")
+
+
+def _table_row(tag, given, state, check) -> dict:
+    ok = check is not None and check.available
+    return {
+        "tag": tag, "fluid": state.model.fluid.name, "model": state.model.name, "given": given,
+        "phase": str(state.phase),
+        "T [degC]": in_unit(state.T, "T", "degC"), "P [bar]": in_unit(state.P, "P", "bar"),
+        "v [L/mol]": in_unit(state.v, "v", "L/mol"), "rho [kg/m3]": float(state.rho_mass),
+        "Z [-]": float(state.Z), "quality [-]": float(state.quality),
+        "P_sat [bar]": in_unit(state.P_sat, "P", "bar"),
+        "reference rho [kg/m3]": float(check.reference_rho_mass) if ok else float("nan"),
+        "rho deviation [%]": float(check.deviation_rho_percent) if ok else float("nan"),
+        "reference phase": str(check.reference_phase) if ok else "",
+    }
