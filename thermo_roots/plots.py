@@ -1,0 +1,600 @@
+"""Layer 8: matplotlib pictures of isotherms, saturation, compressibility, accuracy maps and
+closed-vessel heat-ups.
+
+Every function takes ``ax=`` (a new figure when None) and returns the Axes. Display units,
+the same in every plot: pressure in bar, temperature in K with a °C scale alongside,
+molar volume in L/mol, density in kg/m³, deviations in percent. One style table,
+:data:`STYLE`, sets colours, line styles and markers; models differ by line style and
+marker as well as by colour, so the plots stay readable in greyscale.
+
+References
+----------
+Hunter, J. D. (2007), Matplotlib: A 2D graphics environment, Comput. Sci. Eng. 9, 90-95.
+Maxwell, J. C. (1875), On the dynamical evidence of the molecular constitution of bodies,
+Nature 11, 357-359 (the equal-area construction).
+"""
+
+from __future__ import annotations
+
+import textwrap
+
+import numpy as np
+from matplotlib import colors as mcolors
+from matplotlib import patheffects
+from matplotlib import ticker
+from matplotlib.lines import Line2D
+from matplotlib.patches import Patch
+
+from .accuracy import model_label
+from .errors import InputError
+from .inversion import CAUTION, saturation, solve
+from .models import IdealGas
+from .reference import reference_limits, reference_saturation, reference_state
+from .units import to_si
+
+#: The one colour, line and marker scheme of every plot.
+STYLE = {
+    "reference": dict(color="black", linestyle="-", linewidth=1.8),
+    "models": (
+        dict(color="#1b5e9e", linestyle="--", marker="o", linewidth=1.6),
+        dict(color="#c4581b", linestyle="-.", marker="s", linewidth=1.6),
+        dict(color="#2f8a4c", linestyle=(0, (1, 1.5)), marker="^", linewidth=1.8),
+        dict(color="#7b3f98", linestyle=(0, (6, 2, 1, 2, 1, 2)), marker="D", linewidth=1.6),
+        dict(color="#8a6d1d", linestyle=(0, (8, 3)), marker="v", linewidth=1.6),
+    ),
+    "dome": dict(linewidth=1.0, linestyle=(0, (2, 2)), alpha=0.9),
+    "tie_line": dict(color="0.35", linestyle="-", linewidth=0.9),
+    "equal_area": dict(facecolor="0.75", edgecolor="0.35", hatch="///", alpha=0.45, linewidth=0.0),
+    "marker_pressure": dict(color="0.45", linestyle=(0, (4, 2)), linewidth=0.9),
+    "roots": {
+        "liquid-like": dict(marker="o", markersize=8, markerfacecolor="white", markeredgewidth=2.0),
+        "unstable": dict(marker="X", markersize=9, markerfacecolor="0.5", markeredgewidth=1.0),
+        "vapor-like": dict(marker="s", markersize=8, markerfacecolor="white", markeredgewidth=2.0),
+    },
+    "critical_point": dict(marker="*", markersize=12, color="black", linestyle="none"),
+    "fill_point": dict(marker="*", markersize=14, markerfacecolor="gold", markeredgecolor="black", linestyle="none"),
+    "reference_fill_point": dict(marker="*", markersize=14, markerfacecolor="white", markeredgecolor="black",
+                                 linestyle="none"),
+    "quality": dict(color="0.35", linestyle=(0, (1, 1)), linewidth=1.8, marker="."),
+    "phase_differs": dict(marker="x", color="black", markersize=4, linestyle="none", markeredgewidth=0.8),
+    "colormap": "RdBu_r",
+    "no_data": "0.88",
+    "deviation_levels": (-20.0, -10.0, -5.0, -2.0, -1.0, 1.0, 2.0, 5.0, 10.0, 20.0),
+}
+
+_BAR = 1e-5      # Pa -> bar
+_LITRE = 1e3     # m3/mol -> L/mol
+_ZERO_CELSIUS = 273.15
+
+
+def model_style(index: int) -> dict:
+    """Line style of the index-th model of a plot (cycles through :data:`STYLE`)."""
+    return dict(STYLE["models"][index % len(STYLE["models"])])
+
+
+# --------------------------------------------------------------------------- helpers
+
+def _new_axes(ax, size=(8.0, 5.2)):
+    if ax is not None:
+        return ax
+    import matplotlib.pyplot as plt
+
+    fig, ax = plt.subplots(figsize=size, layout="constrained")
+    return ax
+
+
+def _as_models(model):
+    models = list(model) if isinstance(model, (list, tuple)) else [model]
+    if not models:
+        raise InputError("Give at least one model to plot.")
+    fluid = models[0].fluid
+    if any(m.fluid != fluid for m in models):
+        raise InputError("All models of one plot must be for the same fluid; got "
+                         f"{', '.join(sorted({m.fluid.name for m in models}))}.")
+    return models, fluid
+
+
+def _labels(models):
+    return [model_label(m) for m in models]
+
+
+def _prepare(model, ax):
+    """(models, fluid, labels, axes) for a plot of one or several models."""
+    models, fluid = _as_models(model)
+    return models, fluid, _labels(models), _new_axes(ax)
+
+
+def _celsius_axis(ax, which="x"):
+    """A °C scale beside a kelvin axis (top for x, right for y)."""
+    functions = (lambda k: k - _ZERO_CELSIUS, lambda c: c + _ZERO_CELSIUS)
+    if which == "x":
+        sec = ax.secondary_xaxis("top", functions=functions)
+        sec.set_xlabel("Temperature [°C]")
+    else:
+        sec = ax.secondary_yaxis("right", functions=functions)
+        sec.set_ylabel("Temperature [°C]")
+    return sec
+
+
+def _temperature_text(T):
+    return f"{T:.2f} K ({T - _ZERO_CELSIUS:.2f} °C)"
+
+
+def _has_reference(fluid):
+    return bool(getattr(fluid, "library_name", None))
+
+
+def _note(ax, text):
+    ax.text(0.99, 0.01, text, transform=ax.transAxes, ha="right", va="bottom", fontsize=7.5, color="0.3",
+            wrap=True)
+
+
+def _caution(ax):
+    ax.annotate("\n".join(textwrap.wrap("Caution: " + CAUTION, 150)), xy=(0.0, -0.16), xycoords="axes fraction",
+                ha="left", va="top", fontsize=6.5, color="0.25", annotation_clip=False)
+
+
+def _plain_log_ticks(axis):
+    """Plain numbers (0.5, 1, 2, 5, 10 ...) on a log axis instead of powers of ten."""
+    axis.set_major_formatter(ticker.FuncFormatter(lambda y, _: f"{y:g}"))
+    axis.set_minor_locator(ticker.LogLocator(subs=(2.0, 5.0)))
+    axis.set_minor_formatter(ticker.FuncFormatter(lambda y, _: f"{y:g}"))
+
+
+def _outlined(**style):
+    """A line style with a white outline, so the line shows on any background."""
+    width = style.get("linewidth", 1.5)
+    style["path_effects"] = [patheffects.withStroke(linewidth=width + 2.5, foreground="white")]
+    return style
+
+
+def _spread(positions, gap):
+    """Move sorted label positions apart to at least ``gap``, keeping their order."""
+    order = np.argsort(positions)
+    out = np.asarray(positions, dtype=float).copy()
+    for k in range(1, len(order)):
+        prev, cur = order[k - 1], order[k]
+        out[cur] = max(out[cur], out[prev] + gap)
+    return out
+
+
+def _edges(centres, log):
+    c = np.log(centres) if log else np.asarray(centres, dtype=float)
+    if c.size == 1:
+        half = 0.05 * abs(c[0]) if not log else 0.05
+        e = np.array([c[0] - half, c[0] + half])
+    else:
+        mid = 0.5 * (c[1:] + c[:-1])
+        e = np.concatenate([[c[0] - (mid[0] - c[0])], mid, [c[-1] + (c[-1] - mid[-1])]])
+    return np.exp(e) if log else e
+
+
+def _deduplicated_legend(ax, extra=(), **kwargs):
+    handles, labels = ax.get_legend_handles_labels()
+    seen, h2, l2 = set(), [], []
+    for h, lab in list(zip(handles, labels)) + list(extra):
+        if lab and not lab.startswith("_") and lab not in seen:
+            seen.add(lab)
+            h2.append(h)
+            l2.append(lab)
+    return ax.legend(h2, l2, **kwargs)
+
+
+# --------------------------------------------------------------------------- isotherm
+
+def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=None, n=500):
+    """Pressure against molar volume along one isotherm, with every root at a pressure.
+
+    Draws each model's isotherm (the cubic itself, loop included), its saturation dome,
+    the equal-area (Maxwell) construction shaded between the loop and the saturation
+    pressure, the reference equation's isotherm, and at ``P_marker`` every real root
+    marked by kind: liquid-like (open circle), unstable (grey cross), vapour-like (open
+    square).
+
+    Parameters
+    ----------
+    model : model or list of models
+        One fluid; several models are compared.
+    T : float or str
+        Temperature [K] ("20 degC" accepted).
+    P_marker : float or str, optional
+        Pressure [Pa] at which the roots are marked.
+    reference : bool
+        Overlay the reference isotherm (skipped, with a note, where unavailable).
+    ax : matplotlib Axes, optional
+    v_range : (float, float), optional
+        Molar volume range [m^3/mol]; default from just above the co-volume to well past
+        the saturated vapour.
+    n : int
+        Points along the curve.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+
+    References
+    ----------
+    Maxwell, J. C. (1875), Nature 11, 357-359.
+    """
+    models, fluid, labels, ax = _prepare(model, ax)
+    T = float(to_si(T, "T"))
+    cubic = [m for m in models if not isinstance(m, IdealGas)]
+    subcritical = T < fluid.Tc and bool(cubic)
+    sats = {id(m): saturation(m, T=T) for m in cubic} if subcritical else {}
+    if v_range is None:
+        v_lo = 1.02 * max(m.v_min for m in models) if cubic else 1e-5
+        if v_lo <= 0:
+            v_lo = 1e-5
+        v_c = max(getattr(m, "v_c", 0.0) for m in models) or 8.314 * fluid.Tc / fluid.Pc / 3
+        v_hi = max([40.0 * v_c] + [3.0 * s.v_vapor for s in sats.values()])
+        if P_marker is not None:
+            v_hi = max(v_hi, 3.0 * 8.314462618 * T / float(to_si(P_marker, "P")))
+        v_range = (v_lo, v_hi)
+    v = np.geomspace(v_range[0], v_range[1], n)
+    P_top = max(1.6 * fluid.Pc, 1.3 * float(to_si(P_marker, "P")) if P_marker is not None else 0.0)
+    P_bottom = 0.0
+    for i, (m, label) in enumerate(zip(models, labels)):
+        style = model_style(i)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            P = np.where(v > m.v_min, m.pressure(T, v), np.nan)
+        ax.plot(v * _LITRE, P * _BAR, color=style["color"], linestyle=style["linestyle"],
+                linewidth=style["linewidth"], label=f"{label} isotherm", gid=f"isotherm:{label}")
+        P_bottom = min(P_bottom, np.nanmin(P))
+        if isinstance(m, IdealGas):
+            continue
+        _draw_dome(ax, m, label, style)
+        if subcritical:
+            s = sats[id(m)]
+            inside = (v >= s.v_liquid) & (v <= s.v_vapor)
+            vv = np.concatenate([[s.v_liquid], v[inside], [s.v_vapor]])
+            PP = np.concatenate([[s.P], m.pressure(T, v[inside]), [s.P]])
+            if i == 0:
+                ax.fill_between(vv * _LITRE, PP * _BAR, s.P * _BAR, label=f"equal areas (Maxwell), {label}",
+                                gid="equal-area", **STYLE["equal_area"])
+            ax.plot([s.v_liquid * _LITRE, s.v_vapor * _LITRE], [s.P * _BAR] * 2, **STYLE["tie_line"],
+                    label="saturation pressure (tie line)")
+    if reference and _has_reference(fluid):
+        ref = reference_state(fluid, T=np.full(v.shape, T), v=v, with_saturation=False)
+        P_ref = np.where(ref.available, ref.P, np.nan)
+        if np.any(np.isfinite(P_ref)):
+            ax.plot(v * _LITRE, P_ref * _BAR, label="reference equation (CoolProp)", gid="reference", **STYLE["reference"])
+        else:
+            _note(ax, f"reference unavailable: {np.asarray(ref.reason).flat[0]}")
+    elif reference:
+        _note(ax, "no reference equation for a user fluid")
+    if P_marker is not None:
+        _draw_roots(ax, models, labels, T, float(to_si(P_marker, "P")))
+    ax.set_xscale("log")
+    ax.set_xlim(v_range[0] * _LITRE, v_range[1] * _LITRE)
+    ax.set_ylim(max(P_bottom * _BAR * 1.05, -0.6 * fluid.Pc * _BAR), P_top * _BAR)
+    ax.axhline(0.0, color="0.7", linewidth=0.6, zorder=0)
+    ax.set_xlabel("Molar volume v [L/mol] (log scale)")
+    ax.set_ylabel("Pressure P [bar]")
+    ax.set_title(f"{fluid.name} — isotherm at {_temperature_text(T)}\n{', '.join(labels)}"
+                 + (" vs reference" if reference and _has_reference(fluid) else ""))
+    ax.grid(True, which="major", color="0.9")
+    _deduplicated_legend(ax, loc="upper right", fontsize=8, framealpha=0.9)
+    return ax
+
+
+def _draw_dome(ax, model, label, style):
+    T = model.fluid.Tc * np.concatenate([np.linspace(0.45, 0.97, 50), 1 - np.geomspace(0.03, 1e-6, 30)])
+    s = saturation(model, T=T)
+    v = np.concatenate([s.v_liquid, [model.v_c], s.v_vapor[::-1]])
+    P = np.concatenate([s.P, [model.fluid.Pc], s.P[::-1]])
+    ax.plot(v * _LITRE, P * _BAR, color=style["color"], label=f"{label} saturation dome", gid=f"dome:{label}",
+            **STYLE["dome"])
+
+
+def _draw_roots(ax, models, labels, T, P):
+    ax.axhline(P * _BAR, label=f"P = {P * _BAR:.4g} bar", **STYLE["marker_pressure"])
+    names = {"liquid-like": "liquid-like root", "unstable": "unstable root (dP/dv > 0)",
+             "vapor-like": "vapour-like root"}
+    for i, (m, label) in enumerate(zip(models, labels)):
+        colour = model_style(i)["color"]
+        for root in solve(m, T=T, P=P).roots:
+            style = dict(STYLE["roots"][root.kind])
+            if root.kind != "unstable":
+                style["markeredgecolor"] = colour
+            else:
+                style["markeredgecolor"] = "black"
+            ax.plot([root.v * _LITRE], [P * _BAR], linestyle="none", zorder=5, label=names[root.kind],
+                    gid=f"root:{root.kind}", **style)
+
+
+# --------------------------------------------------------------------------- saturation curve
+
+def plot_saturation_curve(model, ax=None, *, T=None, reference=True, n=80):
+    """Saturation pressure against temperature: each model and the reference equation.
+
+    Parameters
+    ----------
+    model : model or list of models
+    ax : matplotlib Axes, optional
+    T : (float, float), optional
+        Temperature range [K]; default from 0.5 Tc (or the reference's triple point) to Tc.
+    reference : bool
+    n : int
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    models, fluid, labels, ax = _prepare(model, ax)
+    lo = 0.5 * fluid.Tc
+    if _has_reference(fluid):
+        lo = max(lo, reference_limits(fluid)["T_min"])
+    lo, hi = (lo, fluid.Tc) if T is None else (float(to_si(T[0], "T")), float(to_si(T[1], "T")))
+    Ts = np.linspace(lo, hi, n)
+    for i, (m, label) in enumerate(zip(models, labels)):
+        if isinstance(m, IdealGas):
+            continue
+        st = model_style(i)
+        P = saturation(m, T=Ts).P
+        ax.plot(Ts, P * _BAR, color=st["color"], linestyle=st["linestyle"], linewidth=st["linewidth"],
+                marker=st["marker"], markevery=(i * max(1, n // 24), max(1, n // 8)), markerfacecolor="white",
+                label=label, gid=f"model:{label}")
+    if reference and _has_reference(fluid):
+        ref = reference_saturation(fluid, T=Ts)
+        ax.plot(Ts, np.asarray(ref.P) * _BAR, label="reference equation (CoolProp)", gid="reference",
+                **STYLE["reference"])
+    ax.plot([fluid.Tc], [fluid.Pc * _BAR], label="critical point", **STYLE["critical_point"])
+    ax.set_yscale("log")
+    _plain_log_ticks(ax.yaxis)
+    ax.set_xlabel("Temperature T [K]")
+    ax.set_ylabel("Saturation pressure P [bar] (log scale)")
+    _celsius_axis(ax)
+    ax.set_title(f"{fluid.name} — saturation pressure, {', '.join(labels)}"
+                 + (" vs reference" if reference and _has_reference(fluid) else ""))
+    ax.grid(True, which="both", color="0.92")
+    _deduplicated_legend(ax, loc="lower right", fontsize=8)
+    return ax
+
+
+# --------------------------------------------------------------------------- compressibility
+
+def plot_compressibility(model, T, P=None, ax=None, *, reference=True, n=150):
+    """Compressibility factor Z against pressure on one or more isotherms.
+
+    A jump in Z on a subcritical isotherm is the phase change at the saturation pressure;
+    the curve is broken there rather than joined.
+
+    Parameters
+    ----------
+    model : model or list of models
+    T : float, str or list
+        Temperature(s) [K].
+    P : (float, float), optional
+        Pressure range [Pa]; default Pc/100 to 3 Pc.
+    ax : matplotlib Axes, optional
+    reference : bool
+    n : int
+        Points per isotherm.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    models, fluid, labels, ax = _prepare(model, ax)
+    temps = [float(to_si(t, "T")) for t in (T if isinstance(T, (list, tuple, np.ndarray)) else [T])]
+    lo, hi = (fluid.Pc / 100.0, 3.0 * fluid.Pc) if P is None else (float(to_si(P[0], "P")), float(to_si(P[1], "P")))
+    Ps = np.linspace(lo, hi, n)
+    ends = []
+    for t in temps:
+        for i, (m, label) in enumerate(zip(models, labels)):
+            st = model_style(i)
+            state = solve(m, T=np.full(Ps.shape, t), P=Ps)
+            ax.plot(Ps * _BAR, _broken(state.Z, state.phase), color=st["color"], linestyle=st["linestyle"],
+                    linewidth=st["linewidth"], marker=st["marker"], markevery=max(1, n // 10),
+                    markerfacecolor="white", markersize=5, label=label, gid=f"model:{label}")
+            ends.append((t, _last_finite(state.Z)))
+        if reference and _has_reference(fluid):
+            ref = reference_state(fluid, T=np.full(Ps.shape, t), P=Ps, with_saturation=False)
+            Z = np.where(ref.available, ref.Z, np.nan)
+            ax.plot(Ps * _BAR, _broken(Z, ref.phase), label="reference equation (CoolProp)", gid="reference",
+                    **STYLE["reference"])
+    ax.axhline(1.0, color="0.7", linewidth=0.6, zorder=0, label="ideal gas (Z = 1)")
+    by_t = {}
+    for t, z in ends:  # one label per isotherm, at the mean end of its model curves
+        by_t.setdefault(t, []).append(z)
+    ts = list(by_t)
+    y = _spread([float(np.mean(by_t[t])) for t in ts], 0.045 * (ax.get_ylim()[1] - ax.get_ylim()[0]))
+    for t, yy in zip(ts, y):
+        ax.annotate(f"{t:.1f} K ({t - _ZERO_CELSIUS:.1f} °C)", xy=(Ps[-1] * _BAR, yy), xytext=(4, 0),
+                    textcoords="offset points", fontsize=8, va="center")
+    ax.set_xlabel("Pressure P [bar]")
+    ax.set_ylabel("Compressibility factor Z = Pv/(RT) [-]")
+    ax.set_xlim(0.0, hi * _BAR * 1.2)
+    ax.set_title(f"{fluid.name} — compressibility on isotherms, {', '.join(labels)}"
+                 + (" vs reference" if reference and _has_reference(fluid) else ""))
+    ax.grid(True, color="0.92")
+    _deduplicated_legend(ax, loc="lower right", fontsize=8)
+    return ax
+
+
+def _broken(y, phase):
+    """y with NaN inserted where the phase switches between liquid and vapour (no joining line)."""
+    y = np.asarray(y, dtype=float).copy()
+    phase = np.asarray(phase, dtype=object)
+    switch = np.flatnonzero((phase[1:] != phase[:-1]) & np.isin(phase[1:], ["liquid", "vapor"])
+                            & np.isin(phase[:-1], ["liquid", "vapor"]))
+    y[switch] = np.nan
+    return y
+
+
+def _last_finite(y):
+    y = np.asarray(y, dtype=float)
+    finite = y[np.isfinite(y)]
+    return float(finite[-1]) if finite.size else 1.0
+
+
+# --------------------------------------------------------------------------- accuracy map
+
+def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours=True):
+    """Heat map of the molar-volume deviation from the reference over temperature and pressure.
+
+    Diverging colours centred at zero (red: the model's volume too large, density too low;
+    blue: too small), labelled contour lines at ±1, 2, 5, 10, 20 %, grey where the
+    reference gives no single-phase value, crosses where the model's phase differs from
+    the reference's, and the saturation curves of the reference and the model on top.
+
+    Parameters
+    ----------
+    accuracy_map : AccuracyMap
+    model : str or int, optional
+        Which model's label (or position); default the first.
+    ax : matplotlib Axes, optional
+    limit : float, optional
+        Colour limits ±limit [%]; default the 95th percentile of |deviation|, at least 1 %.
+    contours : bool
+        Draw the labelled contour lines.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The colour bar is ``ax.collections[0].colorbar``.
+    """
+    amap = accuracy_map
+    labels = list(amap.models)
+    if model is None:
+        label = labels[0]
+    elif isinstance(model, (int, np.integer)):
+        label = labels[model]
+    elif model in labels:
+        label = model
+    else:
+        raise InputError(f"No model {model!r} in this accuracy map; it has {', '.join(labels)}.")
+    index = labels.index(label)
+    ax = _new_axes(ax, size=(8.0, 5.6))
+    pts = amap.points[amap.points["model"] == label]
+    Ts, Ps = np.asarray(amap.points.attrs["T_grid"]), np.asarray(amap.points.attrs["P_grid"])
+    grid = pts.pivot_table(index="P", columns="T", values="deviation_percent").reindex(index=Ps, columns=Ts)
+    dev = grid.to_numpy()
+    log_P = Ps.size > 1 and Ps.min() > 0 and Ps.max() / Ps.min() > 20
+    if limit is None:
+        finite = np.abs(dev[np.isfinite(dev)])
+        limit = max(1.0, float(np.percentile(finite, 95))) if finite.size else 1.0
+    norm = mcolors.TwoSlopeNorm(vcenter=0.0, vmin=-limit, vmax=limit)
+    ax.set_facecolor(STYLE["no_data"])
+    mesh = ax.pcolormesh(_edges(Ts, False), _edges(Ps, log_P) * _BAR, np.ma.masked_invalid(dev),
+                         cmap=STYLE["colormap"], norm=norm, shading="flat")
+    bar = ax.figure.colorbar(mesh, ax=ax, extend="both")
+    bar.set_label("Molar volume deviation from reference [%]\n(+ : model volume too large, density too low)")
+    if contours and Ts.size > 2 and Ps.size > 2:
+        # contour the vapour side and the dense side apart: across the saturation line the
+        # deviation jumps, and one contour of both would stack every level along it
+        phase = pts.pivot_table(index="P", columns="T", values="phase_reference", aggfunc="first")
+        phase = phase.reindex(index=Ps, columns=Ts).to_numpy()
+        for side in (phase == "vapor", (phase == "liquid") | (phase == "supercritical")):
+            part = np.where(side, dev, np.nan)
+            if np.sum(np.isfinite(part)) < 4:
+                continue
+            levels = [x for x in STYLE["deviation_levels"] if np.nanmin(part) < x < np.nanmax(part)]
+            if levels:
+                lines = ax.contour(Ts, Ps * _BAR, np.ma.masked_invalid(part), levels=levels, colors="black",
+                                   linewidths=0.6)
+                ax.clabel(lines, fmt=lambda x: f"{x:+g} %", fontsize=7)
+    differ = pts[pts["phase_model"] != pts["phase_reference"]]
+    extra = []
+    if len(differ):
+        ax.plot(differ["T"], differ["P"] * _BAR, **STYLE["phase_differs"])
+        extra.append((Line2D([], [], **STYLE["phase_differs"]), "model phase differs from reference"))
+    _saturation_overlay(ax, amap, index, label, Ts)
+    extra.append((Patch(facecolor=STYLE["no_data"], edgecolor="0.6"),
+                  "no single-phase reference value"))
+    if log_P:
+        ax.set_yscale("log")
+        _plain_log_ticks(ax.yaxis)
+    ax.set_xlim(_edges(Ts, False)[[0, -1]])
+    ax.set_ylim(_edges(Ps, log_P)[[0, -1]] * _BAR)
+    ax.set_xlabel("Temperature T [K]")
+    ax.set_ylabel("Pressure P [bar]" + (" (log scale)" if log_P else ""))
+    _celsius_axis(ax)
+    ax.set_title(f"{amap.fluid.name} — {label}: deviation of molar volume from the reference equation")
+    _deduplicated_legend(ax, extra=extra, loc="upper center", bbox_to_anchor=(0.5, -0.11), ncol=3, fontsize=7.5,
+                         frameon=False)
+    return ax
+
+
+def _saturation_overlay(ax, amap, index, label, Ts):
+    fluid = amap.fluid
+    Tsat = np.linspace(max(Ts.min(), reference_limits(fluid)["T_min"]), fluid.Tc, 60)
+    if Tsat[0] >= fluid.Tc:
+        return
+    ref = reference_saturation(fluid, T=Tsat)
+    ax.plot(Tsat, np.asarray(ref.P) * _BAR, label="saturation, reference", **_outlined(**STYLE["reference"]))
+    from .accuracy import resolve_models
+
+    short = label.split(" ")[0].split("#")[0]
+    try:
+        m = resolve_models(fluid, [short])[0]
+    except InputError:
+        return
+    if not isinstance(m, IdealGas):
+        st = model_style(index)
+        ax.plot(Tsat, saturation(m, T=Tsat).P * _BAR, label=f"saturation, {short}",
+                **_outlined(color=st["color"], linestyle=st["linestyle"], linewidth=1.6))
+    ax.plot([fluid.Tc], [fluid.Pc * _BAR], label="critical point", **STYLE["critical_point"])
+
+
+# --------------------------------------------------------------------------- closed vessel
+
+def plot_isochore(frame, ax=None):
+    """A closed vessel heated up: pressure and vapour quality against temperature.
+
+    Takes the table of :func:`thermo_roots.sweeps.isochore`. Marks the model's
+    liquid-full (or vapor-full) point and, where the table has reference columns, the
+    reference pressure and the reference's own liquid-full point. The caution is printed
+    under the plot: these curves are about heating closed equipment.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        From ``sweeps.isochore``.
+    ax : matplotlib Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The pressure axes; the quality axes is its twin on the right.
+    """
+    if "fill_point" not in frame or "P" not in frame:
+        raise InputError("plot_isochore takes the table of sweeps.isochore (it needs the columns T, P, fill_point).")
+    a = frame.attrs
+    ax = _new_axes(ax, size=(8.0, 5.6))
+    st = model_style(0)
+    label = a.get("model_short_name") or a.get("model", "model")
+    if a.get("volume_shift"):
+        label += f" + c={a['volume_shift'] * 1e6:.4g} cm3/mol"
+    T = frame["T"].to_numpy()
+    ax.plot(T, frame["P"] * _BAR, color=st["color"], linestyle=st["linestyle"], linewidth=st["linewidth"],
+            marker=st["marker"], markersize=4, markerfacecolor="white", label=f"pressure, {label}", gid="model")
+    if "reference_P" in frame:
+        ok = frame["reference_available"].to_numpy(dtype=bool)
+        ax.plot(T[ok], frame["reference_P"].to_numpy()[ok] * _BAR, label="pressure, reference equation",
+                gid="reference", **STYLE["reference"])
+    point = a.get("fill_point")
+    if point:
+        ax.plot([point["T"]], [point["P"] * _BAR], label=f"{point['kind']}, {label}: {point['T']:.2f} K, "
+                f"{point['P'] * _BAR:.4g} bar", gid="fill-point", **STYLE["fill_point"])
+    ref_point = a.get("reference_fill_point")
+    if ref_point:
+        ax.plot([ref_point["T"]], [ref_point["P"] * _BAR], label=f"{ref_point['kind']}, reference: "
+                f"{ref_point['T']:.2f} K, {ref_point['P'] * _BAR:.4g} bar", gid="reference-fill-point",
+                **STYLE["reference_fill_point"])
+    quality_axes = ax.twinx()
+    quality_axes.plot(T, frame["quality"], label=f"vapour quality, {label}", gid="quality", **STYLE["quality"])
+    quality_axes.set_ylim(0.0, max(0.1, float(np.nanmax(frame["quality"])) * 1.15)
+                          if np.any(np.isfinite(frame["quality"])) else 1.0)
+    quality_axes.set_ylabel("Vapour quality [-] (dotted)")
+    ax.set_xlabel("Temperature T [K]")
+    ax.set_ylabel("Pressure P [bar]")
+    _celsius_axis(ax)
+    ax.grid(True, color="0.92")
+    fill = a.get("rho_mass")
+    ax.set_title(f"{a.get('fluid', '')} — {label}: closed vessel at {fill:.4g} kg/m³ heated"
+                 if fill else f"{a.get('fluid', '')} — {label}: closed vessel heated")
+    handles, names = quality_axes.get_legend_handles_labels()
+    _deduplicated_legend(ax, extra=list(zip(handles, names)), loc="upper left", fontsize=8, framealpha=0.9)
+    _caution(ax)
+    return ax
