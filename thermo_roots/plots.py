@@ -582,8 +582,11 @@ def plot_isochore(frame, ax=None):
         ax.plot([ref_point["T"]], [ref_point["P"] * _BAR], label=f"{ref_point['kind']}, reference: "
                 f"{ref_point['T']:.2f} K, {ref_point['P'] * _BAR:.4g} bar", gid="reference-fill-point",
                 **STYLE["reference_fill_point"])
+    quality = frame["quality"].to_numpy(dtype=float).copy()
+    if point:  # at the liquid-full point the last vapour is gone (quality 0); at the vapor-full one, 1
+        quality[frame["fill_point"].to_numpy(dtype=bool)] = 0.0 if point["kind"] == "liquid-full" else 1.0
     quality_axes = ax.twinx()
-    quality_axes.plot(T, frame["quality"], label=f"vapour quality, {label}", gid="quality", **STYLE["quality"])
+    quality_axes.plot(T, quality, label=f"vapour quality, {label}", gid="quality", **STYLE["quality"])
     quality_axes.set_ylim(0.0, max(0.1, float(np.nanmax(frame["quality"])) * 1.15)
                           if np.any(np.isfinite(frame["quality"])) else 1.0)
     quality_axes.set_ylabel("Vapour quality [-] (dotted)")
