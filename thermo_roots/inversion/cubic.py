@@ -3,6 +3,14 @@
 The cubic in Z is solved in closed form (Cardano's formula for one real root, the
 trigonometric form for three) and each root is polished by a guarded Newton step on the
 polynomial, then the roots with v > b are kept and sorted.
+
+Speed. Large inputs are cut into chunks of :data:`CHUNK` states, so that the two dozen
+temporary arrays of the closed form stay in the processor's cache and the memory a call
+needs does not grow with the input beyond its results. Roots are kept as three 1-D
+columns (a sorting network, not ``np.sort``), and the Gibbs-energy comparison that picks
+the stable root is only made where the cubic has more than one root v > b. With the
+optional compiled accelerator (:mod:`thermo_roots._accel`, needs numba) the same
+arithmetic runs as one loop; :func:`stable_roots` chooses between the two.
 """
 
 from __future__ import annotations
@@ -10,6 +18,14 @@ from __future__ import annotations
 import numpy as np
 
 from ..models import R
+
+#: States per chunk of the numpy path: about 2^13 keeps its temporaries in a 512 kB cache.
+CHUNK = 8192
+#: Below this many states the compiled accelerator is not worth its first-call import.
+ACCEL_MIN_SIZE = 2048
+#: Integer phase codes, as indices into PHASES of the state module.
+LIQUID, VAPOR, SUPERCRITICAL, TWO_PHASE = 0, 1, 2, 3
+
 
 def cubic_real_roots(c2, c1, c0):
     """Real roots of Z^3 + c2 Z^2 + c1 Z + c0 = 0, shape (..., 3), ascending, NaN-padded.
@@ -26,15 +42,21 @@ def cubic_real_roots(c2, c1, c0):
     (cubic and quadratic roots without cancellation) and 9.5 (deflation).
     """
     c2, c1, c0 = np.broadcast_arrays(*(np.asarray(c, dtype=float) for c in (c2, c1, c0)))
-    z1 = _polish(_one_real_root(c2, c1, c0), c2, c1, c0)
+    return np.stack(_sorted_roots(c2, c1, c0), axis=-1)
+
+
+def _sorted_roots(c2, c1, c0):
+    """The three columns of :func:`cubic_real_roots`: (smallest, middle, largest), NaN-padded."""
+    z1 = _polish(_polish(_one_real_root(c2, c1, c0), c2, c1, c0), c2, c1, c0)
     g1, g0 = _deflate(z1, c2, c1, c0)
     disc = g1 * g1 - 4.0 * g0
     with np.errstate(invalid="ignore", divide="ignore"):
         q = -0.5 * (g1 + np.copysign(np.sqrt(disc), g1))   # NaN where disc < 0: no more real roots
         z2, z3 = q, np.where(q != 0.0, g0 / q, 0.0)
-    roots = np.stack([z1, z2, z3], axis=-1)
-    roots = _polish(roots, c2[..., None], c1[..., None], c0[..., None])
-    return np.sort(roots, axis=-1)
+    z2, z3 = _polish(z2, c2, c1, c0), _polish(z3, c2, c1, c0)
+    # Sorting network; z2 and z3 are NaN together, and then z1 is the only root.
+    lo, hi = np.minimum(z2, z3), np.maximum(z2, z3)
+    return np.fmin(lo, z1), np.maximum(lo, np.minimum(hi, z1)), np.maximum(hi, z1)
 
 
 def _one_real_root(c2, c1, c0):
@@ -59,7 +81,8 @@ def _deflate(z1, c2, c1, c0):
     deflation otherwise: each is the stable direction for that case.
     """
     with np.errstate(invalid="ignore", divide="ignore"):
-        large = np.abs(z1) ** 3 >= np.abs(c0)
+        size = np.abs(z1)
+        large = size * size * size >= np.abs(c0)
         safe = np.where(z1 != 0.0, z1, 1.0)
         g0_back = -c0 / safe
         g1_back = (g0_back - c1) / safe
@@ -96,8 +119,112 @@ def volume_roots(model, T, P):
         Shape (..., 3) [m^3/mol], ascending, NaN where a root does not exist.
     """
     T, P = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(P, dtype=float))
+    shape = T.shape
+    T, P = T.ravel(), P.ravel()
+    out = np.empty((T.size, 3))
+    for s in _chunks(T.size):
+        out[s] = np.stack(_volume_columns(model, T[s], P[s]), axis=-1)
+    return out.reshape(shape + (3,))
+
+
+def _chunks(n):
+    return [slice(i, min(i + CHUNK, n)) for i in range(0, max(n, 1), CHUNK)] if n else []
+
+
+def _volume_columns(model, T, P):
+    """(v0, v1, v2): the roots v > b of 1-D (T, P), ascending, NaN-padded [m^3/mol]."""
     c2, c1, c0, B = model.cubic_coefficients(T, P)
-    Z = cubic_real_roots(c2, c1, c0)
-    Z = np.where(Z > np.asarray(B)[..., None], Z, np.nan)
-    Z = np.sort(Z, axis=-1)  # NaN sort last: valid roots first, ascending
-    return Z * (R * T / P)[..., None] - model.c   # translated volumes
+    s0, s1, s2 = _sorted_roots(c2, c1, c0)
+    # Keep Z > B. The columns are sorted, so the roots left out are the first few:
+    # shift the rest to the front by the number left out.
+    out = (s0 <= B).view(np.int8) + (s1 <= B).view(np.int8) + (s2 <= B).view(np.int8)
+    nan = np.nan
+    z0 = np.where(out == 0, s0, np.where(out == 1, s1, np.where(out == 2, s2, nan)))
+    z1 = np.where(out == 0, s1, np.where(out == 1, s2, nan))
+    z2 = np.where(out == 0, s2, nan)
+    scale = R * T / P
+    c = model.c
+    return z0 * scale - c, z1 * scale - c, z2 * scale - c
+
+
+def stable_roots(model, T, P):
+    """Roots, the stable root and its phase at 1-D arrays (T, P), as compact codes.
+
+    Parameters
+    ----------
+    model : CubicModel
+    T, P : numpy.ndarray
+        1-D, same length: temperature [K] and pressure [Pa].
+
+    Returns
+    -------
+    roots : numpy.ndarray
+        (n, 3) volume roots v > b [m^3/mol], ascending, NaN-padded (as :func:`volume_roots`).
+    stable : numpy.ndarray of int8
+        Index of the root of lowest Gibbs energy (lowest ln phi) among those with
+        dP/dv <= 0; 0 where there is only one root.
+    v : numpy.ndarray
+        The stable root [m^3/mol].
+    phase : numpy.ndarray of int8
+        Phase code of the stable root (:data:`LIQUID`, :data:`VAPOR`, :data:`SUPERCRITICAL`).
+
+    Notes
+    -----
+    The compiled accelerator is used when numba is installed, the input has at least
+    :data:`ACCEL_MIN_SIZE` states and the model's alpha function is one it knows; its
+    results agree with the numpy path to rounding.
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., ch. 3 (root selection by Gibbs energy).
+    """
+    if T.size >= ACCEL_MIN_SIZE:
+        from .. import _accel
+
+        kernel = _accel.stable_roots_kernel(model)
+        if kernel is not None:
+            return kernel(T, P)
+    return stable_roots_numpy(model, T, P)
+
+
+def stable_roots_numpy(model, T, P):
+    """:func:`stable_roots` in numpy alone, chunk by chunk."""
+    n = T.size
+    roots = np.empty((n, 3))
+    for s in _chunks(n):
+        roots[s] = np.stack(_volume_columns(model, T[s], P[s]), axis=-1)
+    stable = np.zeros(n, np.int8)
+    v = roots[:, 0].copy()
+    several = np.flatnonzero(np.isfinite(roots[:, 1]))   # usually a small share of the states
+    for s in _chunks(several.size):
+        idx = several[s]
+        stable[idx] = pick = _lowest_gibbs(model, T[idx], P[idx], roots[idx])
+        v[idx] = np.take_along_axis(roots[idx], pick[:, None].astype(np.intp), axis=-1)[:, 0]
+    return roots, stable, v, phase_codes(model, T, P, v)
+
+
+def _lowest_gibbs(model, T, P, roots):
+    """Index of the usable root of lowest ln phi (roots with dP/dv > 0 are not usable)."""
+    best = np.full(T.shape, np.inf)
+    pick = np.zeros(T.shape, np.int8)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        for k in range(3):
+            vk = roots[:, k]
+            lnphi = model.ln_phi(T, vk, P)
+            usable = np.isfinite(vk) & ~(model.dP_dv(T, vk) > 0.0) & np.isfinite(lnphi)
+            lower = usable & (lnphi < best)   # strict: the first of equal ones wins
+            best = np.where(lower, lnphi, best)
+            pick[lower] = k
+    return pick
+
+
+def phase_codes(model, T, P, v):
+    """Phase code of single-phase states: above Tc by pressure, below Tc by v against v_c."""
+    Tc, Pc = model.fluid.Tc, model.fluid.Pc
+    v_c = getattr(model, "v_c", 0.0)
+    code = np.where(v < v_c, LIQUID, VAPOR).astype(np.int8)   # NaN reads as vapour
+    above = T >= Tc
+    code[above & (P >= Pc)] = SUPERCRITICAL
+    code[above & (P < Pc)] = VAPOR
+    return code

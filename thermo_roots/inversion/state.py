@@ -15,13 +15,48 @@ from ..errors import DomainError, InputError
 from ..models import IdealGas, R, _scalar_or_array
 from ..roots import find_root
 from ..units import STANDARD_ATMOSPHERE, to_si
-from .cubic import volume_roots
+from .cubic import phase_codes, stable_roots, volume_roots
 from .saturation import saturation_pressure, saturation_temperature
 
 #: Root kinds, as labelled on every root.
 LIQUID_LIKE, VAPOR_LIKE, UNSTABLE = "liquid-like", "vapor-like", "unstable"
 #: Phases a state can have.
 PHASES = ("liquid", "vapor", "supercritical", "two-phase")
+#: The phases as an object array, indexed by the integer codes of the cubic module.
+_PHASE_OBJECTS = np.array(PHASES, dtype=object)
+
+
+class _PhaseCodes:
+    """Phases held as int8 codes (indices into PHASES) until someone reads them."""
+
+    __slots__ = ("codes",)
+
+    def __init__(self, codes):
+        self.codes = codes
+
+
+class _Phase:
+    """The descriptor behind State.phase: strings, built from codes on first read.
+
+    A (T, P) solve of many states stores small integer codes; the object array of
+    strings that users see ("liquid", "two-phase", ...) costs more than the solve's own
+    bookkeeping, so it is made once, when ``phase`` is first read, and kept.
+    """
+
+    def __set_name__(self, owner, name):
+        self.slot = "_" + name
+
+    def __get__(self, state, owner=None):
+        if state is None:
+            raise AttributeError("phase has no default")   # tells dataclass: a required field
+        value = state.__dict__[self.slot]
+        if isinstance(value, _PhaseCodes):
+            value = _PHASE_OBJECTS.take(value.codes)
+            state.__dict__[self.slot] = value
+        return value
+
+    def __set__(self, state, value):   # reached from the dataclass __init__ only (frozen)
+        state.__dict__[self.slot] = value
 _VOLUME_KNOWNS = ("v", "rho", "rho_mass")
 _ALL_KNOWNS = ("T", "P") + _VOLUME_KNOWNS + ("quality",)
 _BRANCHES = ("stable", "liquid", "vapor")
@@ -66,7 +101,7 @@ class State:
     T: object
     P: object
     v: object
-    phase: object
+    phase: object = _Phase()
     quality: object
     v_liquid: object = field(repr=False)
     v_vapor: object = field(repr=False)
@@ -260,18 +295,20 @@ def _read_knowns(model, knowns, atmosphere):
 # --------------------------------------------------------------------------- the pairs
 
 def _from_T_P(model, T, P, branch):
-    v_roots = volume_roots(model, T, P) if not isinstance(model, IdealGas) else _ideal_roots(T, P)
-    kinds = _root_kinds(model, T, v_roots)
     if isinstance(model, IdealGas):
-        lnphi = np.where(np.isfinite(v_roots), 0.0, np.nan)
+        v_roots = _ideal_roots(T, P)
+        stable, v = np.zeros(T.shape, np.int8), v_roots[:, 0]
+        phase = phase_codes(model, T, P, v)
     else:
-        with np.errstate(invalid="ignore"):
-            lnphi = model.ln_phi(T[..., None], v_roots, P[..., None])
-    stable = _stable_index(lnphi, kinds)
-    chosen = _branch_index(kinds, stable, branch)
-    v = np.take_along_axis(v_roots, chosen[..., None], axis=-1)[..., 0]
-    phase = _single_phase(model, T, P, v)
-    return dict(T=T, P=P, v=v, phase=phase, roots=v_roots, metastable=chosen != stable)
+        v_roots, stable, v, phase = stable_roots(model, T, P)
+    if branch == "stable":
+        metastable = np.zeros(T.shape, bool)
+    else:
+        chosen = _branch_index(_root_kinds(model, T, v_roots), stable, branch)
+        v = np.take_along_axis(v_roots, chosen[..., None], axis=-1)[..., 0]
+        phase = phase_codes(model, T, P, v)
+        metastable = chosen != stable
+    return dict(T=T, P=P, v=v, phase=phase, roots=v_roots, metastable=metastable)
 
 
 def _from_T_v(model, T, v):
@@ -408,12 +445,7 @@ def _branch_index(kinds, stable, branch):
 def _single_phase(model, T, P, v):
     """Phase of a single-phase state: above Tc by pressure, below Tc by the root's side of v_c."""
     T, P, v = np.broadcast_arrays(np.asarray(T), np.asarray(P), np.asarray(v))
-    Tc, Pc = model.fluid.Tc, model.fluid.Pc
-    v_c = getattr(model, "v_c", 0.0)
-    phase = np.where(v < v_c, "liquid", "vapor").astype(object)
-    phase[(T >= Tc) & (P >= Pc)] = "supercritical"
-    phase[(T >= Tc) & (P < Pc)] = "vapor"
-    return phase
+    return _PHASE_OBJECTS.take(phase_codes(model, T, P, v))
 
 
 def _sat_or_nan(model, x, critical, solver):
@@ -436,7 +468,11 @@ def _make_state(model, shape, knowns, *, T, P, v, phase, roots, quality=None, v_
         a = np.asarray(nan if a is None else a, dtype=dtype).reshape(shape)
         return a.item() if shape == () else a
 
-    return State(model, shaped(T, float), shaped(P, float), shaped(v, float), shaped(phase, object),
+    if phase.dtype == np.int8:   # codes from the (T, P) path: strings made when first read
+        phase = _PhaseCodes(phase.reshape(shape)) if shape else PHASES[int(phase.reshape(()))]
+    else:
+        phase = shaped(phase, object)
+    return State(model, shaped(T, float), shaped(P, float), shaped(v, float), phase,
                  shaped(quality, float), shaped(v_liquid, float), shaped(v_vapor, float),
                  np.asarray(roots, dtype=float).reshape(shape + (3,)),
                  shaped(np.zeros(np.shape(T), bool) if metastable is None else metastable, bool),

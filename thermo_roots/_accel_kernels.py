@@ -1,0 +1,138 @@
+"""The compiled loops of :mod:`thermo_roots._accel`; importing this module needs numba.
+
+Kept in a module of their own, at module level, so that numba's on-disk cache
+(``cache=True``) finds them again in the next process.
+"""
+
+from __future__ import annotations
+
+import functools
+
+import numba
+import numpy as np
+
+jit = functools.partial(numba.njit, cache=True, nogil=True, error_model="numpy")
+
+
+
+@jit
+def polish(z, c2, c1, c0):
+    f = ((z + c2) * z + c1) * z + c0
+    df = (3.0 * z + 2.0 * c2) * z + c1
+    z_new = z - f / df
+    f_new = ((z_new + c2) * z_new + c1) * z_new + c0
+    if np.isfinite(z_new) and abs(f_new) < abs(f):
+        return z_new
+    return z
+
+
+@jit
+def one_real_root(c2, c1, c0):
+    shift = c2 / 3.0
+    p = c1 - c2 * shift
+    q = (2.0 * shift * shift - c1) * shift + c0
+    disc = (q * q) / 4.0 + (p * p * p) / 27.0
+    if disc > 0.0:
+        u = np.cbrt(-q / 2.0 - np.copysign(np.sqrt(disc), q))
+        root = u - p / (3.0 * u) if u != 0.0 else 0.0
+    else:
+        pt = p if p < 0.0 else 0.0
+        m = 2.0 * np.sqrt(-pt / 3.0)
+        cos_arg = 3.0 * q / (pt * m) if m > 0.0 else 0.0
+        cos_arg = -1.0 if cos_arg < -1.0 else (1.0 if cos_arg > 1.0 else cos_arg)
+        root = m * np.cos(np.arccos(cos_arg) / 3.0)
+    return root - shift
+
+
+@jit
+def ln_phi_and_slope(T, v, P, a, prm):
+    Tc, Pc, a_c, b, c, v_min, v_c, d1, d2, slope, R = prm
+    RT = R * T
+    w = v + c
+    if d1 == d2:
+        integral = 1.0 / (w + d1 * b)
+    else:
+        integral = np.log((w + d1 * b) / (w + d2 * b)) / ((d1 - d2) * b)
+    Z = P * v / RT
+    helmholtz = -R * T * np.log1p(-v_min / v) - a * integral
+    ln_phi = helmholtz / RT + Z - 1.0 - np.log(Z)
+    D = (w + d1 * b) * (w + d2 * b)
+    gap = v - v_min
+    dP_dv = -R * T / (gap * gap) + a * (2.0 * (v + c) + (d1 + d2) * b) / (D * D)
+    return ln_phi, dP_dv
+
+
+@jit
+def kernel(T_in, P_in, kind, prm, roots, stable, v_out, phase):
+    Tc, Pc, a_c, b, c, v_min, v_c, d1, d2, slope, R = prm
+    u, w = d1 + d2, d1 * d2
+    nan = np.nan
+    for i in range(T_in.size):
+        T, P = T_in[i], P_in[i]
+        if kind == 0:
+            alpha = 1.0
+        elif kind == 1:
+            alpha = (T / Tc) ** -0.5
+        else:
+            root = 1.0 + slope * (1.0 - np.sqrt(T / Tc))
+            alpha = root * root
+        a = a_c * alpha
+        RT = R * T
+        A = a * P / (RT * RT)
+        B = b * P / RT
+        c2 = (u - 1.0) * B - 1.0
+        c1 = A + w * B * B - u * B * (1.0 + B)
+        c0 = -B * (A + w * B * (1.0 + B))
+        # one root in closed form, polished twice; the others from the deflated quadratic
+        z0 = one_real_root(c2, c1, c0)
+        z1 = polish(z0, c2, c1, c0)
+        if z1 != z0:   # a refused step is refused again: a second polish only after a taken one
+            z1 = polish(z1, c2, c1, c0)
+        size = abs(z1)
+        if size * size * size >= abs(c0):
+            safe = z1 if z1 != 0.0 else 1.0
+            g0 = -c0 / safe
+            g1 = (g0 - c1) / safe
+        else:
+            g1 = c2 + z1
+            g0 = c1 + z1 * g1
+        disc = g1 * g1 - 4.0 * g0
+        if disc >= 0.0:
+            q = -0.5 * (g1 + np.copysign(np.sqrt(disc), g1))
+            z3 = g0 / q if q != 0.0 else 0.0
+            z2, z3 = polish(q, c2, c1, c0), polish(z3, c2, c1, c0)
+            lo, hi = (z2, z3) if z2 <= z3 else (z3, z2)
+            s0 = lo if lo < z1 else z1
+            s1 = lo if lo > (hi if hi < z1 else z1) else (hi if hi < z1 else z1)
+            s2 = hi if hi > z1 else z1
+        else:
+            s0, s1, s2 = z1, nan, nan
+        # keep Z > B: the left-out roots are the first ones of the sorted three
+        left_out = (s0 <= B) + (s1 <= B) + (s2 <= B)
+        if left_out == 0:
+            r0, r1, r2 = s0, s1, s2
+        elif left_out == 1:
+            r0, r1, r2 = s1, s2, nan
+        elif left_out == 2:
+            r0, r1, r2 = s2, nan, nan
+        else:
+            r0, r1, r2 = nan, nan, nan
+        scale = R * T / P
+        r0, r1, r2 = r0 * scale - c, r1 * scale - c, r2 * scale - c
+        roots[i, 0], roots[i, 1], roots[i, 2] = r0, r1, r2
+        pick, v = 0, r0
+        if np.isfinite(r1):   # several roots: the usable one of lowest ln phi
+            best = np.inf
+            for k in range(3):
+                vk = r0 if k == 0 else (r1 if k == 1 else r2)
+                if not np.isfinite(vk):
+                    continue
+                lnphi, dP_dv = ln_phi_and_slope(T, vk, P, a, prm)
+                if not (dP_dv > 0.0) and np.isfinite(lnphi) and lnphi < best:
+                    best, pick, v = lnphi, k, vk
+        stable[i] = pick
+        v_out[i] = v
+        if T >= Tc:
+            phase[i] = 2 if P >= Pc else 1
+        else:
+            phase[i] = 0 if v < v_c else 1
