@@ -12,8 +12,13 @@ from thermo_roots.units import to_si
     ("80 bar", "P", 8.0e6), ("1160 psi", "P", 1160 * 6894.757293168), ("2.5 MPa", "P", 2.5e6),
     ("0.5 L/mol", "v", 5e-4), ("500 cm^3/mol", "v", 5e-4), ("12 mol/L", "rho", 12000.0),
     ("850 kg/m^3", "rho_mass", 850.0), ("30 %", "quality", 0.3), ("0.3", "quality", 0.3),
+    ("850 kg/m3", "rho_mass", 850.0), ("500 cm3/mol", "v", 5e-4), ("0.01 m3/kg", "rho_mass", None),
 ])
 def test_text_with_units(text, quantity, expected):
+    if expected is None:  # a specific volume is no density: refused, not misread
+        with pytest.raises(tr.InputError):
+            to_si(text, quantity)
+        return
     assert to_si(text, quantity) == pytest.approx(expected, rel=1e-12)
 
 

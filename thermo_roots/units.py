@@ -108,7 +108,7 @@ def _string_to_si(text: str, quantity: str, molar_mass, atmosphere):
     if gauge:
         unit = gauge
     ureg = registry()
-    spelled = _UNIT_SPELLINGS.get(unit.lower(), unit) if unit else ""
+    spelled = _UNIT_SPELLINGS.get(unit.lower(), _powers(unit)) if unit else ""
     try:
         q = ureg.Quantity(number, spelled) if spelled else ureg.Quantity(number)
     except Exception:  # pint raises several types for unknown or malformed units
@@ -119,6 +119,11 @@ def _string_to_si(text: str, quantity: str, molar_mass, atmosphere):
     if gauge:
         si = si + to_si(atmosphere, "P")
     return si
+
+
+def _powers(unit: str) -> str:
+    """Engineers write "kg/m3" and "cm3/mol": a digit straight after a unit name is a power."""
+    return re.sub(r"(?<=[A-Za-z])(\d+)", r"^\1", unit)
 
 
 def _gauge_unit(unit: str):
