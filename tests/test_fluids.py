@@ -50,3 +50,13 @@ def test_user_defined_fluid_and_its_validation():
         kwargs = dict(Tc=350.0, Pc=4.0e6, omega=0.2, molar_mass=0.05) | bad
         with pytest.raises(tr.InputError):
             tr.Fluid("bad", **kwargs)
+
+
+def test_shipped_library_table_is_what_coolprop_reports():
+    # the table lets get_fluid skip CoolProp's slow import; it must hold CoolProp's values exactly
+    from thermo_roots.fluids import LIBRARY_TABLE, library_table_from_coolprop
+    import json
+
+    shipped = json.loads(LIBRARY_TABLE.read_text(encoding="utf-8"))
+    live = library_table_from_coolprop()
+    assert shipped["fluids"] == live["fluids"], "run `python -m thermo_roots.fluids` to refresh the table"

@@ -8,7 +8,9 @@ from __future__ import annotations
 
 import difflib
 import functools
+import json
 import math
+import pathlib
 import re
 from dataclasses import dataclass
 
@@ -95,16 +97,44 @@ _EXTRA_ALIASES = {
 }
 
 
+#: Constants of CoolProp's fluid library, written by :func:`library_table_from_coolprop`.
+#: Reading this file instead of importing CoolProp keeps the first solve quick (CoolProp's
+#: import takes seconds); tests/test_fluids.py checks it against CoolProp itself.
+LIBRARY_TABLE = pathlib.Path(__file__).with_name("fluid_library.json")
+
+
+@functools.lru_cache(maxsize=1)
+def _library_table() -> dict[str, dict]:
+    return json.loads(LIBRARY_TABLE.read_text(encoding="utf-8"))["fluids"]
+
+
+def library_table_from_coolprop() -> dict:
+    """Every fluid's constants, aliases and CAS number as CoolProp reports them now.
+
+    Run ``python -m thermo_roots.fluids`` to rewrite :data:`LIBRARY_TABLE` after a CoolProp
+    upgrade.
+    """
+    import CoolProp
+    import CoolProp.CoolProp as CP
+
+    fluids = {}
+    for name in CP.get_global_param_string("FluidsList").split(","):
+        state = CoolProp.AbstractState("HEOS", name)
+        fluids[name] = {
+            "Tc": float(state.T_critical()), "Pc": float(state.p_critical()),
+            "omega": float(state.acentric_factor()), "molar_mass": float(state.molar_mass()),
+            "CAS": CP.get_fluid_param_string(name, "CAS"),
+            "aliases": [a for a in CP.get_fluid_param_string(name, "aliases").split(",") if a],
+        }
+    return {"source": f"CoolProp {CoolProp.__version__}", "fluids": dict(sorted(fluids.items()))}
+
+
 @functools.lru_cache(maxsize=1)
 def _library_index() -> dict[str, str]:
     """Map every normalised name, alias and CAS number to CoolProp's fluid name."""
-    import CoolProp.CoolProp as CP
-
     index: dict[str, str] = {}
-    for fluid in CP.get_global_param_string("FluidsList").split(","):
-        names = [fluid, CP.get_fluid_param_string(fluid, "CAS")]
-        names += CP.get_fluid_param_string(fluid, "aliases").split(",")
-        for alias in names:
+    for fluid, entry in _library_table().items():
+        for alias in [fluid, entry["CAS"], *entry["aliases"]]:
             if alias:
                 index.setdefault(_normalise(alias), fluid)
     for alias, fluid in _EXTRA_ALIASES.items():
@@ -159,14 +189,11 @@ def get_fluid(name: str) -> Fluid:
 
 
 def _fluid_from_library(library_name: str) -> Fluid:
-    import CoolProp
+    entry = _library_table()[library_name]
+    return Fluid(name=library_name, Tc=entry["Tc"], Pc=entry["Pc"], omega=entry["omega"],
+                 molar_mass=entry["molar_mass"], library_name=library_name)
 
-    state = CoolProp.AbstractState("HEOS", library_name)
-    return Fluid(
-        name=library_name,
-        Tc=float(state.T_critical()),
-        Pc=float(state.p_critical()),
-        omega=float(state.acentric_factor()),
-        molar_mass=float(state.molar_mass()),
-        library_name=library_name,
-    )
+
+if __name__ == "__main__":
+    LIBRARY_TABLE.write_text(json.dumps(library_table_from_coolprop(), indent=1) + "\n", encoding="utf-8")
+    print(f"wrote {LIBRARY_TABLE}")
