@@ -12,8 +12,9 @@ README = (ROOT / "README.md").read_text(encoding="utf-8")
 def test_python_examples_in_the_readme_run():
     blocks = re.findall(r"```python\n(.*?)```", README, flags=re.S)
     assert blocks
+    namespace = {"tr": tr}  # the blocks read as one session, top to bottom
     for block in blocks:
-        exec(compile(block, "README.md", "exec"), {"tr": tr})
+        exec(compile(block, "README.md", "exec"), namespace)
 
 
 def test_quick_start_has_exactly_two_commands_and_ci_runs_the_second_verbatim():
