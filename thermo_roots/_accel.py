@@ -24,6 +24,7 @@ Computational Aspects, 2nd ed., ch. 3.
 
 from __future__ import annotations
 
+import contextlib
 import functools
 import os
 
@@ -34,6 +35,19 @@ from .models import PR76, PR78, RK, SRK, VDW, R, _kappa_pr76, _kappa_pr78, _m_so
 #: Alpha functions the kernel knows, by code: constant, Redlich-Kwong Tr^-1/2, Soave form.
 _ALPHA_CONSTANT, _ALPHA_RK, _ALPHA_SOAVE = 0, 1, 2
 _SOAVE_SLOPES = {SRK: _m_soave, PR76: _kappa_pr76, PR78: _kappa_pr78}
+
+
+_switched_off = []   # non-empty inside `disabled()`
+
+
+@contextlib.contextmanager
+def disabled():
+    """Run the numpy path inside this block (for comparisons in tests and benchmarks)."""
+    _switched_off.append(True)
+    try:
+        yield
+    finally:
+        _switched_off.pop()
 
 
 def available() -> bool:
@@ -47,7 +61,7 @@ def stable_roots_kernel(model):
     None when numba is missing, ``THERMO_ROOTS_ACCEL=0`` is set, or the model's alpha
     function is not one of the built-in families (the numpy path then serves it).
     """
-    kernel = _compiled()
+    kernel = None if _switched_off else _compiled()
     if kernel is None:
         return None
     family = model.family

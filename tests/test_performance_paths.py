@@ -1,0 +1,154 @@
+"""The fast (T, P) paths give the answers of the plain definitions.
+
+The compiled loop (thermo_roots._accel, optional, needs numba) and the chunked numpy path
+(thermo_roots.inversion.cubic) must agree to 1e-12 relative; the numpy path must pick
+the root the textbook rule picks (Michelsen & Mollerup 2007, Thermodynamic Models, 2nd
+ed., ch. 3: of the roots with dP/dv <= 0, the one of lowest Gibbs energy, i.e. lowest
+ln phi), computed here with the model's own ln_phi and dP_dv on every root.
+"""
+
+import os
+import subprocess
+import sys
+import tracemalloc
+
+import numpy as np
+import pytest
+
+import thermo_roots as tr
+from thermo_roots import _accel
+from thermo_roots.inversion import cubic
+from thermo_roots.inversion.state import PHASES, _root_kinds, _stable_index
+from thermo_roots.models import CubicFamily, _soave_alpha
+
+
+def _states(fluid, n, seed):
+    """Random states over 0.5-2 Tc and 1e-3 to 3 Pc (log-spaced): liquid, vapour,
+    three-root and supercritical states alike."""
+    rng = np.random.default_rng(seed)
+    return rng.uniform(0.5, 2.0, n) * fluid.Tc, fluid.Pc * np.exp(rng.uniform(np.log(1e-3), np.log(3.0), n))
+
+
+MODELS = [("PR", {}), ("SRK", {}), ("PR78", {}), ("RK", {}), ("vdW", {}), ("PR", {"volume_shift": "peneloux"})]
+
+
+def _model(short, options, fluid):
+    return tr.MODELS[short](fluid, **options)
+
+
+def _agree(fast, slow, rtol):
+    f_roots, f_stable, f_v, f_phase = fast
+    s_roots, s_stable, s_v, s_phase = slow
+    np.testing.assert_array_equal(np.isfinite(f_roots), np.isfinite(s_roots))
+    np.testing.assert_allclose(f_roots, s_roots, rtol=rtol, atol=0.0, equal_nan=True)
+    np.testing.assert_allclose(f_v, s_v, rtol=rtol, atol=0.0, equal_nan=True)
+    np.testing.assert_array_equal(f_stable, s_stable)
+    np.testing.assert_array_equal(f_phase, s_phase)
+
+
+@pytest.mark.parametrize("short,options", MODELS, ids=[m[0] + ("-pen" if m[1] else "") for m in MODELS])
+def test_compiled_loop_agrees_with_numpy_path_on_1e5_states(short, options, co2):
+    pytest.importorskip("numba")
+    model = _model(short, options, co2)
+    kernel = _accel.stable_roots_kernel(model)
+    if kernel is None:
+        pytest.skip("accelerator switched off (THERMO_ROOTS_ACCEL=0)")
+    T, P = _states(co2, 10**5, seed=5)
+    _agree(kernel(T, P), cubic.stable_roots_numpy(model, T, P), rtol=1e-12)
+
+
+def test_compiled_loop_agrees_on_the_benchmark_box(co2):
+    """CO2, 220-500 K, 0.1-20 MPa, as in benchmarks/run.py."""
+    pytest.importorskip("numba")
+    model = tr.PengRobinson(co2)
+    kernel = _accel.stable_roots_kernel(model)
+    if kernel is None:
+        pytest.skip("accelerator switched off (THERMO_ROOTS_ACCEL=0)")
+    rng = np.random.default_rng(11)
+    T, P = rng.uniform(220.0, 500.0, 10**5), rng.uniform(1e5, 2e7, 10**5)
+    _agree(kernel(T, P), cubic.stable_roots_numpy(model, T, P), rtol=1e-12)
+
+
+@pytest.mark.parametrize("short,options", MODELS, ids=[m[0] + ("-pen" if m[1] else "") for m in MODELS])
+def test_numpy_path_picks_the_lowest_gibbs_root(short, options, propane):
+    model = _model(short, options, propane)
+    T, P = _states(propane, 20000, seed=3)
+    roots, stable, v, phase = cubic.stable_roots_numpy(model, T, P)
+    np.testing.assert_array_equal(roots, tr.volume_roots(model, T, P))
+    kinds = _root_kinds(model, T, roots)
+    lnphi = model.ln_phi(T[:, None], roots, P[:, None])
+    expected = _stable_index(lnphi, kinds)
+    np.testing.assert_array_equal(stable, expected)
+    np.testing.assert_array_equal(v, np.take_along_axis(roots, expected[:, None], axis=-1)[:, 0])
+    assert np.mean(np.isfinite(roots[:, 2])) > 0.02, "the sample should hold three-root states"
+    # phase by its definition: above Tc by pressure, below it by the side of v_c (common practice)
+    Tc, Pc = propane.Tc, propane.Pc
+    want = np.where(T >= Tc, np.where(P >= Pc, "supercritical", "vapor"), np.where(v < model.v_c, "liquid", "vapor"))
+    np.testing.assert_array_equal(np.array(PHASES)[phase], want)
+
+
+def test_volume_roots_are_the_same_across_chunk_boundaries(co2):
+    model = tr.PengRobinson(co2)
+    n = 2 * cubic.CHUNK + 17
+    T, P = _states(co2, n, seed=9)
+    c2, c1, c0, B = model.cubic_coefficients(T, P)
+    Z = cubic.cubic_real_roots(c2, c1, c0)          # one whole-array pass, no chunks
+    Z = np.sort(np.where(Z > B[:, None], Z, np.nan), axis=-1)
+    expected = Z * (tr.R * T / P)[:, None] - model.c
+    np.testing.assert_array_equal(tr.volume_roots(model, T, P), expected)
+    np.testing.assert_array_equal(tr.volume_roots(model, T.reshape(-1, 1), P.reshape(-1, 1))[:, 0], expected)
+
+
+def test_large_solve_phase_reads_as_strings_on_both_paths(co2):
+    model = tr.PengRobinson(co2)
+    T, P = _states(co2, 5000, seed=4)
+    fast = tr.solve(model, T=T, P=P)
+    with _accel.disabled():
+        slow = tr.solve(model, T=T, P=P)
+    assert fast.phase.dtype == object and set(fast.phase) <= set(PHASES)
+    assert list(fast.phase) == list(slow.phase)
+    assert isinstance(fast.phase[0], str)
+    np.testing.assert_array_equal(fast.phase == "supercritical", (T >= co2.Tc) & (P >= co2.Pc))
+    np.testing.assert_allclose(fast.v, slow.v, rtol=1e-12)
+    for i in (0, 1, 2, 999, 4999):
+        one = tr.solve(model, T=T[i], P=P[i])
+        assert one.phase == fast.phase[i] and one.v == pytest.approx(fast.v[i], rel=1e-12)
+
+
+def test_a_family_the_loop_does_not_know_takes_the_numpy_path(co2):
+    # a Soave alpha with its own slope: not one of the built-in parameter sets
+    family = CubicFamily("PR with a fitted slope", 1.0 + 2**0.5, 1.0 - 2**0.5, _soave_alpha(lambda w: 0.7))
+    model = tr.CubicModel(co2, family)
+    assert _accel.stable_roots_kernel(model) is None
+    T, P = _states(co2, 4000, seed=8)
+    roots, stable, v, phase = cubic.stable_roots(model, T, P)
+    np.testing.assert_array_equal(v, tr.solve(model, T=T, P=P).v)
+
+
+def test_switching_the_accelerator_off_by_environment():
+    code = "from thermo_roots import _accel; print(_accel.available())"
+    env = dict(os.environ, THERMO_ROOTS_ACCEL="0")
+    out = subprocess.run([sys.executable, "-c", code], env=env, capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"
+
+
+def test_peak_memory_of_a_large_solve_stays_under_300_bytes_per_state(co2):
+    """The numpy path works in chunks, so its temporaries do not grow with the input."""
+    model = tr.PengRobinson(co2)
+    T, P = _states(co2, 2 * 10**5, seed=6)
+    for context in (_accel.disabled, _Nothing):
+        with context():
+            tracemalloc.start()
+            state = tr.solve(model, T=T, P=P)
+            _, peak = tracemalloc.get_traced_memory()
+            tracemalloc.stop()
+            assert peak / T.size < 300.0
+            assert state.v.shape == T.shape
+
+
+class _Nothing:
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc):
+        return False
