@@ -2,7 +2,8 @@
 
 Every panel is an ipywidgets box that can be filled and driven from Python as well as by
 hand: build it with the values, call ``.solve()`` (what its button does), read ``.result``
-(the library result last shown) and ``.error`` (None, or the message last shown).
+(the library result last shown) and ``.error`` (None, or the message last shown). A
+refused input is explained beside its field; the previous result stays on screen.
 
 - :class:`StatePanel` -- one state point from two knowns, its roots and reference check.
 - :class:`IsothermExplorer` -- a live P-v isotherm with the dome and the roots at a pressure.
@@ -10,7 +11,9 @@ hand: build it with the values, call ``.solve()`` (what its button does), read `
 - :class:`RootTracePanel` -- the residual and every root finder's iterates for one state.
 """
 
+from .accuracy_panel import AccuracyPanel
+from .isotherm_explorer import IsothermExplorer
 from .root_trace import RootTracePanel
 from .state_panel import StatePanel
 
-__all__ = ["RootTracePanel", "StatePanel"]
+__all__ = ["AccuracyPanel", "IsothermExplorer", "RootTracePanel", "StatePanel"]

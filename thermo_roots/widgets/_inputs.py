@@ -49,7 +49,7 @@ class QuantityField:
     ("293.15 K", "8 bar(g)"), which then wins over the unit selector.
     """
 
-    def __init__(self, quantity: str, value="", *, label: str | None = None, units=None):
+    def __init__(self, quantity: str, value="", *, label: str | None = None, units=None, key=None):
         self.quantity = quantity
         options = units if units is not None else UNITS[quantity]
         self.text = w.Text(layout=w.Layout(width="120px"), continuous_update=False)
@@ -58,6 +58,8 @@ class QuantityField:
         self.label = _label(label or LABELS[quantity])
         self.box = w.HBox([self.label, self.text, self.unit, self.message],
                           layout=w.Layout(align_items="center"))
+        self.text.add_class(f"tr-value-{key or quantity}")     # handles for a browser test
+        self.unit.add_class(f"tr-unit-{key or quantity}")
         self.set(value)
 
     def set(self, value) -> None:
@@ -132,8 +134,8 @@ class FluidField:
                                placeholder="type a name, e.g. propane", layout=w.Layout(width="217px"))
         self.message = w.HTML()
         self.custom_name = w.Text(value="my fluid", layout=w.Layout(width="120px"))
-        self.Tc = QuantityField("T", "369.9 K", label="Critical temperature")
-        self.Pc = QuantityField("P", "42.5 bar", label="Critical pressure",
+        self.Tc = QuantityField("T", "369.9 K", label="Critical temperature", key="Tc")
+        self.Pc = QuantityField("P", "42.5 bar", label="Critical pressure", key="Pc",
                                 units=[u for u in UNITS["P"] if not u[1].endswith("g")])
         self.omega = w.Text(value="0.152", layout=w.Layout(width="120px"))
         self.molar_mass = w.Text(value="44.1", layout=w.Layout(width="120px"))
@@ -146,6 +148,7 @@ class FluidField:
         ], layout=w.Layout(margin="0 0 0 20px"))
         self.box = w.VBox([w.HBox([_label("Fluid"), self.name, self.message],
                                   layout=w.Layout(align_items="center")), self.custom_box])
+        self.name.add_class("tr-fluid")
         self.name.observe(self._show_custom, "value")
         self.set(fluid)
 
@@ -246,6 +249,7 @@ class ModelChoice:
         unknown = [m for m in models if m not in MODELS]
         if unknown:
             raise FieldError(f"Unknown model {', '.join(map(repr, unknown))}; choose from {', '.join(MODELS)}.")
+        self._order = models + [k for k in MODELS if k not in models]   # as given, then the rest
         self.boxes = {k: w.Checkbox(value=k in models, description=k, indent=False,
                                     tooltip=model_label(k), layout=w.Layout(width="70px"))
                       for k in MODELS}
@@ -255,7 +259,7 @@ class ModelChoice:
 
     @property
     def chosen(self) -> list[str]:
-        return [k for k, box in self.boxes.items() if box.value]
+        return [k for k in self._order if self.boxes[k].value]
 
     def models(self, fluid: Fluid) -> list:
         self.message.value = ""

@@ -35,14 +35,15 @@ def fmt(x, digits: int = 5) -> str:
     return f"{x:.{digits}g}"
 
 
-def table(rows, *, header=None, caption=None, highlight=None) -> str:
+def table(rows, *, header=None, caption=None, highlight=None, nowrap=False) -> str:
     """An HTML table; ``rows`` of already formatted cells; ``highlight`` a row index to bold."""
+    cell = _CELL + (";white-space:nowrap" if nowrap else "")
     head = ""
-    if header:
-        head = "<tr>" + "".join(f"<th style='{_CELL}'>{html.escape(h)}</th>" for h in header) + "</tr>"
+    if header is not None:
+        head = "<tr>" + "".join(f"<th style='{cell}'>{html.escape(h)}</th>" for h in header) + "</tr>"
     body = []
     for i, row in enumerate(rows):
-        style = _CELL + (";font-weight:bold;background:#eef5ee" if i == highlight else "")
+        style = cell + (";font-weight:bold;background:#eef5ee" if i == highlight else "")
         cells = "".join(f"<td style='{style}'>{c}</td>" for c in row)
         body.append(f"<tr>{cells}</tr>")
     cap = f"<caption style='{_CAPTION}'>{html.escape(caption)}</caption>" if caption else ""
@@ -57,6 +58,11 @@ def label_rows(rows) -> str:
 def caution_html() -> str:
     return ("<div style='border-left:4px solid #c77700;background:#fff6e5;padding:6px 10px;"
             f"margin:6px 0;font-size:0.9em'><b>Caution.</b> {html.escape(CAUTION)}</div>")
+
+
+def block(content: str) -> str:
+    """Wrap panel HTML so it reads as a document, not at the widgets' one-line height."""
+    return f"<div style='line-height:1.35;white-space:normal'>{content}</div>"
 
 
 def side_by_side(*blocks: str) -> str:

@@ -13,7 +13,7 @@ from .. import R, find_root, solve
 from ..errors import ThermoRootsError
 from ..roots import DEFAULT_METHOD, METHODS
 from ._inputs import FieldError, FluidField, ModelField, QuantityField, _label
-from ._render import FigureImage, caution_html, error_html, fmt, in_unit, table
+from ._render import FigureImage, block, caution_html, error_html, fmt, in_unit, table
 
 #: What can be traced: (label, unknown, the two knowns).
 PROBLEMS = (
@@ -130,7 +130,7 @@ class RootTracePanel(w.VBox):
         self.result, self.state, self.error, self._problem = results, problem.state, None, problem
         self.status.value = ""
         self._draw()
-        self.summary.value = self._summary_html()
+        self.summary.value = block(self._summary_html())
         self.detail.options = list(results)
         self.detail.value = self.methods[0]
         self._show_steps()
@@ -161,9 +161,9 @@ class RootTracePanel(w.VBox):
         frame = self.result[name].trace.to_frame()
         rows = [(str(int(s.iteration)), fmt(p.shown(s.x), 10), fmt(s.fx, 4),
                  fmt(p.shown(s.a), 8), fmt(p.shown(s.b), 8)) for s in frame.itertuples()]
-        self.steps.value = table(rows, header=("iteration", f"{p.symbol} [{p.unit_label}]", "residual",
+        self.steps.value = block(table(rows, header=("iteration", f"{p.symbol} [{p.unit_label}]", "residual",
                                               "bracket low", "bracket high"),
-                                 caption=f"Iterates of {name}")
+                                 caption=f"Iterates of {name}"))
 
     def _draw(self):
         p = self._problem

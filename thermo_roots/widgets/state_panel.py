@@ -9,7 +9,7 @@ import ipywidgets as w
 from .. import solve
 from ..errors import ThermoRootsError
 from ._inputs import LABELS, UNITS, FieldError, FluidField, ModelField, QuantityField, message_html
-from ._render import (caution_html, convergence_text, csv_link, error_html, fmt, in_unit, label_rows,
+from ._render import (block, caution_html, convergence_text, csv_link, error_html, fmt, in_unit, label_rows,
                       side_by_side, table)
 
 #: The pairs of knowns a person can choose, as (label, (first, second)).
@@ -81,7 +81,7 @@ class StatePanel(w.VBox):
             field.set(value)
             if name == "rho_mass" and isinstance(value, (int, float)):
                 field.unit.value = "kg/m^3"
-        self.atmosphere = QuantityField("P", atmosphere, label="Atmosphere (for gauge)",
+        self.atmosphere = QuantityField("P", atmosphere, label="Atmosphere", key="atmosphere",
                                         units=[u for u in UNITS["P"] if not u[1].endswith("g")])
         self.tag = w.Text(value=tag, placeholder="e.g. V-212", layout=w.Layout(width="120px"))
         self.solve_button = w.Button(description="Solve state", button_style="primary", icon="check")
@@ -92,6 +92,10 @@ class StatePanel(w.VBox):
         self.table_html = w.HTML()
         self.download = w.HTML()
         self.known_box = w.VBox()
+        for widget, name in ((self.solve_button, "tr-solve"), (self.add_button, "tr-add"),
+                             (self.output, "tr-result"), (self.status, "tr-status"),
+                             (self.table_html, "tr-table"), (self.pair, "tr-pair"), (self.tag, "tr-tag")):
+            widget.add_class(name)
         self.pair.observe(self._show_pair, "value")
         self.solve_button.on_click(lambda _: self.solve())
         self.add_button.on_click(lambda _: self.add_to_table())
@@ -157,7 +161,7 @@ class StatePanel(w.VBox):
         self.result, self.check, self.error = state, check, None
         self._given = ", ".join(f"{LABELS[q].lower()} {self.fields[q].shown()}" for q in self.pair.value)
         self.status.value = ""
-        self.output.value = self._render(state, check)
+        self.output.value = block(self._render(state, check))
         return state
 
     def _blame(self, text: str) -> FieldError:
@@ -177,8 +181,11 @@ class StatePanel(w.VBox):
             self.status.value = error_html(self.error)
             return self.table
         self._rows.append((self.tag.value.strip(), self._given, self.result, self.check))
-        self.table_html.value = self.table.to_html(index=False, float_format=lambda x: f"{x:.5g}",
-                                                   na_rep="-", border=0)
+        frame = self.table
+        rows = [[html.escape(fmt(x) if isinstance(x, float) else str(x)) for x in row]
+                for row in frame.itertuples(index=False)]
+        self.table_html.value = block(table(rows, header=frame.columns, caption="Collected state points",
+                                            nowrap=True))
         self.download.value = csv_link(self.table_csv(), "state_points.csv")
         return self.table
 
@@ -219,9 +226,10 @@ def _check_table(check) -> str:
     if not check.available:
         return table([(html.escape(check.reason),)], caption="Reference equation: not available")
     rows = [tuple(html.escape(c) for c in row) for row in check.rows()]
-    return table(rows, header=("quantity", "model", "reference", "deviation"),
-                 caption="Against the reference equation (CoolProp multiparameter); "
-                         "deviation = (model - reference) / reference")
+    return (table(rows, header=("quantity", "model", "reference", "deviation"),
+                  caption="Against the reference equation (CoolProp)")
+            + "<div style='font-size:0.85em;color:#555;margin:-4px 0 6px 0'>deviation = (model - reference) "
+              "/ reference; the reference is the fluid's multiparameter equation of state.</div>")
 
 
 def _table_row(tag, given, state, check) -> dict:
