@@ -1,0 +1,1 @@
+"""End-to-end test in a real browser: JupyterLab served locally, driven by Playwright."""

@@ -1,0 +1,91 @@
+"""The state-point notebook in a real browser: JupyterLab served on 127.0.0.1, opened in
+headless Chromium (Debian's package) through Playwright, every cell run, the panel filled
+in and solved by clicking, and the result and its reference deviation read off the page."""
+
+from __future__ import annotations
+
+import os
+import re
+from pathlib import Path
+
+import pytest
+
+import thermo_roots as tr
+from thermo_roots.reference import cross_check
+
+from .lab_server import lab_server
+
+CHROMIUM = Path("/usr/bin/chromium")
+ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
+        "--disable-component-update", "--disable-sync", "--no-first-run", "--disable-quic"]
+REPO = Path(__file__).resolve().parents[2]
+OUTPUT = REPO / "test-output"
+TIMEOUT_MS = 90_000      # any one wait: page load, kernel start, a cell, a solve
+
+
+def _need_chromium():
+    if CHROMIUM.exists():
+        return
+    if os.environ.get("CI") == "true":
+        pytest.fail(f"{CHROMIUM} is missing and CI=true: install Debian's chromium (apt-get install -y chromium).")
+    pytest.skip(f"{CHROMIUM} is not installed (apt-get install -y chromium); the browser test needs it.")
+
+
+def test_state_point_notebook_in_chromium(tmp_path):
+    _need_chromium()
+    from playwright.sync_api import expect, sync_playwright
+
+    OUTPUT.mkdir(exist_ok=True)
+    # what the page must show for TK-401: the library's own answer, computed here
+    state = tr.solve(tr.PengRobinson(tr.get_fluid("CO2")), T="-20 degC", P="18 barg")
+    deviation = f"{cross_check(state).deviation_rho_percent:+.3g} %"
+
+    with lab_server(REPO / "notebooks", tmp_path) as (base, token, _root), sync_playwright() as pw:
+        browser = pw.chromium.launch(executable_path=str(CHROMIUM), args=ARGS, timeout=TIMEOUT_MS)
+        try:
+            page = browser.new_page(viewport={"width": 1300, "height": 1900})
+            page.set_default_timeout(TIMEOUT_MS)
+            expect.set_options(timeout=TIMEOUT_MS)
+            # should JupyterLab still ask which kernel to start, take the notebook's own (python3)
+            page.add_locator_handler(
+                page.get_by_role("dialog").filter(has_text="Select Kernel"),
+                lambda dialog: dialog.get_by_role("button", name="Select Kernel").click())
+            page.goto(f"{base}/lab/tree/01_state_point.ipynb?token={token}")
+            notebook = page.locator(".jp-NotebookPanel:not(.lm-mod-hidden) .jp-Notebook")
+            expect(notebook).to_be_visible()
+            kernel = page.locator(".jp-StatusBar-Widget", has_text="Python 3 (ipykernel) | Idle")
+            expect(kernel).to_be_visible()        # the kernel has started and is ready
+            page.locator(".jp-SideBar.jp-mod-left .lm-TabBar-tab.lm-mod-current").click()   # fold the file list
+            expect(page.locator("#jp-left-stack")).to_be_hidden()
+
+            page.locator(".lm-MenuBar-item", has_text=re.compile(r"^Run$")).click()
+            page.locator(".lm-Menu-item[data-command='runmenu:run-all']").click()
+
+            panel = page.locator(".thermo-roots-state-panel")
+            expect(panel).to_be_visible()
+            result = panel.locator(".tr-result")
+            expect(result).to_contain_text("V-212")           # the pre-filled solve ran
+            expect(panel.locator(".tr-table")).to_contain_text("E-105")   # ... and the later cells
+            expect(page.locator(".jp-OutputArea-output", has_text="Caution.").last).to_be_visible()
+            expect(kernel).to_be_visible()        # every cell has finished
+
+            # fill the panel as a person would: TK-401, CO2 at -20 degC and 18 barg
+            panel.locator(".tr-tag input").fill("TK-401 check")
+            panel.locator(".tr-pair select").select_option(label="temperature and pressure")
+            panel.locator(".tr-fluid input").fill("CO2")
+            panel.locator(".tr-value-T input").fill("-20")
+            panel.locator(".tr-unit-T select").select_option(label="°C")
+            panel.locator(".tr-value-P input").fill("18")
+            panel.locator(".tr-value-P input").press("Tab")
+            panel.locator(".tr-unit-P select").select_option(label="barg")
+            panel.locator("button.tr-solve").click()
+
+            expect(result).to_contain_text("TK-401 check: CarbonDioxide, Peng-Robinson")
+            expect(result).to_contain_text("Against the reference equation")
+            expect(result).to_contain_text(deviation)
+            expect(result).to_contain_text("Caution.")
+            expect(panel.locator(".tr-status")).to_have_text("")
+            panel.scroll_into_view_if_needed()
+            page.screenshot(path=str(OUTPUT / "state_point_browser.png"))
+        finally:
+            browser.close()
