@@ -33,7 +33,9 @@ def bracket_test(v: dict, opts) -> np.ndarray:
     """
     width = np.abs(v["xo"] - v["x"])
     tol = opts.tol(np.minimum(np.abs(v["x"]), np.abs(v["xo"])))
-    v["margin"] = 0.5 * tol / width
+    # the smallest step is sized at the newest point x, where it is taken: sized at a far
+    # end nearer zero it can fall below the float spacing at x and re-evaluate the same point
+    v["margin"] = 0.5 * opts.tol(np.abs(v["x"])) / width
     return as_codes((width <= tol) | opts.small_f(v["fx"]))
 
 
