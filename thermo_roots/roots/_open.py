@@ -53,6 +53,7 @@ class Open:
             v["a"] = v["b"] = v["fa"] = v["fb"] = np.full(n, np.nan)
         self.first_points(work, opts)
         v["step"], v["grow"] = np.full(n, np.inf), np.zeros(n, dtype=np.int64)
+        v["verify"] = np.zeros(n, dtype=bool)
         return self._start_codes(v, opts)
 
     def _start_codes(self, v, opts):
@@ -75,6 +76,7 @@ class Open:
         in_bracket = ((z > v["a"]) & (z < v["b"])) | (np.abs(z - v["x"]) <= opts.tol(v["x"]))
         bisect = v["br"] & ~(formed & in_domain & in_bracket)
         z = np.where(bisect, v["a"] + 0.5 * (v["b"] - v["a"]), z)
+        z = np.where(v["verify"], self._verification_point(v, opts), z)
         step = np.abs(z - v["x"])
         v["grow"] = np.where(step > v["step"], v["grow"] + 1, 0)
         v["step"], v["xn"] = step, z
@@ -92,10 +94,22 @@ class Open:
         self._update_bracket(v, z, fz)
         tol = opts.tol(z)
         width_ok = v["br"] & (v["b"] - v["a"] <= tol)
-        codes = as_codes((v["step"] <= tol) | opts.small_f(fz) | width_ok)
+        short_step = v["step"] <= tol
+        done = (short_step & ~v["br"]) | opts.small_f(fz) | width_ok
+        # With a bracket a short step is no proof (a huge f at one end makes the first
+        # secant step tiny far from any root): probe one tolerance beyond it first.
+        v["verify"] = short_step & v["br"] & ~done & ~v["verify"]
+        codes = as_codes(done)
         bad = ~np.isfinite(fz)
         codes[bad] = DIVERGED
-        return codes, np.where(bad, np.nan, z)
+        root = np.where(width_ok, self._best_end(v)[1], z) if width_ok.any() else z
+        return codes, np.where(bad, np.nan, root)
+
+    @staticmethod
+    def _verification_point(v, opts):
+        """One tolerance from x towards the far bracket end, where the sign must change."""
+        far = np.where(np.abs(v["x"] - v["a"]) <= np.abs(v["x"] - v["b"]), v["b"], v["a"])
+        return v["x"] + np.copysign(np.minimum(opts.tol(v["x"]), 0.5 * np.abs(far - v["x"])), far - v["x"])
 
     @staticmethod
     def _update_bracket(v, z, fz) -> None:
