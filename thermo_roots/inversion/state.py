@@ -352,22 +352,45 @@ def _from_P_v(model, P, v):
                 roots=_roots_for(model, T, P), convergence=result)
 
 
-def _temperature_at(model, P, v):
-    """T [K] with P(T, v) = P, bracketed from the physics (see solve's Notes)."""
-    D = model._denominator(v)
+def temperature_bracket(model, P, v):
+    """Temperatures [K] that bracket the T with P(T, v) = P [Pa] at fixed v [m^3/mol].
+
+    T_lo = P (v - b)/R, where P(T_lo, v) <= P because the attraction term is never
+    negative; T_hi = (P + a(T_lo)/D(v)) (v - b)/R, where P(T_hi, v) >= P while a(T) falls,
+    doubled where the Soave alpha has turned upwards until the sign changes (see solve).
+    """
+    P, v = np.asarray(P, dtype=float), np.asarray(v, dtype=float)
     T_lo = P * (v - model.v_min) / R
     a_lo, _ = model.attraction(T_lo)
-    T_hi = (P + a_lo / D) * (v - model.v_min) / R * (1.0 + 1e-12)
+    T_hi = (P + a_lo / model._denominator(v)) * (v - model.v_min) / R * (1.0 + 1e-12)
     for _ in range(60):  # only needed where the Soave alpha has turned upwards
         short = model.pressure(T_hi, v) < P
         if not np.any(short):
             break
         T_hi = np.where(short, 2.0 * T_hi, T_hi)
+    return T_lo, T_hi
 
-    def pressure_gap(T, P_target, v_fixed):
-        return model.pressure(T, v_fixed) / P_target - 1.0
 
-    result = find_root(pressure_gap, bracket=(T_lo, T_hi), args=(P, v), xtol=0.0,
+def volume_bracket(model, T, P):
+    """Molar volumes [m^3/mol] that bracket at least one root of P(T, v) = P at T [K], P [Pa].
+
+    Just above the co-volume P(T, v) rises without bound; at v_min + RT/P the repulsive
+    term alone equals P, so the attraction makes P(T, v) < P there. With three roots a
+    bracketed method finds one of them, not necessarily the stable one.
+    """
+    T, P = np.asarray(T, dtype=float), np.asarray(P, dtype=float)
+    return model.v_min + 1e-9 * model.b, model.v_min + R * T / P
+
+
+def pressure_gap(T, v, P, model):
+    """Residual P(T, v)/P - 1 [-] of the (P, v) -> T and (T, P) -> v inversions."""
+    return model.pressure(T, v) / P - 1.0
+
+
+def _temperature_at(model, P, v):
+    """T [K] with P(T, v) = P, bracketed from the physics (see solve's Notes)."""
+    T_lo, T_hi = temperature_bracket(model, P, v)
+    result = find_root(pressure_gap, bracket=(T_lo, T_hi), args=(v, P, model), xtol=0.0,
                        rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=np.size(P) == 1)
     from .saturation import _require
 

@@ -9,7 +9,8 @@ import math
 import ipywidgets as w
 import numpy as np
 
-from .. import R, find_root, solve
+from .. import find_root, solve
+from ..inversion import pressure_gap, temperature_bracket, volume_bracket
 from ..errors import ThermoRootsError
 from ..roots import DEFAULT_METHOD, METHODS
 from ._inputs import FieldError, FluidField, ModelField, QuantityField, _label
@@ -22,7 +23,6 @@ PROBLEMS = (
 )
 _DEFAULTS = {"T": "20 degC", "P": "8 bar", "v": "3 L/mol"}
 _NUMBERED = 8          # iterates numbered on the plot; later ones, crowded at the root, are dots
-_LOWER_GAP = 1e-9      # the volume bracket starts this fraction of b above the co-volume
 
 
 class RootTracePanel(w.VBox):
@@ -228,20 +228,13 @@ class _Problem:
         self.model, self.unknown, self.T, self.P, self.v, self.given = model, unknown, T, P, v, given
         if unknown == "v":
             self.state = solve(model, T=T, P=P)
-            self.lo = model.v_min * (1.0 + _LOWER_GAP) if model.v_min > 0 else model.v_min + _LOWER_GAP * model.b
-            self.hi = model.v_min + R * T / P
+            self.lo, self.hi = (float(x) for x in volume_bracket(model, T, P))
             self.answer = float(self.state.v)
             self.marks = [(r.v, r.kind, r.stable) for r in self.state.roots]
             self.symbol, self.name, self.unit, self.unit_label, self.xscale = "v", "molar volume", "L/mol", "L/mol", "log"
         else:
             self.state = solve(model, P=P, v=v)
-            self.lo = P * (v - model.v_min) / R
-            hi = 2.0 * self.lo
-            for _ in range(60):
-                if self.residual(hi) > 0.0:
-                    break
-                hi *= 2.0
-            self.hi = hi
+            self.lo, self.hi = (float(x) for x in temperature_bracket(model, P, v))
             self.answer = float(self.state.T)
             self.marks = [(self.answer, "solve()", True)]
             self.symbol, self.name, self.unit, self.unit_label, self.xscale = "T", "temperature", "K", "K", "linear"
@@ -258,8 +251,8 @@ class _Problem:
 
     def residual(self, x):
         if self.unknown == "v":
-            return self.model.pressure(self.T, x) / self.P - 1.0
-        return self.model.pressure(x, self.v) / self.P - 1.0
+            return pressure_gap(self.T, x, self.P, self.model)
+        return pressure_gap(x, self.v, self.P, self.model)
 
     def slope(self, x):
         if self.unknown == "v":
