@@ -130,7 +130,10 @@ def _note(ax, text):
 
 
 def _caution(ax):
-    ax.annotate("\n".join(textwrap.wrap("Caution: " + CAUTION, 150)), xy=(0.0, -0.16), xycoords="axes fraction",
+    # wrap to the axes' width: about 3.5 pt per character at 6.5 pt type
+    width_pt = ax.get_position().width * ax.figure.get_figwidth() * 72.0
+    ax.annotate("\n".join(textwrap.wrap("Caution: " + CAUTION, max(40, int(width_pt / 3.5)))),
+                xy=(0.0, -0.16), xycoords="axes fraction",
                 ha="left", va="top", fontsize=6.5, color="0.25", annotation_clip=False)
 
 
