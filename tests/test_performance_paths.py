@@ -1,12 +1,16 @@
-"""The fast (T, P) paths give the answers of the plain definitions.
+"""The fast (T, P) and saturation paths give the answers of the plain definitions.
 
 The compiled loop (thermo_roots._accel, optional, needs numba) and the chunked numpy path
 (thermo_roots.inversion.cubic) must agree to 1e-12 relative; the numpy path must pick
 the root the textbook rule picks (Michelsen & Mollerup 2007, Thermodynamic Models, 2nd
 ed., ch. 3: of the roots with dP/dv <= 0, the one of lowest Gibbs energy, i.e. lowest
 ln phi), computed here with the model's own ln_phi and dP_dv on every root.
+The compiled saturation loop must agree with its numpy twin to 1e-12, with the same
+iteration counts (both are checked against the proven solver in
+tests/inversion/test_saturation_fast.py).
 """
 
+import importlib
 import os
 import subprocess
 import sys
@@ -152,3 +156,78 @@ class _Nothing:
 
     def __exit__(self, *exc):
         return False
+
+
+_sat = importlib.import_module("thermo_roots.inversion.saturation")
+
+
+def _saturation_twins(model, T, table, settings=None):
+    settings = _sat._SETTINGS if settings is None else settings
+    kernel = _accel.saturation_kernel(model)
+    if kernel is None:
+        pytest.skip("accelerator switched off (THERMO_ROOTS_ACCEL=0)")
+    return (kernel(T, _sat._TABLE_START, table, settings),
+            _sat._newton_saturation_numpy(model, T, _sat._TABLE_START, table, settings))
+
+
+def _same_saturation(fast, slow, rtol):
+    f_lnP, f_P, f_vl, f_vv, f_ok, f_it, f_ev = fast
+    s_lnP, s_P, s_vl, s_vv, s_ok, s_it, s_ev = slow
+    np.testing.assert_array_equal(f_ok, s_ok)
+    np.testing.assert_array_equal(f_ev, s_ev)
+    np.testing.assert_array_equal(f_it, s_it)
+    for a, b in ((f_P, s_P), (f_vl, s_vl), (f_vv, s_vv)):
+        np.testing.assert_allclose(a[f_ok], b[s_ok], rtol=rtol, atol=0.0)
+    np.testing.assert_allclose(f_lnP[f_ok], s_lnP[s_ok], rtol=rtol, atol=1e-14)   # ln P near 0: absolute
+
+
+@pytest.mark.parametrize("short,options", MODELS, ids=[m[0] + ("-pen" if m[1] else "") for m in MODELS])
+def test_compiled_saturation_loop_agrees_with_its_numpy_twin(short, options, co2, propane):
+    pytest.importorskip("numba")
+    for fluid, seed in ((co2, 1), (propane, 2), (tr.get_fluid("water"), 3), (tr.get_fluid("helium"), 4)):
+        model = _model(short, options, fluid)
+        T = np.random.default_rng(seed).uniform(0.3, 0.99, 5000) * fluid.Tc
+        table = _sat._start_table(model.delta1, model.delta2)
+        fast, slow = _saturation_twins(model, T, table)
+        assert fast[4].mean() > 0.99
+        _same_saturation(fast, slow, rtol=1e-12)
+
+
+def test_compiled_saturation_loop_agrees_on_bisection_and_give_up_branches(co2):
+    """A table off by e^3 forces the bracket, bisection and (with an iteration limit of 3)
+    unfinished temperatures: both loops must take the same branches."""
+    pytest.importorskip("numba")
+    model = tr.PengRobinson(co2)
+    T = np.random.default_rng(8).uniform(0.35, 0.99, 3000) * co2.Tc
+    table = _sat._start_table(model.delta1, model.delta2)
+    for shift in (3.0, -3.0):
+        _same_saturation(*_saturation_twins(model, T, table + shift), rtol=1e-12)
+    settings = list(_sat._SETTINGS)
+    settings[3] = 3.0
+    fast, slow = _saturation_twins(model, T, table + 3.0, tuple(settings))
+    assert 0.0 < fast[4].mean() < 1.0
+    _same_saturation(fast, slow, rtol=1e-12)
+
+
+def test_large_saturation_uses_the_compiled_loop_and_agrees_with_numpy(co2):
+    pytest.importorskip("numba")
+    model = tr.SoaveRedlichKwong(co2)
+    if _accel.saturation_kernel(model) is None:
+        pytest.skip("accelerator switched off (THERMO_ROOTS_ACCEL=0)")
+    T = np.linspace(0.4, 0.9999, 2 * _sat.ACCEL_MIN_SIZE) * co2.Tc
+    fast = tr.saturation(model, T=T)
+    with _accel.disabled():
+        slow = tr.saturation(model, T=T)
+    np.testing.assert_allclose(fast.P, slow.P, rtol=1e-12)
+    np.testing.assert_allclose(fast.v_vapor, slow.v_vapor, rtol=1e-12)
+    np.testing.assert_array_equal(fast.convergence.evaluations, slow.convergence.evaluations)
+
+
+def test_switching_the_saturation_loop_off_by_environment():
+    code = ("import numpy as np, thermo_roots as tr; from thermo_roots import _accel; "
+            "m = tr.PengRobinson(tr.get_fluid('CO2')); "
+            "s = tr.saturation(m, T=np.linspace(200.0, 300.0, 1000)); "
+            "print(_accel.saturation_kernel(m), bool(np.all(s.convergence.converged)))")
+    env = dict(os.environ, THERMO_ROOTS_ACCEL="0")
+    out = subprocess.run([sys.executable, "-c", code], env=env, capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "None True"

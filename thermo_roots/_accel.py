@@ -1,16 +1,22 @@
-"""Optional compiled accelerator for the (T, P) -> stable root kernel (needs numba).
+"""Optional compiled accelerator (needs numba): the (T, P) -> stable root loop and the
+saturation-pressure loop.
 
 Install with ``pip install thermo_roots[accel]``. Without numba, or with the
-environment variable ``THERMO_ROOTS_ACCEL=0``, :func:`stable_roots_kernel` returns
-None and :func:`thermo_roots.inversion.cubic.stable_roots` uses its numpy path.
+environment variable ``THERMO_ROOTS_ACCEL=0``, :func:`stable_roots_kernel` and
+:func:`saturation_kernel` return None and their callers
+(:func:`thermo_roots.inversion.cubic.stable_roots`,
+:func:`thermo_roots.inversion.saturation.saturation_pressure`) use their numpy paths.
 
-The loop in :mod:`thermo_roots._accel_kernels` is the numpy path of :mod:`thermo_roots.inversion.cubic` (closed-form
-root, two guarded Newton polishes, deflation, sorting network, roots v > b, Gibbs-energy
-choice among roots with dP/dv <= 0) and the model formulas of :mod:`thermo_roots.models`
-(alpha, cubic coefficients, ln phi, dP/dv), written as one pass over the states with the
-same operations in the same order, so the two agree to rounding.
-``tests/test_performance_paths.py`` holds them to 1e-12 on random states; change one and
-that test says where the other must follow. Compiled code is cached on disk
+The loops in :mod:`thermo_roots._accel_kernels` are those numpy paths: for (T, P), the
+closed-form root, two guarded Newton polishes, deflation, sorting network, roots v > b and
+Gibbs-energy choice among roots with dP/dv <= 0 of :mod:`thermo_roots.inversion.cubic`;
+for saturation, the bracketed Newton iteration in ln P of
+:mod:`thermo_roots.inversion.saturation` on the same cubic roots; both with the model
+formulas of :mod:`thermo_roots.models` (alpha, cubic coefficients, ln phi, dP/dv),
+written as one pass over the states with the same operations in the same order, so
+each pair agrees to rounding. ``tests/test_performance_paths.py`` and
+``tests/inversion/test_saturation_fast.py`` hold them to 1e-12; change one side and
+those tests say where the other must follow. Compiled code is cached on disk
 (``cache=True``), so only the first process on a machine pays for the compilation.
 
 References
@@ -55,15 +61,11 @@ def available() -> bool:
     return _compiled() is not None
 
 
-def stable_roots_kernel(model):
-    """A compiled ``f(T, P) -> (roots, stable, v, phase)`` for this model, or None.
+def _model_inputs(model):
+    """(alpha kind, parameter tuple) of the model for the compiled loops, or None.
 
-    None when numba is missing, ``THERMO_ROOTS_ACCEL=0`` is set, or the model's alpha
-    function is not one of the built-in families (the numpy path then serves it).
+    None when the model's alpha function is not one of the built-in families.
     """
-    kernel = None if _switched_off else _compiled()
-    if kernel is None:
-        return None
     family = model.family
     if family is VDW:
         kind, slope = _ALPHA_CONSTANT, 0.0
@@ -75,24 +77,72 @@ def stable_roots_kernel(model):
         return None
     params = tuple(float(x) for x in (model.fluid.Tc, model.fluid.Pc, model.a_c, model.b, model.c,
                                       model.v_min, model.v_c, model.delta1, model.delta2, slope, R))
+    return kind, params
+
+
+def _kernels_for(model):
+    """(compiled module, alpha kind, parameters), or None where the numpy path must serve."""
+    kernels = None if _switched_off else _compiled()
+    if kernels is None:
+        return None
+    inputs = _model_inputs(model)
+    return None if inputs is None else (kernels, *inputs)
+
+
+def stable_roots_kernel(model):
+    """A compiled ``f(T, P) -> (roots, stable, v, phase)`` for this model, or None.
+
+    None when numba is missing, ``THERMO_ROOTS_ACCEL=0`` is set, or the model's alpha
+    function is not one of the built-in families (the numpy path then serves it).
+    """
+    found = _kernels_for(model)
+    if found is None:
+        return None
+    kernels, kind, params = found
 
     def run(T, P):
         n = T.size
         roots, v = np.empty((n, 3)), np.empty(n)
         stable, phase = np.empty(n, np.int8), np.empty(n, np.int8)
-        kernel(np.ascontiguousarray(T, dtype=float), np.ascontiguousarray(P, dtype=float),
-               kind, params, roots, stable, v, phase)
+        kernels.kernel(np.ascontiguousarray(T, dtype=float), np.ascontiguousarray(P, dtype=float),
+                       kind, params, roots, stable, v, phase)
         return roots, stable, v, phase
+
+    return run
+
+
+def saturation_kernel(model):
+    """A compiled bracketed Newton for the saturation pressure, or None (as above).
+
+    The returned ``f(T, start, table, settings)`` gives ``(lnP, P, v_liquid, v_vapor, ok,
+    iterations, evaluations)`` per temperature; it is the loop of
+    :func:`thermo_roots.inversion.saturation._newton_saturation_numpy`, which documents
+    the arguments.
+    """
+    found = _kernels_for(model)
+    if found is None:
+        return None
+    kernels, kind, params = found
+
+    def run(T, start, table, settings):
+        n = T.size
+        lnP, P, v_l, v_v = np.empty(n), np.empty(n), np.empty(n), np.empty(n)
+        ok, iterations, evaluations = np.empty(n, np.bool_), np.empty(n, np.int64), np.empty(n, np.int64)
+        kernels.saturation_kernel(np.ascontiguousarray(T, dtype=float), kind, params, start,
+                                  np.ascontiguousarray(table, dtype=float), settings,
+                                  lnP, P, v_l, v_v, ok, iterations, evaluations)
+        return lnP, P, v_l, v_v, ok, iterations, evaluations
 
     return run
 
 
 @functools.lru_cache(maxsize=1)
 def _compiled():
+    """The module of compiled loops, or None (numba missing or THERMO_ROOTS_ACCEL=0)."""
     if os.environ.get("THERMO_ROOTS_ACCEL", "1").strip().lower() in ("0", "off", "no", "false"):
         return None
     try:
-        from ._accel_kernels import kernel
+        from . import _accel_kernels
     except ImportError:
         return None
-    return kernel
+    return _accel_kernels

@@ -13,6 +13,8 @@ import numpy as np
 
 jit = functools.partial(numba.njit, cache=True, nogil=True, error_model="numpy")
 
+_SIXTH = 1.0 / 6.0
+
 
 
 @jit
@@ -63,60 +65,77 @@ def ln_phi_and_slope(T, v, P, a, prm):
 
 
 @jit
+def alpha_value(T, kind, Tc, slope):
+    """alpha(T) of the built-in families: 0 constant, 1 Redlich-Kwong, 2 Soave form."""
+    if kind == 0:
+        return 1.0
+    if kind == 1:
+        return (T / Tc) ** -0.5
+    root = 1.0 + slope * (1.0 - np.sqrt(T / Tc))
+    return root * root
+
+
+@jit
+def coefficients(a, b, T, P, R, u, w):
+    """c2, c1, c0 of the cubic in Z and B = bP/(RT), as CubicModel.cubic_coefficients."""
+    RT = R * T
+    A = a * P / (RT * RT)
+    B = b * P / RT
+    c2 = (u - 1.0) * B - 1.0
+    c1 = A + w * B * B - u * B * (1.0 + B)
+    c0 = -B * (A + w * B * (1.0 + B))
+    return c2, c1, c0, B
+
+
+@jit
+def z_roots(c2, c1, c0, B):
+    """The roots Z > B of the cubic, ascending, NaN-padded: cubic.py's _sorted_roots and the
+    Z > B selection of its _volume_columns, as one pass."""
+    nan = np.nan
+    # one root in closed form, polished twice; the others from the deflated quadratic
+    z0 = one_real_root(c2, c1, c0)
+    z1 = polish(z0, c2, c1, c0)
+    if z1 != z0:   # a refused step is refused again: a second polish only after a taken one
+        z1 = polish(z1, c2, c1, c0)
+    size = abs(z1)
+    if size * size * size >= abs(c0):
+        safe = z1 if z1 != 0.0 else 1.0
+        g0 = -c0 / safe
+        g1 = (g0 - c1) / safe
+    else:
+        g1 = c2 + z1
+        g0 = c1 + z1 * g1
+    disc = g1 * g1 - 4.0 * g0
+    if disc >= 0.0:
+        q = -0.5 * (g1 + np.copysign(np.sqrt(disc), g1))
+        z3 = g0 / q if q != 0.0 else 0.0
+        z2, z3 = polish(q, c2, c1, c0), polish(z3, c2, c1, c0)
+        lo, hi = (z2, z3) if z2 <= z3 else (z3, z2)
+        s0 = lo if lo < z1 else z1
+        s1 = lo if lo > (hi if hi < z1 else z1) else (hi if hi < z1 else z1)
+        s2 = hi if hi > z1 else z1
+    else:
+        s0, s1, s2 = z1, nan, nan
+    # keep Z > B: the left-out roots are the first ones of the sorted three
+    left_out = (s0 <= B) + (s1 <= B) + (s2 <= B)
+    if left_out == 0:
+        return s0, s1, s2
+    if left_out == 1:
+        return s1, s2, nan
+    if left_out == 2:
+        return s2, nan, nan
+    return nan, nan, nan
+
+
+@jit
 def kernel(T_in, P_in, kind, prm, roots, stable, v_out, phase):
     Tc, Pc, a_c, b, c, v_min, v_c, d1, d2, slope, R = prm
     u, w = d1 + d2, d1 * d2
-    nan = np.nan
     for i in range(T_in.size):
         T, P = T_in[i], P_in[i]
-        if kind == 0:
-            alpha = 1.0
-        elif kind == 1:
-            alpha = (T / Tc) ** -0.5
-        else:
-            root = 1.0 + slope * (1.0 - np.sqrt(T / Tc))
-            alpha = root * root
-        a = a_c * alpha
-        RT = R * T
-        A = a * P / (RT * RT)
-        B = b * P / RT
-        c2 = (u - 1.0) * B - 1.0
-        c1 = A + w * B * B - u * B * (1.0 + B)
-        c0 = -B * (A + w * B * (1.0 + B))
-        # one root in closed form, polished twice; the others from the deflated quadratic
-        z0 = one_real_root(c2, c1, c0)
-        z1 = polish(z0, c2, c1, c0)
-        if z1 != z0:   # a refused step is refused again: a second polish only after a taken one
-            z1 = polish(z1, c2, c1, c0)
-        size = abs(z1)
-        if size * size * size >= abs(c0):
-            safe = z1 if z1 != 0.0 else 1.0
-            g0 = -c0 / safe
-            g1 = (g0 - c1) / safe
-        else:
-            g1 = c2 + z1
-            g0 = c1 + z1 * g1
-        disc = g1 * g1 - 4.0 * g0
-        if disc >= 0.0:
-            q = -0.5 * (g1 + np.copysign(np.sqrt(disc), g1))
-            z3 = g0 / q if q != 0.0 else 0.0
-            z2, z3 = polish(q, c2, c1, c0), polish(z3, c2, c1, c0)
-            lo, hi = (z2, z3) if z2 <= z3 else (z3, z2)
-            s0 = lo if lo < z1 else z1
-            s1 = lo if lo > (hi if hi < z1 else z1) else (hi if hi < z1 else z1)
-            s2 = hi if hi > z1 else z1
-        else:
-            s0, s1, s2 = z1, nan, nan
-        # keep Z > B: the left-out roots are the first ones of the sorted three
-        left_out = (s0 <= B) + (s1 <= B) + (s2 <= B)
-        if left_out == 0:
-            r0, r1, r2 = s0, s1, s2
-        elif left_out == 1:
-            r0, r1, r2 = s1, s2, nan
-        elif left_out == 2:
-            r0, r1, r2 = s2, nan, nan
-        else:
-            r0, r1, r2 = nan, nan, nan
+        a = a_c * alpha_value(T, kind, Tc, slope)
+        c2, c1, c0, B = coefficients(a, b, T, P, R, u, w)
+        r0, r1, r2 = z_roots(c2, c1, c0, B)
         scale = R * T / P
         r0, r1, r2 = r0 * scale - c, r1 * scale - c, r2 * scale - c
         roots[i, 0], roots[i, 1], roots[i, 2] = r0, r1, r2
@@ -136,3 +155,98 @@ def kernel(T_in, P_in, kind, prm, roots, stable, v_out, phase):
             phase[i] = 2 if P >= Pc else 1
         else:
             phase[i] = 0 if v < v_c else 1
+
+
+@jit
+def start_estimate(Tr, alpha, x_first, inv_h, shift, table):
+    """ln(P/Pc) from the corresponding-states table, as saturation._start_estimate (NaN outside)."""
+    t = (np.sqrt(alpha / Tr - shift) - x_first) * inv_h
+    n = table.size
+    if not (t >= 0.0 and t <= n - 1.0):
+        return np.nan
+    j = int(t) - 1
+    j = 0 if j < 0 else (n - 4 if j > n - 4 else j)
+    u = t - j
+    return (-(u - 1.0) * (u - 2.0) * (u - 3.0) * _SIXTH * table[j] + u * (u - 2.0) * (u - 3.0) * 0.5 * table[j + 1]
+            - u * (u - 1.0) * (u - 3.0) * 0.5 * table[j + 2] + u * (u - 1.0) * (u - 2.0) * _SIXTH * table[j + 3]
+            + np.log(alpha))
+
+
+@jit
+def fugacity_gap_z(zl, zv, A_over_B, B, d1, d2):
+    """ln phi_L - ln phi_V from the cubic's Z roots, as saturation.fugacity_gap_z."""
+    if d1 == d2:
+        attraction = B / (zl + d1 * B) - B / (zv + d1 * B)
+    else:
+        attraction = np.log((zl + d1 * B) * (zv + d2 * B) / ((zl + d2 * B) * (zv + d1 * B))) / (d1 - d2)
+    return (zl - zv) - np.log((zl - B) / (zv - B)) - A_over_B * attraction
+
+
+@jit
+def saturation_kernel(T_in, kind, prm, start, table, settings, lnP_out, P_out, vl_out, vv_out, ok_out,
+                      it_out, ev_out):
+    """Bracketed Newton in ln P on ln phi_L - ln phi_V, as saturation._newton_saturation_numpy."""
+    Tc, Pc, a_c, b, c, v_min, v_c, d1, d2, slope, R = prm
+    x_first, inv_h, shift = start
+    ln_lowest, accept, narrow, maxiter, eps4 = settings
+    u, w = d1 + d2, d1 * d2
+    lnPc = np.log(Pc)
+    for i in range(T_in.size):
+        T = T_in[i]
+        alpha = alpha_value(T, kind, Tc, slope)
+        a = a_c * alpha
+        RT = R * T
+        A_over_B = a / (b * RT)
+        lo, hi = lnPc + ln_lowest, lnPc
+        x = lnPc + start_estimate(T / Tc, alpha, x_first, inv_h, shift, table)
+        ok, iters, evals = False, 0, 0
+        P, zl, zv, step = np.nan, np.nan, np.nan, 0.0
+        if not (x > lo and x < hi) and np.isfinite(x):   # NaN (outside the table) stays NaN
+            x = lo + 0.5 * (hi - lo)
+        if np.isfinite(x):
+            for _ in range(int(maxiter)):
+                P = np.exp(x)
+                c2, c1, c0, B = coefficients(a, b, T, P, R, u, w)
+                r0, r1, r2 = z_roots(c2, c1, c0, B)
+                evals += 1
+                scale = RT / P
+                v0 = r0 * scale - c
+                if np.isfinite(r2):
+                    if r2 * scale - c < narrow * v0:
+                        break
+                    gap = fugacity_gap_z(r0, r2, A_over_B, B, d1, d2)
+                    step = -gap / (r0 - r2)
+                    if gap > 0.0:
+                        lo = x
+                    elif gap < 0.0:
+                        hi = x
+                    iters += 1
+                    if abs(step) <= accept:
+                        zl, zv, ok = r0, r2, True
+                        break
+                    xn = x + step
+                    if not (xn > lo and xn < hi):
+                        xn = lo + 0.5 * (hi - lo)
+                else:
+                    if v0 > v_c:
+                        lo = x
+                    else:
+                        hi = x
+                    iters += 1
+                    xn = lo + 0.5 * (hi - lo)
+                if hi - lo <= eps4 * max(1.0, abs(x)):
+                    break
+                x = xn
+        vl, vv = np.nan, np.nan
+        if ok:   # the last step taken, and the roots carried to its pressure by one guarded polish
+            x = x + step
+            P = P * (1.0 + step * (1.0 + 0.5 * step))
+            c2, c1, c0, B = coefficients(a, b, T, P, R, u, w)
+            zl, zv = polish(zl, c2, c1, c0), polish(zv, c2, c1, c0)
+            if zl > B and zv > zl:
+                scale = RT / P
+                vl, vv = zl * scale - c, zv * scale - c
+            else:
+                ok = False
+        lnP_out[i], P_out[i], vl_out[i], vv_out[i] = x, P, vl, vv
+        ok_out[i], it_out[i], ev_out[i] = ok, iters, evals

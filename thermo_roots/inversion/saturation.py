@@ -7,18 +7,26 @@ zero of g inside that window: a guaranteed bracket. Just outside the window only
 is left; g is then given its known sign, so bracketed methods see a clean sign change.
 Near the critical point the window narrows like (1 - Tr)^1.5; the solve runs in ln P to
 full double precision, which resolves it up to Tr = 1 - 1e-9.
+
+Speed. Finding the window costs two spinodal solves, so below Tr = 0.99 a fast path
+comes first: Newton's method in ln P on the same gap, kept inside a bracket by the same
+sign rule, from a start read off a corresponding-states table of the model's family; one
+evaluation of the cubic's roots usually finishes. With the optional accelerator
+(:mod:`thermo_roots._accel`, needs numba) it runs as one compiled loop. Whatever the fast
+path does not finish goes to the window solver, which alone serves Tr >= 0.99.
 """
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..errors import ConvergenceError, DomainError, InputError
+from ..errors import ConvergenceError, DomainError, InputError, ThermoRootsError
 from ..models import IdealGas, R, _scalar_or_array
 from ..roots import find_root
-from .cubic import volume_roots
+from .cubic import _polish, _volume_columns, volume_roots
 
 #: Tolerances of the saturation solve in ln P: as tight as double precision allows.
 _LNP_RTOL = 4.0 * np.finfo(float).eps
@@ -125,6 +133,8 @@ def saturation(model, T=None, P=None):
 
 
 def _check_range(x, critical, name, unit, what):
+    if x.size and x.min() > 0.0 and x.max() <= critical:   # NaN fails both
+        return
     bad = ~((x > 0.0) & (x <= critical))
     if np.any(bad):
         first = x[bad].flat[0] if x.ndim else float(x)
@@ -137,30 +147,346 @@ def _check_range(x, critical, name, unit, what):
 # --------------------------------------------------------------------------- P from T
 
 def saturation_pressure(model, T):
-    """Saturation pressure [Pa] and saturated volumes [m^3/mol] at T [K] (array, T <= Tc)."""
+    """Saturation pressure [Pa] and saturated volumes [m^3/mol] at T [K] (array, T <= Tc).
+
+    Below Tr = :data:`FAST_TR_MAX` a bracketed Newton iteration from a corresponding-states
+    start serves (:func:`_newton_saturation`); every temperature it does not finish, and
+    every one closer to Tc, is solved on the spinodal window (:func:`_window_saturation`).
+    """
     T = np.asarray(T, dtype=float)
+    limit = model.fluid.Tc * (1.0 - _UNRESOLVED_GAP)   # closer to Tc than doubles can split the phases
+    if T.size and T.max() < limit:   # the common case, without masks
+        return _below_critical(model, T) if T.ndim == 1 else _reshaped(_below_critical(model, T.ravel()), T.shape)
+    near = ~(T < limit)
     P = np.full(T.shape, np.nan)
     v_l, v_v = np.full(T.shape, np.nan), np.full(T.shape, np.nan)
-    Tc = model.fluid.Tc
-    near = T >= Tc * (1.0 - _UNRESOLVED_GAP)   # closer to Tc than doubles can split the phases
     P[near], v_l[near], v_v[near] = _critical_tangent(model, T[near])
     below = ~near
     result = None
-    if np.any(below):
-        Tb = T[below]
-        lo, hi = _pressure_window(model, Tb)
-        result = find_root(_fugacity_gap, bracket=(np.log(lo), np.log(hi)), args=(model, Tb),
-                           xtol=0.0, rtol=_LNP_RTOL, maxiter=200, trace=False)
-        P[below] = np.exp(result.root)
-        v_l[below], v_v[below] = _saturated_volumes(model, Tb, P[below], lo, hi)
-        # a window only a few floats wide may show no clean sign change: take the tangent
-        unresolved = ~np.asarray(result.converged) & (Tb >= Tc * (1.0 - 1e-8))
-        if np.any(unresolved):
-            idx = np.flatnonzero(below)[unresolved]
-            P[idx], v_l[idx], v_v[idx] = _critical_tangent(model, T[idx])
-            result = _accept(result, unresolved)
-        _require(result, "saturation pressure", Tb, "T", "K")
+    if below.any():
+        P[below], v_l[below], v_v[below], result = _below_critical(model, T[below])
     return P, v_l, v_v, result
+
+
+def _reshaped(solved, shape):
+    P, v_l, v_v, result = solved
+    return P.reshape(shape), v_l.reshape(shape), v_v.reshape(shape), result
+
+
+def _below_critical(model, T):
+    """Saturation at 1-D T below Tc (1 - 1e-11): the fast path, then the window solver."""
+    P, v_l, v_v, result = _newton_saturation(model, T)
+    rest = ~result.converged
+    if rest.any():
+        P[rest], v_l[rest], v_v[rest], slow = _window_saturation(model, T[rest])
+        result = _merge(result, rest, slow)
+        _require(result, "saturation pressure", T, "T", "K")
+    return P, v_l, v_v, result
+
+
+def _window_saturation(model, T):
+    """Saturation on the spinodal window (the proven path, valid up to Tr = 1 - 1e-9)."""
+    Tc = model.fluid.Tc
+    lo, hi = _pressure_window(model, T)
+    result = find_root(_fugacity_gap, bracket=(np.log(lo), np.log(hi)), args=(model, T),
+                       xtol=0.0, rtol=_LNP_RTOL, maxiter=200, trace=False)
+    P = np.exp(result.root)
+    v_l, v_v = _saturated_volumes(model, T, P, lo, hi)
+    # a window only a few floats wide may show no clean sign change: take the tangent
+    unresolved = ~np.asarray(result.converged) & (T >= Tc * (1.0 - 1e-8))
+    if np.any(unresolved):
+        P[unresolved], v_l[unresolved], v_v[unresolved] = _critical_tangent(model, T[unresolved])
+        result = _accept(result, unresolved)
+    return P, v_l, v_v, result
+
+
+def _merge(fast, mask, slow):
+    """The fast path's result with the masked elements replaced by the window solver's.
+
+    Iterations and evaluations add up: what the fast path spent is counted too.
+    """
+    import dataclasses
+
+    root, converged = np.array(fast.root, dtype=float), np.array(fast.converged, dtype=bool)
+    status = np.array(fast.status, dtype=object)
+    iterations, evaluations = np.array(fast.iterations), np.array(fast.evaluations)
+    root[mask], converged[mask], status[mask] = slow.root, slow.converged, slow.status
+    iterations[mask] += slow.iterations
+    evaluations[mask] += slow.evaluations
+    method = slow.method if np.all(mask) else f"{fast.method}+{slow.method}"
+    return dataclasses.replace(fast, root=root, converged=converged, status=status.astype(str),
+                               iterations=iterations, evaluations=evaluations, method=method)
+
+
+# --------------------------------------------------------------------------- fast path
+
+#: Below this reduced temperature the bracketed Newton iteration is tried first.
+FAST_TR_MAX = 0.99
+#: From this many temperatures on, the compiled loop (if numba is there) runs the iteration.
+ACCEL_MIN_SIZE = 256
+#: A Newton step of at most this size in ln P is taken as the last one (see _newton_saturation).
+_ACCEPT_STEP = 1e-9
+#: Iteration limit of the fast path (a bisection from the widest bracket needs about 55).
+_FAST_MAXITER = 100
+#: The corresponding-states table: nodes uniform in x = sqrt(1/s - _X_SHIFT), s from
+#: _S_RANGE[1] down to _S_RANGE[0], where s = Tr / alpha(T) (see _start_table).
+_X_SHIFT, _S_RANGE, _TABLE_NODES = 0.99, (0.04, 0.995), 1024
+
+
+def _newton_saturation(model, T):
+    """Saturation pressure by a bracketed Newton iteration in ln P, where it finishes.
+
+    The gap g(ln P) = ln phi_L - ln phi_V falls with ln P at the slope Z_L - Z_V (< 0)
+    wherever the cubic has three roots; where it has one, the sign rule of
+    :func:`_fugacity_gap` says which side of the saturation pressure P lies on. The
+    bracket starts as [ln(1e-40 Pc), ln Pc] and shrinks at every evaluation; the step is
+    Newton's where it stays inside, a bisection otherwise. The start comes from the
+    corresponding-states table (:func:`_start_table`), good to about 1e-9 in ln P, so one
+    or two evaluations usually finish.
+
+    A step |dx| <= :data:`_ACCEPT_STEP` ends the iteration with that step taken: Newton's
+    error after it is |g''/(2 g')| dx^2, and |g''/(2 g')| stays below about 20 for every
+    cubic below Tr = 0.99 (checked in tests/inversion/test_saturation_fast.py), so the
+    error is under 2e-17, below the rounding of ln P.
+
+    Returns
+    -------
+    P, v_l, v_v : numpy.ndarray
+        [Pa], [m^3/mol]; NaN where the fast path did not finish.
+    result : RootResult
+        Per temperature; converged False where the window solver must take over
+        (Tr >= FAST_TR_MAX, outside the table, iteration limit, merged roots).
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., ch. 11 (d ln phi / d ln P = Z - 1).
+    Press, W. H. et al. (2007), Numerical Recipes, 3rd ed., section 9.4 (Newton's method
+    safeguarded by bisection).
+    """
+    from ..roots import RootResult
+
+    n = T.size
+    limit = FAST_TR_MAX * model.fluid.Tc
+    everywhere = n > 0 and T.max() < limit
+    fast = None if everywhere else T < limit
+    table = _start_table(model.delta1, model.delta2) if everywhere or fast.any() else None
+    if table is None:
+        out = _nothing_solved(n)
+    else:
+        Tf = T if everywhere else T[fast]
+        kernel = None
+        if Tf.size >= ACCEL_MIN_SIZE:
+            from .. import _accel
+
+            kernel = _accel.saturation_kernel(model)
+        if kernel is None:
+            out = _newton_saturation_numpy(model, Tf, _TABLE_START, table, _SETTINGS)
+        else:
+            out = kernel(Tf, _TABLE_START, table, _SETTINGS)
+        if not everywhere:
+            whole = _nothing_solved(n)
+            for column, part in zip(whole, out):
+                column[fast] = part
+            out = whole
+    lnP, P, v_l, v_v, ok, iterations, evaluations = out
+    status = np.full(n, "converged", dtype=_STATUS_DTYPE)
+    if not ok.all():
+        status[~ok] = "iteration limit"
+    return P, v_l, v_v, RootResult(lnP, ok, status, iterations, evaluations, None, "newton")
+
+
+def _nothing_solved(n):
+    """The fast path's outputs for n temperatures it has not solved."""
+    return tuple(np.full(n, np.nan) for _ in range(4)) + (np.zeros(n, bool), np.zeros(n, np.int64),
+                                                           np.zeros(n, np.int64))
+
+
+#: The fast path's constants in the order the loops unpack them (see _newton_saturation_numpy).
+_SETTINGS = (float(np.log(_LOWEST_REDUCED_PRESSURE)), _ACCEPT_STEP, _NARROW_DOME, float(_FAST_MAXITER), _LNP_RTOL)
+_STATUS_DTYPE = "<U15"
+
+
+def fugacity_gap_z(zl, zv, A_over_B, B, delta1, delta2):
+    """ln phi_L - ln phi_V [-] of the untranslated cubic from its roots Z_L, Z_V at one (T, P).
+
+    From ln phi = Z - 1 - ln(Z - B) - (A/B) J(Z), J = ln((Z + d1 B)/(Z + d2 B))/(d1 - d2)
+    (J = B/(Z + d B) when d1 = d2 = d): :meth:`CubicModel.ln_phi` written in Z, with the
+    logarithms of the two phases merged, so two logarithms give the difference instead of
+    six. A volume translation shifts both ln phi by the same cP/RT, so the difference is
+    the translated model's too. ``tests/inversion/test_saturation_fast.py`` holds it to
+    the difference of :meth:`CubicModel.ln_phi`. Compiled twin:
+    :func:`thermo_roots._accel_kernels.fugacity_gap_z`.
+
+    Parameters
+    ----------
+    zl, zv : numpy.ndarray
+        Liquid and vapour roots of the cubic in Z [-].
+    A_over_B : numpy.ndarray
+        a / (b R T) [-].
+    B : numpy.ndarray
+        b P / (R T) [-].
+    delta1, delta2 : float
+        The family's constants [-].
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., ch. 3 and 4 (ln phi of the generalized cubic).
+    Peneloux, A., Rauzy, E. & Freze, R. (1982), Fluid Phase Equilib. 8, 7-23 (translation
+    leaves phase equilibrium unchanged).
+    """
+    if delta1 == delta2:
+        attraction = B / (zl + delta1 * B) - B / (zv + delta1 * B)
+    else:
+        ratio = (zl + delta1 * B) * (zv + delta2 * B) / ((zl + delta2 * B) * (zv + delta1 * B))
+        attraction = np.log(ratio) / (delta1 - delta2)
+    return (zl - zv) - np.log((zl - B) / (zv - B)) - A_over_B * attraction
+
+
+def _newton_saturation_numpy(model, T, start, table, settings):
+    """The iteration of :func:`_newton_saturation` in numpy; the compiled twin is
+    :func:`thermo_roots._accel_kernels.saturation_kernel` (same steps, same order; this
+    one recovers Z from cubic.py's volumes, the loop keeps Z itself, so they agree to
+    rounding, not bit for bit).
+
+    Parameters
+    ----------
+    model : CubicModel
+    T : numpy.ndarray
+        1-D temperatures [K] below FAST_TR_MAX Tc.
+    start : tuple
+        (first node, 1 / spacing, shift) of the table's variable x = sqrt(alpha/Tr - shift) [-].
+    table : numpy.ndarray
+        ln(Psat/Pc) [-] of the constant-alpha model at the nodes.
+    settings : tuple
+        (ln of the lowest reduced pressure, accepted last step, narrow-dome ratio,
+        iteration limit, relative bracket width at which to give up) [-].
+
+    Returns
+    -------
+    lnP, P, v_l, v_v, ok, iterations, evaluations : numpy.ndarray
+        ln P [ln Pa], P [Pa], saturated volumes [m^3/mol], finished (bool) and the counts.
+    """
+    ln_lowest, accept, narrow, maxiter, eps4 = settings
+    n, c, d1, d2 = T.size, model.c, model.delta1, model.delta2
+    a, _ = model.attraction(T)
+    alpha = a / model.a_c
+    A_over_B = a / (model.b * (R * T))
+    lnPc = np.log(model.fluid.Pc)
+    x = lnPc + _start_estimate(T / model.fluid.Tc, alpha, start, table)
+    lo, hi = np.full(n, lnPc + ln_lowest), np.full(n, lnPc)
+    ok, iterations, evaluations = np.zeros(n, bool), np.zeros(n, np.int64), np.zeros(n, np.int64)
+    P_last, z_l, z_v, last = np.full(n, np.nan), np.full(n, np.nan), np.full(n, np.nan), np.zeros(n)
+    x = np.where(np.isnan(x) | ((x > lo) & (x < hi)), x, lo + 0.5 * (hi - lo))   # NaN (outside the table) stays NaN
+    idx = np.flatnonzero(np.isfinite(x))
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        for _ in range(int(maxiter)):
+            if idx.size == 0:
+                break
+            Ti, xi, lo_i, hi_i = T[idx], x[idx], lo[idx], hi[idx]
+            P = np.exp(xi)
+            v0, _, v2 = _volume_columns(model, Ti, P)
+            evaluations[idx] += 1
+            three = np.isfinite(v2)
+            stop = three & (v2 < narrow * v0)   # phases too alike for the ln phi difference
+            to_z = P / (R * Ti)
+            zl, zv = (v0 + c) * to_z, (v2 + c) * to_z
+            gap = fugacity_gap_z(zl, zv, A_over_B[idx], model.b * to_z, d1, d2)
+            step = -gap / (zl - zv)
+            rises = np.where(three, gap > 0.0, v0 > model.v_c)    # P below the saturation pressure
+            falls = np.where(three, gap < 0.0, ~(v0 > model.v_c))
+            lo_i, hi_i = np.where(rises, xi, lo_i), np.where(falls, xi, hi_i)
+            iterations[idx] += ~stop
+            done = three & ~stop & (np.abs(step) <= accept)
+            xn = xi + step
+            newton = three & (xn > lo_i) & (xn < hi_i)
+            xn = np.where(newton, xn, lo_i + 0.5 * (hi_i - lo_i))
+            collapsed = hi_i - lo_i <= eps4 * np.maximum(1.0, np.abs(xi))
+            x[idx] = np.where(done | collapsed | stop, xi, xn)
+            lo[idx], hi[idx] = lo_i, hi_i
+            fin = idx[done]
+            ok[fin] = True
+            P_last[fin], z_l[fin], z_v[fin], last[fin] = P[done], zl[done], zv[done], step[done]
+            idx = idx[~(done | stop | collapsed)]
+    # the last step taken, and the roots carried to its pressure by one guarded polish
+    v_l, v_v, P_out = np.full(n, np.nan), np.full(n, np.nan), P_last
+    fin = np.flatnonzero(ok)
+    if fin.size:
+        step = last[fin]
+        x[fin] += step
+        P_out[fin] = P = P_last[fin] * (1.0 + step * (1.0 + 0.5 * step))
+        c2, c1, c0, B = model.cubic_coefficients(T[fin], P)
+        zl, zv = _polish(z_l[fin], c2, c1, c0), _polish(z_v[fin], c2, c1, c0)
+        ok[fin] = (zl > B) & (zv > zl)
+        scale = R * T[fin] / P
+        v_l[fin] = np.where(ok[fin], zl * scale - c, np.nan)
+        v_v[fin] = np.where(ok[fin], zv * scale - c, np.nan)
+    return x, P_out, v_l, v_v, ok, iterations, evaluations
+
+
+def _start_estimate(Tr, alpha, start, table):
+    """ln(Psat/Pc) [-] from the table by four-point Lagrange interpolation, NaN outside it.
+
+    The compiled twin is :func:`thermo_roots._accel_kernels.start_estimate`.
+    """
+    x_first, inv_h, shift = start
+    n = table.size
+    with np.errstate(invalid="ignore"):
+        t = (np.sqrt(alpha / Tr - shift) - x_first) * inv_h
+        inside = (t >= 0.0) & (t <= n - 1.0)
+        j = np.clip(np.where(inside, t, 0.0).astype(np.int64) - 1, 0, n - 4)
+    u = t - j
+    estimate = (-(u - 1.0) * (u - 2.0) * (u - 3.0) * _SIXTH * table[j] + u * (u - 2.0) * (u - 3.0) * 0.5 * table[j + 1]
+                - u * (u - 1.0) * (u - 3.0) * 0.5 * table[j + 2] + u * (u - 1.0) * (u - 2.0) * _SIXTH * table[j + 3]
+                + np.log(alpha))
+    return np.where(inside, estimate, np.nan)
+
+
+def _table_nodes():
+    """(first node, 1 / spacing, shift) and the nodes' s = Tr/alpha, for the table's variable."""
+    x_first = np.sqrt(1.0 / _S_RANGE[1] - _X_SHIFT)
+    x_last = np.sqrt(1.0 / _S_RANGE[0] - _X_SHIFT)
+    x = np.linspace(x_first, x_last, _TABLE_NODES)
+    h = (x_last - x_first) / (_TABLE_NODES - 1)
+    return (float(x_first), float(1.0 / h), _X_SHIFT), 1.0 / (x * x + _X_SHIFT)
+
+
+_SIXTH = 1.0 / 6.0
+_TABLE_START, _TABLE_S = _table_nodes()
+
+
+@functools.lru_cache(maxsize=16)
+def _start_table(delta1, delta2):
+    """ln(Psat/Pc) [-] of the generalized cubic (delta1, delta2) with alpha = 1 at the nodes.
+
+    Corresponding states of a two-parameter cubic: in Z, A = aP/(RT)^2 and B = bP/(RT)
+    the saturation conditions contain T and P only through A and B, so B_sat depends on
+    theta = a/(bRT) alone. With a(T) = a_c alpha(T), theta/theta_c = alpha/Tr, and any
+    model of the family satisfies ln(Psat/Pc) = ln(Psat/Pc)_(alpha = 1)(s) + ln alpha at
+    s = Tr/alpha. The table is solved once per family by the window solver; it gives the
+    start of the Newton iteration only, so its accuracy decides the speed, never the
+    answer. None if the window solver fails on the table (the fast path is then skipped).
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., ch. 3 (the cubic in Z with A and B).
+    """
+    from ..fluids import Fluid
+    from ..models import CubicFamily, CubicModel, _alpha_constant
+
+    reduced = Fluid("reduced", 1.0, 1.0, 0.0, 1.0)
+    model = CubicModel(reduced, CubicFamily("alpha = 1", delta1, delta2, _alpha_constant))
+    try:
+        P, _, _, result = _window_saturation(model, _TABLE_S)
+    except ThermoRootsError:
+        return None
+    if not (np.all(result.converged) and np.all(np.isfinite(P))):
+        return None
+    table = np.log(P)
+    table.setflags(write=False)   # shared by every caller through the cache
+    return table
 
 
 def _critical_tangent(model, T):
