@@ -274,8 +274,10 @@ def _read_knowns(model, knowns, atmosphere):
     si = dict(zip(si, np.broadcast_arrays(*si.values())))
     for name in ("T", "P", "v", "rho", "rho_mass"):
         if name in si and np.any(si[name] <= 0.0):
-            raise DomainError(f"{name} must be above zero; got {_first(si[name], si[name] <= 0.0):.6g} "
-                              f"{_unit(name)}.")
+            given = f" (given as {knowns[name]!r})" if isinstance(knowns[name], str) else ""
+            absolute = " absolute" if name in ("T", "P") else ""
+            raise DomainError(f"{name} must be above zero{absolute}: got {_first(si[name], si[name] <= 0.0):.6g} "
+                              f"{_unit(name)}{given}.")
     if "rho" in si:
         si["v"] = 1.0 / si.pop("rho")
     if "rho_mass" in si:
