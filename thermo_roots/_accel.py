@@ -33,6 +33,7 @@ from __future__ import annotations
 import contextlib
 import functools
 import os
+import weakref
 
 import numpy as np
 
@@ -80,12 +81,20 @@ def _model_inputs(model):
     return kind, params
 
 
+_inputs_of = weakref.WeakKeyDictionary()   # model -> _model_inputs(model); models do not change
+
+
 def _kernels_for(model):
     """(compiled module, alpha kind, parameters), or None where the numpy path must serve."""
     kernels = None if _switched_off else _compiled()
     if kernels is None:
         return None
-    inputs = _model_inputs(model)
+    try:
+        inputs = _inputs_of[model]
+    except (KeyError, TypeError):
+        inputs = _model_inputs(model)
+        with contextlib.suppress(TypeError):   # a model that cannot be weakly referenced
+            _inputs_of[model] = inputs
     return None if inputs is None else (kernels, *inputs)
 
 
@@ -126,8 +135,9 @@ def saturation_kernel(model):
 
     def run(T, start, table, settings):
         n = T.size
-        lnP, P, v_l, v_v = np.empty(n), np.empty(n), np.empty(n), np.empty(n)
-        ok, iterations, evaluations = np.empty(n, np.bool_), np.empty(n, np.int64), np.empty(n, np.int64)
+        lnP, P, v_l, v_v = np.empty((4, n))
+        iterations, evaluations = np.empty((2, n), np.int64)
+        ok = np.empty(n, np.bool_)
         kernels.saturation_kernel(np.ascontiguousarray(T, dtype=float), kind, params, start,
                                   np.ascontiguousarray(table, dtype=float), settings,
                                   lnP, P, v_l, v_v, ok, iterations, evaluations)

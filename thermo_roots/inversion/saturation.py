@@ -290,9 +290,10 @@ def _newton_saturation(model, T):
                 column[fast] = part
             out = whole
     lnP, P, v_l, v_v, ok, iterations, evaluations = out
-    status = np.full(n, "converged", dtype=_STATUS_DTYPE)
-    if not ok.all():
-        status[~ok] = "iteration limit"
+    if ok.all():
+        status = _all_converged(n)
+    else:
+        status = np.where(ok, "converged", "iteration limit")
     return P, v_l, v_v, RootResult(lnP, ok, status, iterations, evaluations, None, "newton")
 
 
@@ -304,7 +305,14 @@ def _nothing_solved(n):
 
 #: The fast path's constants in the order the loops unpack them (see _newton_saturation_numpy).
 _SETTINGS = (float(np.log(_LOWEST_REDUCED_PRESSURE)), _ACCEPT_STEP, _NARROW_DOME, float(_FAST_MAXITER), _LNP_RTOL)
-_STATUS_DTYPE = "<U15"
+
+
+@functools.lru_cache(maxsize=8)
+def _all_converged(n):
+    """A read-only status array "converged" of length n, shared (it is 60 bytes a state)."""
+    status = np.full(n, "converged", dtype="<U15")
+    status.setflags(write=False)
+    return status
 
 
 def fugacity_gap_z(zl, zv, A_over_B, B, delta1, delta2):
