@@ -3,6 +3,8 @@ isotherm redrawn in place as the controls move."""
 
 from __future__ import annotations
 
+import math
+
 import html
 
 import ipywidgets as w
@@ -49,9 +51,9 @@ class IsothermExplorer(w.VBox):
         self.result, self.error = (), None
         self.fluid_field = FluidField(fluid)
         self.models = ModelChoice(models)
-        self.temperature = w.FloatSlider(description="", min=100.0, max=400.0, step=0.5, readout_format=".1f",
+        self.temperature = w.FloatSlider(description="", min=100.0, max=400.0, step=0.05, readout_format=".2f",
                                          continuous_update=True, layout=w.Layout(width="360px"))
-        self.pressure = w.FloatSlider(description="", min=0.1, max=100.0, step=0.1, readout_format=".2f",
+        self.pressure = w.FloatSlider(description="", min=0.01, max=100.0, step=0.01, readout_format=".2f",
                                       continuous_update=True, layout=w.Layout(width="360px"))
         self.show_marker = w.Checkbox(value=True, description="mark the roots at this pressure", indent=False)
         self.reference = w.Checkbox(value=reference, description="reference isotherm", indent=False)
@@ -88,7 +90,9 @@ class IsothermExplorer(w.VBox):
             self.error = str(err)
             return
         self._fluid = fluid
-        T_lo, T_hi = 0.55 * fluid.Tc, 1.3 * fluid.Tc
+        # ends on the step grid, so a typed value such as 283.15 K or 30 bar is kept exactly
+        step = self.temperature.step
+        T_lo, T_hi = math.floor(0.55 * fluid.Tc / step) * step, math.ceil(1.3 * fluid.Tc / step) * step
         P_hi = in_unit(2.0 * fluid.Pc, "P", "bar")
         for slider, lo, hi in ((self.temperature, T_lo, T_hi), (self.pressure, 0.01, P_hi)):
             slider.max = max(hi, slider.min)
