@@ -3,9 +3,8 @@ isotherm redrawn in place as the controls move."""
 
 from __future__ import annotations
 
-import math
-
 import html
+import math
 
 import ipywidgets as w
 
