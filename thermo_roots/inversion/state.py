@@ -321,10 +321,7 @@ def _from_T_v(model, T, v):
         sub = T < model.fluid.Tc
         if np.any(sub):
             P_sat, vl, vv, _ = saturation_pressure(model, T[sub])
-            inside = (v[sub] > vl) & (v[sub] < vv)
-            idx = np.flatnonzero(sub)[inside]
-            P[idx], v_l[idx], v_v[idx] = P_sat[inside], vl[inside], vv[inside]
-            quality[idx] = (v[idx] - v_l[idx]) / (v_v[idx] - v_l[idx])
+            idx = _lever_rule(v, sub, P_sat, vl, vv, P, v_l, v_v, quality)
             phase[idx] = "two-phase"
     return dict(T=T, P=P, v=v, phase=phase, quality=quality, v_liquid=v_l, v_vapor=v_v,
                 roots=_roots_for(model, T, P))
@@ -340,11 +337,7 @@ def _from_P_v(model, P, v):
     result = None
     if np.any(sub):
         T_sat, vl, vv, result = saturation_temperature(model, P[sub])
-        in_dome = (v[sub] > vl) & (v[sub] < vv)
-        idx = np.flatnonzero(sub)[in_dome]
-        T[idx], v_l[idx], v_v[idx] = T_sat[in_dome], vl[in_dome], vv[in_dome]
-        quality[idx] = (v[idx] - v_l[idx]) / (v_v[idx] - v_l[idx])
-        inside[idx] = True
+        inside[_lever_rule(v, sub, T_sat, vl, vv, T, v_l, v_v, quality)] = True
     single = ~inside
     if np.any(single):
         T[single], result = _temperature_at(model, P[single], v[single])
@@ -387,6 +380,19 @@ def volume_bracket(model, T, P):
 def pressure_gap(T, v, P, model):
     """Residual P(T, v)/P - 1 [-] of the (P, v) -> T and (T, P) -> v inversions."""
     return model.pressure(T, v) / P - 1.0
+
+
+def _lever_rule(v, sub, sat_value, vl, vv, target, v_l, v_v, quality):
+    """Fill the states of ``sub`` whose v lies inside the dome; return their indices.
+
+    ``sat_value`` (the saturation P or T of the ``sub`` states) goes into ``target``, the
+    saturated volumes into v_l, v_v and the lever-rule quality into ``quality``.
+    """
+    inside = (v[sub] > vl) & (v[sub] < vv)
+    idx = np.flatnonzero(sub)[inside]
+    target[idx], v_l[idx], v_v[idx] = sat_value[inside], vl[inside], vv[inside]
+    quality[idx] = (v[idx] - v_l[idx]) / (v_v[idx] - v_l[idx])
+    return idx
 
 
 def _temperature_at(model, P, v):
