@@ -158,18 +158,47 @@ def kernel(T_in, P_in, kind, prm, roots, stable, v_out, phase):
 
 
 @jit
-def start_estimate(Tr, alpha, x_first, inv_h, shift, table):
-    """ln(P/Pc) from the corresponding-states table, as saturation._start_estimate (NaN outside)."""
+def start_values(Tr, alpha, x_first, inv_h, shift, table, volumes):
+    """ln(P/Pc), v_L/b and Z_V from the corresponding-states tables, as saturation._start_values
+    (NaN outside): one set of four-point Lagrange weights serves the three columns."""
     t = (np.sqrt(alpha / Tr - shift) - x_first) * inv_h
     n = table.size
     if not (t >= 0.0 and t <= n - 1.0):
-        return np.nan
+        return np.nan, np.nan, np.nan
     j = int(t) - 1
     j = 0 if j < 0 else (n - 4 if j > n - 4 else j)
     u = t - j
-    return (-(u - 1.0) * (u - 2.0) * (u - 3.0) * _SIXTH * table[j] + u * (u - 2.0) * (u - 3.0) * 0.5 * table[j + 1]
-            - u * (u - 1.0) * (u - 3.0) * 0.5 * table[j + 2] + u * (u - 1.0) * (u - 2.0) * _SIXTH * table[j + 3]
-            + np.log(alpha))
+    w0 = -(u - 1.0) * (u - 2.0) * (u - 3.0) * _SIXTH
+    w1 = u * (u - 2.0) * (u - 3.0) * 0.5
+    w2 = -u * (u - 1.0) * (u - 3.0) * 0.5
+    w3 = u * (u - 1.0) * (u - 2.0) * _SIXTH
+    ln_pr = w0 * table[j] + w1 * table[j + 1] + w2 * table[j + 2] + w3 * table[j + 3] + np.log(alpha)
+    rl = w0 * volumes[j, 0] + w1 * volumes[j + 1, 0] + w2 * volumes[j + 2, 0] + w3 * volumes[j + 3, 0]
+    zv = w0 * volumes[j, 1] + w1 * volumes[j + 1, 1] + w2 * volumes[j + 2, 1] + w3 * volumes[j + 3, 1]
+    return ln_pr, rl, zv
+
+
+@jit
+def refine_root(z, c2, c1, c0, steps, tol):
+    """Newton on the cubic in Z from z, as saturation._refine_root: (root, slope) once a step
+    is at most tol |z|, (NaN, 0) if none is within the steps."""
+    for _ in range(steps):
+        df = (3.0 * z + 2.0 * c2) * z + c1
+        dz = (((z + c2) * z + c1) * z + c0) / df
+        z = z - dz
+        if abs(dz) <= tol * abs(z):
+            return z, df
+    return np.nan, 0.0
+
+
+@jit
+def table_roots(zl, zv, c2, c1, c0, B, steps, tol):
+    """The liquid and vapour roots refined from the table's starts, and whether they pass
+    the check of saturation._table_roots (B < Z_L < Z_middle < Z_V, rising cubic at both)."""
+    zl, dl = refine_root(zl, c2, c1, c0, steps, tol)
+    zv, dv = refine_root(zv, c2, c1, c0, steps, tol)
+    zm = -c2 - zl - zv
+    return zl, zv, dl > 0.0 and dv > 0.0 and zl > B and zm > zl and zv > zm
 
 
 @jit
@@ -183,12 +212,13 @@ def fugacity_gap_z(zl, zv, A_over_B, B, d1, d2):
 
 
 @jit
-def saturation_kernel(T_in, kind, prm, start, table, settings, lnP_out, P_out, vl_out, vv_out, ok_out,
-                      it_out, ev_out):
+def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, lnP_out, P_out, vl_out, vv_out, ok_out,
+                      it_out, ev_out, started_out):
     """Bracketed Newton in ln P on ln phi_L - ln phi_V, as saturation._newton_saturation_numpy."""
     Tc, Pc, a_c, b, c, v_min, v_c, d1, d2, slope, R = prm
     x_first, inv_h, shift = start
-    ln_lowest, accept, narrow, maxiter, eps4 = settings
+    ln_lowest, accept, narrow, maxiter, eps4, root_steps, root_tol = settings
+    steps = int(root_steps)
     u, w = d1 + d2, d1 * d2
     lnPc = np.log(Pc)
     for i in range(T_in.size):
@@ -198,16 +228,24 @@ def saturation_kernel(T_in, kind, prm, start, table, settings, lnP_out, P_out, v
         RT = R * T
         A_over_B = a / (b * RT)
         lo, hi = lnPc + ln_lowest, lnPc
-        x = lnPc + start_estimate(T / Tc, alpha, x_first, inv_h, shift, table)
-        ok, iters, evals = False, 0, 0
+        ln_pr, rl, zv_start = start_values(T / Tc, alpha, x_first, inv_h, shift, table, volumes)
+        x = lnPc + ln_pr
+        ok, iters, evals, started = False, 0, 0, False
         P, zl, zv, step = np.nan, np.nan, np.nan, 0.0
-        if not (x > lo and x < hi) and np.isfinite(x):   # NaN (outside the table) stays NaN
+        from_table = x > lo and x < hi   # the table's volumes belong to its own start only
+        if not from_table and np.isfinite(x):   # NaN (outside the table) stays NaN
             x = lo + 0.5 * (hi - lo)
         if np.isfinite(x):
             for _ in range(int(maxiter)):
                 P = np.exp(x)
                 c2, c1, c0, B = coefficients(a, b, T, P, R, u, w)
-                r0, r1, r2 = z_roots(c2, c1, c0, B)
+                if from_table:
+                    from_table = False
+                    r0, r2, started = table_roots(B * rl, zv_start, c2, c1, c0, B, steps, root_tol)
+                    if not started:
+                        r0, r1, r2 = z_roots(c2, c1, c0, B)
+                else:
+                    r0, r1, r2 = z_roots(c2, c1, c0, B)
                 evals += 1
                 scale = RT / P
                 v0 = r0 * scale - c
@@ -249,4 +287,4 @@ def saturation_kernel(T_in, kind, prm, start, table, settings, lnP_out, P_out, v
             else:
                 ok = False
         lnP_out[i], P_out[i], vl_out[i], vv_out[i] = x, P, vl, vv
-        ok_out[i], it_out[i], ev_out[i] = ok, iters, evals
+        ok_out[i], it_out[i], ev_out[i], started_out[i] = ok, iters, evals, started
