@@ -172,8 +172,9 @@ def _saturation_twins(model, T, table, settings=None, volumes=None):
 
 
 def _same_saturation(fast, slow, rtol):
-    f_lnP, f_P, f_vl, f_vv, f_ok, f_it, f_ev, f_started = fast
-    s_lnP, s_P, s_vl, s_vv, s_ok, s_it, s_ev, s_started = slow
+    f_lnP, f_P, f_vl, f_vv, f_ok, f_it, f_ev, f_started, f_bounds = fast
+    s_lnP, s_P, s_vl, s_vv, s_ok, s_it, s_ev, s_started, s_bounds = slow
+    assert f_bounds == s_bounds   # T range and number unfinished, read by the public path from the loop
     np.testing.assert_array_equal(f_ok, s_ok)
     np.testing.assert_array_equal(f_started, s_started)
     np.testing.assert_array_equal(f_ev, s_ev)
@@ -249,3 +250,23 @@ def test_switching_the_saturation_loop_off_by_environment():
     env = dict(os.environ, THERMO_ROOTS_ACCEL="0")
     out = subprocess.run([sys.executable, "-c", code], env=env, capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "None True"
+
+
+def test_large_saturation_still_checks_its_input(co2):
+    """The compiled pass reads T's range for the public checks: a T above Tc, a NaN and a
+    T at the critical point must give what the general path gives (common practice:
+    saturation exists only for 0 < T <= Tc)."""
+    model = tr.PengRobinson(co2)
+    T = np.linspace(0.5, 0.95, 2 * _sat.ACCEL_MIN_SIZE) * co2.Tc
+    for bad, error in ((1.01 * co2.Tc, tr.errors.DomainError), (-5.0, tr.errors.DomainError),
+                       (np.nan, tr.errors.InputError)):
+        T_bad = T.copy()
+        T_bad[7] = bad
+        with pytest.raises(error):
+            tr.saturation(model, T=T_bad)
+    T_crit = T.copy()
+    T_crit[-1] = co2.Tc   # the critical tangent, through the general path
+    s = tr.saturation(model, T=T_crit)
+    assert np.all(s.convergence.converged)
+    assert s.P[-1] == pytest.approx(co2.Pc, rel=1e-12) and s.v_liquid[-1] == s.v_vapor[-1] == model.v_c
+    np.testing.assert_allclose(s.P[:-1], tr.saturation(model, T=T[:-1]).P, rtol=1e-12)

@@ -124,10 +124,18 @@ def saturation_kernel(model):
     """A compiled bracketed Newton for the saturation pressure, or None (as above).
 
     The returned ``f(T, start, table, volumes, settings)`` gives ``(lnP, P, v_liquid,
-    v_vapor, ok, iterations, evaluations, started)`` per temperature; it is the loop of
+    v_vapor, ok, iterations, evaluations, started)`` per temperature and (least T,
+    greatest T, number not finished) (T's NaN if one is NaN); it is the loop of
     :func:`thermo_roots.inversion.saturation._newton_saturation_numpy`, which documents
-    the arguments. T must be a 1-D float64 array (the caller's already is).
+    the arguments. T must be a 1-D float64 array (the caller's already is). One function
+    per model is kept, so repeated calls do not rebuild it.
     """
+    if _switched_off:
+        return None
+    try:
+        return _saturation_runs[model]
+    except (KeyError, TypeError):
+        pass
     found = _kernels_for(model)
     if found is None:
         return None
@@ -136,14 +144,18 @@ def saturation_kernel(model):
 
     def run(T, start, table, volumes, settings):
         n = T.size
-        out = np.empty((4, n))
+        real = np.empty((4, n))
         counts = np.empty((2, n), np.int64)
         flags = np.empty((2, n), np.bool_)
-        loop(np.ascontiguousarray(T, dtype=float), kind, params, start, table, volumes, settings,
-             out[0], out[1], out[2], out[3], flags[0], counts[0], counts[1], flags[1])
-        return out[0], out[1], out[2], out[3], flags[0], counts[0], counts[1], flags[1]
+        summary = loop(T, kind, params, start, table, volumes, settings, real, counts, flags)
+        return real[0], real[1], real[2], real[3], flags[0], counts[0], counts[1], flags[1], summary
 
+    with contextlib.suppress(TypeError):   # a model that cannot be weakly referenced
+        _saturation_runs[model] = run
     return run
+
+
+_saturation_runs = weakref.WeakKeyDictionary()   # model -> its saturation_kernel(model)
 
 
 @functools.lru_cache(maxsize=1)

@@ -212,24 +212,31 @@ def fugacity_gap_z(zl, zv, A_over_B, B, d1, d2):
 
 
 @jit
-def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, lnP_out, P_out, vl_out, vv_out, ok_out,
-                      it_out, ev_out, started_out):
-    """Bracketed Newton in ln P on ln phi_L - ln phi_V, as saturation._newton_saturation_numpy."""
+def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, real_out, count_out, flag_out):
+    """Bracketed Newton in ln P on ln phi_L - ln phi_V, as saturation._newton_saturation_numpy.
+
+    Writes ln P, P, v_L, v_V to the rows of real_out, iterations and evaluations to those
+    of count_out, finished and table-started to those of flag_out (few arguments: each
+    one costs time at every call). Temperatures from fast_tr_max Tc on are left unsolved.
+    Returns T's least and greatest value (both NaN if one T is NaN) and the number of
+    temperatures not finished, so that the caller needs no other pass over the arrays."""
     Tc, Pc, a_c, b, c, v_min, v_c, d1, d2, slope, R = prm
     x_first, inv_h, shift = start
-    ln_lowest, accept, narrow, maxiter, eps4, root_steps, root_tol = settings
+    ln_lowest, accept, narrow, maxiter, eps4, root_steps, root_tol, fast_tr_max = settings
     steps = int(root_steps)
     u, w = d1 + d2, d1 * d2
     lnPc = np.log(Pc)
+    t_min, t_max, nan_seen, unfinished = np.inf, -np.inf, False, 0
     for i in range(T_in.size):
         T = T_in[i]
+        t_min, t_max, nan_seen = min(t_min, T), max(t_max, T), nan_seen or T != T
         alpha = alpha_value(T, kind, Tc, slope)
         a = a_c * alpha
         RT = R * T
         A_over_B = a / (b * RT)
         lo, hi = lnPc + ln_lowest, lnPc
         ln_pr, rl, zv_start = start_values(T / Tc, alpha, x_first, inv_h, shift, table, volumes)
-        x = lnPc + ln_pr
+        x = lnPc + ln_pr if T < fast_tr_max * Tc else np.nan
         ok, iters, evals, started = False, 0, 0, False
         P, zl, zv, step = np.nan, np.nan, np.nan, 0.0
         from_table = x > lo and x < hi   # the table's volumes belong to its own start only
@@ -286,5 +293,9 @@ def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, lnP_out,
                 vl, vv = zl * scale - c, zv * scale - c
             else:
                 ok = False
-        lnP_out[i], P_out[i], vl_out[i], vv_out[i] = x, P, vl, vv
-        ok_out[i], it_out[i], ev_out[i], started_out[i] = ok, iters, evals, started
+        real_out[0, i], real_out[1, i], real_out[2, i], real_out[3, i] = x, P, vl, vv
+        count_out[0, i], count_out[1, i], flag_out[0, i], flag_out[1, i] = iters, evals, ok, started
+        unfinished += not ok
+    if nan_seen:
+        t_min, t_max = np.nan, np.nan
+    return t_min, t_max, unfinished

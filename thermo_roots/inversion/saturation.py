@@ -120,6 +120,9 @@ def saturation(model, T=None, P=None):
     if (T is None) == (P is None):
         raise InputError("saturation() needs exactly one of T= or P=.")
     if T is not None:
+        solved = _compiled_saturation_pressure(model, T)
+        if solved is not None:   # 1-D arrays already
+            return Saturation(model, T, *solved)
         T = np.asarray(to_si(T, "T"), dtype=float)
         _check_range(T, model.fluid.Tc, "T", "K", "the critical temperature Tc")
         P_sat, v_l, v_v, result = saturation_pressure(model, T)
@@ -173,11 +176,38 @@ def _reshaped(solved, shape):
     return P.reshape(shape), v_l.reshape(shape), v_v.reshape(shape), result
 
 
-def _below_critical(model, T):
-    """Saturation at 1-D T below Tc (1 - 1e-11): the fast path, then the window solver."""
-    P, v_l, v_v, result = _newton_saturation(model, T)
-    rest = ~result.converged
-    if rest.any():
+def _compiled_saturation_pressure(model, T):
+    """:func:`saturation_pressure` for an array T [K] that is SI already, in one compiled pass.
+
+    Serves 1-D float64 arrays of at least ACCEL_MIN_SIZE temperatures when the compiled
+    loop is there: the loop reports T's range along the way, so the public checks need no
+    pass of their own. None where the general path must serve: another input, no
+    compiled loop, or T not all in 0 < T < Tc (1 - 1e-11) (NaN, a domain error to raise
+    with its message, or the critical tangent).
+    """
+    if not (type(T) is np.ndarray and T.dtype == np.float64 and T.ndim == 1 and T.size >= ACCEL_MIN_SIZE):
+        return None
+    from .. import _accel
+
+    tables = _start_tables(model.delta1, model.delta2)
+    kernel = _accel.saturation_kernel(model)
+    if kernel is None or tables is None:
+        return None
+    *out, (T_min, T_max, unfinished) = kernel(T, _TABLE_START, *tables, _SETTINGS)
+    if not (T_min > 0.0 and T_max < model.fluid.Tc * (1.0 - _UNRESOLVED_GAP)):   # NaN fails
+        return None
+    fast = _newton_result(*out, unfinished=unfinished)
+    return fast if unfinished == 0 else _below_critical(model, T, fast)
+
+
+def _below_critical(model, T, fast=None):
+    """Saturation at 1-D T below Tc (1 - 1e-11): the fast path, then the window solver.
+
+    fast : the fast path's (P, v_l, v_v, result) at T, if the caller has it already.
+    """
+    P, v_l, v_v, result = _newton_saturation(model, T) if fast is None else fast
+    if result.status is not _all_converged(T.size):   # only the fast path's "all done" is this array
+        rest = ~result.converged
         P[rest], v_l[rest], v_v[rest], slow = _window_saturation(model, T[rest])
         result = _merge(result, rest, slow)
         _require(result, "saturation pressure", T, "T", "K")
@@ -249,6 +279,12 @@ def _newton_saturation(model, T):
     cubic below Tr = 0.99 (checked in tests/inversion/test_saturation_fast.py), so the
     error is under 2e-17, below the rounding of ln P.
 
+    Parameters
+    ----------
+    model : CubicModel
+    T : numpy.ndarray
+        1-D temperatures [K].
+
     Returns
     -------
     P, v_l, v_v : numpy.ndarray
@@ -264,33 +300,28 @@ def _newton_saturation(model, T):
     Press, W. H. et al. (2007), Numerical Recipes, 3rd ed., section 9.4 (Newton's method
     safeguarded by bisection).
     """
+    tables = _start_tables(model.delta1, model.delta2)
+    if tables is None:
+        return _newton_result(*_nothing_solved(T.size))
+    kernel = None
+    if T.size >= ACCEL_MIN_SIZE:
+        from .. import _accel
+
+        kernel = _accel.saturation_kernel(model)
+    if kernel is None:
+        out = _newton_saturation_numpy(model, T, _TABLE_START, *tables, _SETTINGS)
+    else:
+        out = kernel(T, _TABLE_START, *tables, _SETTINGS)
+    return _newton_result(*out[:-1])
+
+
+def _newton_result(lnP, P, v_l, v_v, ok, iterations, evaluations, started, unfinished=None):
+    """(P, v_l, v_v, RootResult) from the outputs of the fast path's loops (unfinished: how
+    many are not ok, if known)."""
     from ..roots import RootResult
 
-    n = T.size
-    limit = FAST_TR_MAX * model.fluid.Tc
-    everywhere = n > 0 and T.max() < limit
-    fast = None if everywhere else T < limit
-    tables = _start_tables(model.delta1, model.delta2) if everywhere or fast.any() else None
-    if tables is None:
-        out = _nothing_solved(n)
-    else:
-        Tf = T if everywhere else T[fast]
-        kernel = None
-        if Tf.size >= ACCEL_MIN_SIZE:
-            from .. import _accel
-
-            kernel = _accel.saturation_kernel(model)
-        if kernel is None:
-            out = _newton_saturation_numpy(model, Tf, _TABLE_START, *tables, _SETTINGS)
-        else:
-            out = kernel(Tf, _TABLE_START, *tables, _SETTINGS)
-        if not everywhere:
-            whole = _nothing_solved(n)
-            for column, part in zip(whole, out):
-                column[fast] = part
-            out = whole
-    lnP, P, v_l, v_v, ok, iterations, evaluations, _ = out
-    if ok.all():
+    n = ok.size
+    if unfinished == 0 or (unfinished is None and ok.all()):
         status = _all_converged(n)
     else:
         status = np.where(ok, "converged", "iteration limit")
@@ -309,7 +340,7 @@ _ROOT_STEPS = 4
 _ROOT_TOL = 1e-11
 #: The fast path's constants in the order the loops unpack them (see _newton_saturation_numpy).
 _SETTINGS = (float(np.log(_LOWEST_REDUCED_PRESSURE)), _ACCEPT_STEP, _NARROW_DOME, float(_FAST_MAXITER), _LNP_RTOL,
-             float(_ROOT_STEPS), _ROOT_TOL)
+             float(_ROOT_STEPS), _ROOT_TOL, FAST_TR_MAX)
 
 
 @functools.lru_cache(maxsize=8)
@@ -381,22 +412,28 @@ def _newton_saturation_numpy(model, T, start, table, volumes, settings):
     settings : tuple
         (ln of the lowest reduced pressure, accepted last step, narrow-dome ratio,
         iteration limit, relative bracket width at which to give up, Newton steps per
-        table root, relative step that ends them) [-].
+        table root, relative step that ends them, reduced temperature from which T is
+        left to the window solver) [-].
 
     Returns
     -------
     lnP, P, v_l, v_v, ok, iterations, evaluations, started : numpy.ndarray
         ln P [ln Pa], P [Pa], saturated volumes [m^3/mol], finished (bool), the counts,
         and whether the first evaluation's roots came from the table (bool).
+    summary : tuple
+        T's least and greatest value [K] (NaN if one T is NaN) and the number of T not
+        finished (the compiled loop finds them on its way, so the public range check and
+        the hand-over to the window solver need no pass of their own).
     """
-    ln_lowest, accept, narrow, maxiter, eps4, root_steps, root_tol = settings
+    ln_lowest, accept, narrow, maxiter, eps4, root_steps, root_tol, fast_tr_max = settings
     n, c, d1, d2 = T.size, model.c, model.delta1, model.delta2
     a, _ = model.attraction(T)
     alpha = a / model.a_c
     A_over_B = a / (model.b * (R * T))
     lnPc = np.log(model.fluid.Pc)
-    ln_pr, rl, zv_start = _start_values(T / model.fluid.Tc, alpha, start, table, volumes)
-    x = lnPc + ln_pr
+    Tr = T / model.fluid.Tc
+    ln_pr, rl, zv_start = _start_values(Tr, alpha, start, table, volumes)
+    x = np.where(Tr < fast_tr_max, lnPc + ln_pr, np.nan)   # from fast_tr_max on: the window solver's
     lo, hi = np.full(n, lnPc + ln_lowest), np.full(n, lnPc)
     ok, iterations, evaluations = np.zeros(n, bool), np.zeros(n, np.int64), np.zeros(n, np.int64)
     P_last, z_l, z_v, last = np.full(n, np.nan), np.full(n, np.nan), np.full(n, np.nan), np.zeros(n)
@@ -458,7 +495,8 @@ def _newton_saturation_numpy(model, T, start, table, volumes, settings):
         scale = R * T[fin] / P
         v_l[fin] = np.where(ok[fin], zl * scale - c, np.nan)
         v_v[fin] = np.where(ok[fin], zv * scale - c, np.nan)
-    return x, P_out, v_l, v_v, ok, iterations, evaluations, started
+    summary = (T.min(), T.max(), int(n - ok.sum())) if n else (np.inf, -np.inf, 0)
+    return x, P_out, v_l, v_v, ok, iterations, evaluations, started, summary
 
 
 def _table_roots(model, T, P, rl, zv, steps, tol):
