@@ -79,8 +79,12 @@ def alpha_value(T, kind, Tc, slope):
 def coefficients(a, b, T, P, R, u, w):
     """c2, c1, c0 of the cubic in Z and B = bP/(RT), as CubicModel.cubic_coefficients."""
     RT = R * T
-    A = a * P / (RT * RT)
-    B = b * P / RT
+    return coefficients_of(a * P / (RT * RT), b * P / RT, u, w)
+
+
+@jit
+def coefficients_of(A, B, u, w):
+    """c2, c1, c0 of the cubic in Z, and B, from A = aP/(RT)^2 and B = bP/(RT)."""
     c2 = (u - 1.0) * B - 1.0
     c1 = A + w * B * B - u * B * (1.0 + B)
     c0 = -B * (A + w * B * (1.0 + B))
@@ -234,6 +238,7 @@ def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, real_out
         a = a_c * alpha
         RT = R * T
         A_over_B = a / (b * RT)
+        A_per_P, B_per_P = a / (RT * RT), b / RT   # A and B are proportional to P
         lo, hi = lnPc + ln_lowest, lnPc
         ln_pr, rl, zv_start = start_values(T / Tc, alpha, x_first, inv_h, shift, table, volumes)
         x = lnPc + ln_pr if T < fast_tr_max * Tc else np.nan
@@ -245,7 +250,7 @@ def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, real_out
         if np.isfinite(x):
             for _ in range(int(maxiter)):
                 P = np.exp(x)
-                c2, c1, c0, B = coefficients(a, b, T, P, R, u, w)
+                c2, c1, c0, B = coefficients_of(A_per_P * P, B_per_P * P, u, w)
                 if from_table:
                     from_table = False
                     r0, r2, started = table_roots(B * rl, zv_start, c2, c1, c0, B, steps, root_tol)
@@ -286,7 +291,7 @@ def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, real_out
         if ok:   # the last step taken, and the roots carried to its pressure by one guarded polish
             x = x + step
             P = P * (1.0 + step * (1.0 + 0.5 * step))
-            c2, c1, c0, B = coefficients(a, b, T, P, R, u, w)
+            c2, c1, c0, B = coefficients_of(A_per_P * P, B_per_P * P, u, w)
             zl, zv = polish(zl, c2, c1, c0), polish(zv, c2, c1, c0)
             if zl > B and zv > zl:
                 scale = RT / P

@@ -23,9 +23,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .. import _accel
 from ..errors import ConvergenceError, DomainError, InputError, ThermoRootsError
 from ..models import IdealGas, R, _scalar_or_array
-from ..roots import find_root
+from ..roots import RootResult, find_root
 from .cubic import _polish, _volume_columns, volume_roots
 
 #: Tolerances of the saturation solve in ln P: as tight as double precision allows.
@@ -185,10 +186,8 @@ def _compiled_saturation_pressure(model, T):
     compiled loop, or T not all in 0 < T < Tc (1 - 1e-11) (NaN, a domain error to raise
     with its message, or the critical tangent).
     """
-    if not (type(T) is np.ndarray and T.dtype == np.float64 and T.ndim == 1 and T.size >= ACCEL_MIN_SIZE):
+    if not (type(T) is np.ndarray and T.dtype is _FLOAT64 and T.ndim == 1 and T.size >= ACCEL_MIN_SIZE):
         return None
-    from .. import _accel
-
     tables = _start_tables(model.delta1, model.delta2)
     kernel = _accel.saturation_kernel(model)
     if kernel is None or tables is None:
@@ -254,6 +253,8 @@ def _merge(fast, mask, slow):
 FAST_TR_MAX = 0.99
 #: From this many temperatures on, the compiled loop (if numba is there) runs the iteration.
 ACCEL_MIN_SIZE = 256
+#: The dtype of a native float64 array (a singleton: compared by identity, which is quick).
+_FLOAT64 = np.dtype(np.float64)
 #: A Newton step of at most this size in ln P is taken as the last one (see _newton_saturation).
 _ACCEPT_STEP = 1e-9
 #: Iteration limit of the fast path (a bisection from the widest bracket needs about 55).
@@ -303,11 +304,7 @@ def _newton_saturation(model, T):
     tables = _start_tables(model.delta1, model.delta2)
     if tables is None:
         return _newton_result(*_nothing_solved(T.size))
-    kernel = None
-    if T.size >= ACCEL_MIN_SIZE:
-        from .. import _accel
-
-        kernel = _accel.saturation_kernel(model)
+    kernel = _accel.saturation_kernel(model) if T.size >= ACCEL_MIN_SIZE else None
     if kernel is None:
         out = _newton_saturation_numpy(model, T, _TABLE_START, *tables, _SETTINGS)
     else:
@@ -318,8 +315,6 @@ def _newton_saturation(model, T):
 def _newton_result(lnP, P, v_l, v_v, ok, iterations, evaluations, started, unfinished=None):
     """(P, v_l, v_v, RootResult) from the outputs of the fast path's loops (unfinished: how
     many are not ok, if known)."""
-    from ..roots import RootResult
-
     n = ok.size
     if unfinished == 0 or (unfinished is None and ok.all()):
         status = _all_converged(n)
