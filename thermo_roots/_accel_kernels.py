@@ -206,6 +206,15 @@ def table_roots(zl, zv, c2, c1, c0, B, steps, tol):
 
 
 @jit
+def root_rate(z, c2, c1, A, B, u, w):
+    """dZ/dln P [-] of a root z of the cubic at fixed T (A and B proportional to P), as
+    saturation._root_rate."""
+    df = (3.0 * z + 2.0 * c2) * z + c1
+    dfl = ((u - 1.0) * B * z + (A + 2.0 * w * B * B - u * B * (1.0 + 2.0 * B))) * z - B * (2.0 * A + w * B * (2.0 + 3.0 * B))
+    return -dfl / df
+
+
+@jit
 def fugacity_gap_z(zl, zv, A_over_B, B, d1, d2):
     """ln phi_L - ln phi_V from the cubic's Z roots, as saturation.fugacity_gap_z."""
     if d1 == d2:
@@ -243,7 +252,7 @@ def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, real_out
         ln_pr, rl, zv_start = start_values(T / Tc, alpha, x_first, inv_h, shift, table, volumes)
         x = lnPc + ln_pr if T < fast_tr_max * Tc else np.nan
         ok, iters, evals, started = False, 0, 0, False
-        P, zl, zv, step = np.nan, np.nan, np.nan, 0.0
+        P, zl, zv, step, rate_l, rate_v = np.nan, np.nan, np.nan, 0.0, 0.0, 0.0
         from_table = x > lo and x < hi   # the table's volumes belong to its own start only
         if not from_table and np.isfinite(x):   # NaN (outside the table) stays NaN
             x = lo + 0.5 * (hi - lo)
@@ -273,6 +282,8 @@ def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, real_out
                     iters += 1
                     if abs(step) <= accept:
                         zl, zv, ok = r0, r2, True
+                        rate_l = root_rate(r0, c2, c1, A_per_P * P, B, u, w)
+                        rate_v = root_rate(r2, c2, c1, A_per_P * P, B, u, w)
                         break
                     xn = x + step
                     if not (xn > lo and xn < hi):
@@ -288,12 +299,11 @@ def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, real_out
                     break
                 x = xn
         vl, vv = np.nan, np.nan
-        if ok:   # the last step taken, and the roots carried to its pressure by one guarded polish
+        if ok:   # the last step taken, and the roots carried to its pressure along their slopes
             x = x + step
             P = P * (1.0 + step * (1.0 + 0.5 * step))
-            c2, c1, c0, B = coefficients_of(A_per_P * P, B_per_P * P, u, w)
-            zl, zv = polish(zl, c2, c1, c0), polish(zv, c2, c1, c0)
-            if zl > B and zv > zl:
+            zl, zv = zl + rate_l * step, zv + rate_v * step
+            if zl > B_per_P * P and zv > zl:
                 scale = RT / P
                 vl, vv = zl * scale - c, zv * scale - c
             else:

@@ -267,3 +267,22 @@ def test_a_wrong_table_start_falls_back_to_the_closed_form(propane):
     for k in (1, 2, 3):
         np.testing.assert_allclose(poor[k], good[k], rtol=1e-12)
     np.testing.assert_array_equal(poor[6], good[6])   # the closed form costs no extra evaluation
+
+
+@pytest.mark.parametrize("cls", CUBICS, ids=lambda c: c.short_name)
+def test_root_rate_is_the_slope_of_the_closed_form_roots(cls, co2):
+    """dZ/dln P of the liquid and vapour roots, which carries them to the last step's
+    pressure, against central differences of cubic.py's roots (implicit differentiation,
+    common practice)."""
+    m = cls(co2)
+    T = np.linspace(0.4, 0.98, 25) * co2.Tc
+    P = sat._window_saturation(m, T)[0]
+    c2, c1, _, B = m.cubic_coefficients(T, P)
+    a, _ = m.attraction(T)
+    A = a / (m.b * tr.R * T) * B
+    h = 1e-6
+    z = [(tr.volume_roots(m, T, P * np.exp(k * h)) + m.c) * (P * np.exp(k * h) / (tr.R * T))[:, None] for k in (-1, 0, 1)]
+    for col in (0, 2):
+        rate = sat._root_rate(z[1][:, col], c2, c1, A, B, m.delta1 + m.delta2, m.delta1 * m.delta2)
+        central = (z[2][:, col] - z[0][:, col]) / (2 * h)
+        np.testing.assert_allclose(rate, central, rtol=1e-6, atol=1e-9)

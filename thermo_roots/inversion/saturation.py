@@ -27,7 +27,7 @@ from .. import _accel
 from ..errors import ConvergenceError, DomainError, InputError, ThermoRootsError
 from ..models import IdealGas, R, _scalar_or_array
 from ..roots import RootResult, find_root
-from .cubic import _polish, _volume_columns, volume_roots
+from .cubic import _volume_columns, volume_roots
 
 #: Tolerances of the saturation solve in ln P: as tight as double precision allows.
 _LNP_RTOL = 4.0 * np.finfo(float).eps
@@ -477,21 +477,43 @@ def _newton_saturation_numpy(model, T, start, table, volumes, settings):
             ok[fin] = True
             P_last[fin], z_l[fin], z_v[fin], last[fin] = P[done], zl[done], zv[done], step[done]
             idx = idx[~(done | stop | collapsed)]
-    # the last step taken, and the roots carried to its pressure by one guarded polish
+    # the last step taken, and the roots carried to its pressure along their slopes
     v_l, v_v, P_out = np.full(n, np.nan), np.full(n, np.nan), P_last
     fin = np.flatnonzero(ok)
     if fin.size:
         step = last[fin]
         x[fin] += step
-        P_out[fin] = P = P_last[fin] * (1.0 + step * (1.0 + 0.5 * step))
-        c2, c1, c0, B = model.cubic_coefficients(T[fin], P)
-        zl, zv = _polish(z_l[fin], c2, c1, c0), _polish(z_v[fin], c2, c1, c0)
-        ok[fin] = (zl > B) & (zv > zl)
+        c2, c1, _, B = model.cubic_coefficients(T[fin], P_last[fin])
+        A = A_over_B[fin] * B
+        zl = z_l[fin] + _root_rate(z_l[fin], c2, c1, A, B, d1 + d2, d1 * d2) * step
+        zv = z_v[fin] + _root_rate(z_v[fin], c2, c1, A, B, d1 + d2, d1 * d2) * step
+        growth = 1.0 + step * (1.0 + 0.5 * step)   # exp(step) to rounding, |step| <= 1e-9
+        P_out[fin] = P = P_last[fin] * growth
+        ok[fin] = (zl > B * growth) & (zv > zl)
         scale = R * T[fin] / P
         v_l[fin] = np.where(ok[fin], zl * scale - c, np.nan)
         v_v[fin] = np.where(ok[fin], zv * scale - c, np.nan)
     summary = (T.min(), T.max(), int(n - ok.sum())) if n else (np.inf, -np.inf, 0)
     return x, P_out, v_l, v_v, ok, iterations, evaluations, started, summary
+
+
+def _root_rate(z, c2, c1, A, B, u, w):
+    """dZ/dln P [-] of a root z of the cubic in Z at fixed T, by implicit differentiation.
+
+    A = aP/(RT)^2 and B = bP/(RT) are proportional to P, so the coefficients' derivatives
+    in ln P are polynomials in A and B; u = delta1 + delta2, w = delta1 delta2. The fast
+    path's last step in ln P is at most 1e-9, so Z + rate * step is the root at the new
+    pressure to about 1e-18 (the neglected term is of second order in the step).
+    Compiled twin: :func:`thermo_roots._accel_kernels.root_rate`.
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., ch. 3 (the cubic in Z with A and B).
+    """
+    df = (3.0 * z + 2.0 * c2) * z + c1
+    dfl = ((u - 1.0) * B * z + (A + 2.0 * w * B * B - u * B * (1.0 + 2.0 * B))) * z - B * (2.0 * A + w * B * (2.0 + 3.0 * B))
+    return -dfl / df
 
 
 def _table_roots(model, T, P, rl, zv, steps, tol):
