@@ -161,19 +161,22 @@ class _Nothing:
 _sat = importlib.import_module("thermo_roots.inversion.saturation")
 
 
-def _saturation_twins(model, T, table, settings=None):
+def _saturation_twins(model, T, table, settings=None, volumes=None):
     settings = _sat._SETTINGS if settings is None else settings
+    volumes = _sat._start_tables(model.delta1, model.delta2)[1] if volumes is None else volumes
     kernel = _accel.saturation_kernel(model)
     if kernel is None:
         pytest.skip("accelerator switched off (THERMO_ROOTS_ACCEL=0)")
-    return (kernel(T, _sat._TABLE_START, table, settings),
-            _sat._newton_saturation_numpy(model, T, _sat._TABLE_START, table, settings))
+    return (kernel(T, _sat._TABLE_START, table, volumes, settings),
+            _sat._newton_saturation_numpy(model, T, _sat._TABLE_START, table, volumes, settings))
 
 
 def _same_saturation(fast, slow, rtol):
-    f_lnP, f_P, f_vl, f_vv, f_ok, f_it, f_ev = fast
-    s_lnP, s_P, s_vl, s_vv, s_ok, s_it, s_ev = slow
+    f_lnP, f_P, f_vl, f_vv, f_ok, f_it, f_ev, f_started, f_bounds = fast
+    s_lnP, s_P, s_vl, s_vv, s_ok, s_it, s_ev, s_started, s_bounds = slow
+    assert f_bounds == s_bounds   # T range and number unfinished, read by the public path from the loop
     np.testing.assert_array_equal(f_ok, s_ok)
+    np.testing.assert_array_equal(f_started, s_started)
     np.testing.assert_array_equal(f_ev, s_ev)
     np.testing.assert_array_equal(f_it, s_it)
     for a, b in ((f_P, s_P), (f_vl, s_vl), (f_vv, s_vv)):
@@ -187,9 +190,9 @@ def test_compiled_saturation_loop_agrees_with_its_numpy_twin(short, options, co2
     for fluid, seed in ((co2, 1), (propane, 2), (tr.get_fluid("water"), 3), (tr.get_fluid("helium"), 4)):
         model = _model(short, options, fluid)
         T = np.random.default_rng(seed).uniform(0.3, 0.99, 5000) * fluid.Tc
-        table = _sat._start_table(model.delta1, model.delta2)
+        table = _sat._start_tables(model.delta1, model.delta2)[0]
         fast, slow = _saturation_twins(model, T, table)
-        assert fast[4].mean() > 0.99
+        assert fast[4].mean() > 0.99 and fast[7].mean() > 0.99
         _same_saturation(fast, slow, rtol=1e-12)
 
 
@@ -199,7 +202,7 @@ def test_compiled_saturation_loop_agrees_on_bisection_and_give_up_branches(co2):
     pytest.importorskip("numba")
     model = tr.PengRobinson(co2)
     T = np.random.default_rng(8).uniform(0.35, 0.99, 3000) * co2.Tc
-    table = _sat._start_table(model.delta1, model.delta2)
+    table = _sat._start_tables(model.delta1, model.delta2)[0]
     for shift in (3.0, -3.0):
         _same_saturation(*_saturation_twins(model, T, table + shift), rtol=1e-12)
     settings = list(_sat._SETTINGS)
@@ -207,6 +210,22 @@ def test_compiled_saturation_loop_agrees_on_bisection_and_give_up_branches(co2):
     fast, slow = _saturation_twins(model, T, table + 3.0, tuple(settings))
     assert 0.0 < fast[4].mean() < 1.0
     _same_saturation(fast, slow, rtol=1e-12)
+
+
+def test_compiled_saturation_loop_agrees_when_the_table_roots_are_rejected(co2):
+    """Vapour starts of Z = 0 (they run to the liquid root): both loops reject every
+    table pair, take the closed form, and still agree with each other and the good run."""
+    pytest.importorskip("numba")
+    model = tr.SoaveRedlichKwong(co2)
+    T = np.random.default_rng(12).uniform(0.35, 0.99, 2000) * co2.Tc
+    table, volumes = _sat._start_tables(model.delta1, model.delta2)
+    wrong = volumes.copy()
+    wrong[:, 1] = 0.0
+    fast, slow = _saturation_twins(model, T, table, volumes=wrong)
+    assert not fast[7].any() and fast[4].all()
+    _same_saturation(fast, slow, rtol=1e-12)
+    good, _ = _saturation_twins(model, T, table)
+    np.testing.assert_allclose(fast[1], good[1], rtol=1e-12)
 
 
 def test_large_saturation_uses_the_compiled_loop_and_agrees_with_numpy(co2):
@@ -231,3 +250,23 @@ def test_switching_the_saturation_loop_off_by_environment():
     env = dict(os.environ, THERMO_ROOTS_ACCEL="0")
     out = subprocess.run([sys.executable, "-c", code], env=env, capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "None True"
+
+
+def test_large_saturation_still_checks_its_input(co2):
+    """The compiled pass reads T's range for the public checks: a T above Tc, a NaN and a
+    T at the critical point must give what the general path gives (common practice:
+    saturation exists only for 0 < T <= Tc)."""
+    model = tr.PengRobinson(co2)
+    T = np.linspace(0.5, 0.95, 2 * _sat.ACCEL_MIN_SIZE) * co2.Tc
+    for bad, error in ((1.01 * co2.Tc, tr.errors.DomainError), (-5.0, tr.errors.DomainError),
+                       (np.nan, tr.errors.InputError)):
+        T_bad = T.copy()
+        T_bad[7] = bad
+        with pytest.raises(error):
+            tr.saturation(model, T=T_bad)
+    T_crit = T.copy()
+    T_crit[-1] = co2.Tc   # the critical tangent, through the general path
+    s = tr.saturation(model, T=T_crit)
+    assert np.all(s.convergence.converged)
+    assert s.P[-1] == pytest.approx(co2.Pc, rel=1e-12) and s.v_liquid[-1] == s.v_vapor[-1] == model.v_c
+    np.testing.assert_allclose(s.P[:-1], tr.saturation(model, T=T[:-1]).P, rtol=1e-12)

@@ -123,27 +123,39 @@ def stable_roots_kernel(model):
 def saturation_kernel(model):
     """A compiled bracketed Newton for the saturation pressure, or None (as above).
 
-    The returned ``f(T, start, table, settings)`` gives ``(lnP, P, v_liquid, v_vapor, ok,
-    iterations, evaluations)`` per temperature; it is the loop of
+    The returned ``f(T, start, table, volumes, settings)`` gives ``(lnP, P, v_liquid,
+    v_vapor, ok, iterations, evaluations, started)`` per temperature and (least T,
+    greatest T, number not finished) (T's NaN if one is NaN); it is the loop of
     :func:`thermo_roots.inversion.saturation._newton_saturation_numpy`, which documents
-    the arguments.
+    the arguments. T must be a 1-D float64 array (the caller's already is). One function
+    per model is kept, so repeated calls do not rebuild it.
     """
+    if _switched_off:
+        return None
+    try:
+        return _saturation_runs[model]
+    except (KeyError, TypeError):
+        pass
     found = _kernels_for(model)
     if found is None:
         return None
     kernels, kind, params = found
+    loop = kernels.saturation_kernel
 
-    def run(T, start, table, settings):
+    def run(T, start, table, volumes, settings):
         n = T.size
-        lnP, P, v_l, v_v = np.empty((4, n))
-        iterations, evaluations = np.empty((2, n), np.int64)
-        ok = np.empty(n, np.bool_)
-        kernels.saturation_kernel(np.ascontiguousarray(T, dtype=float), kind, params, start,
-                                  np.ascontiguousarray(table, dtype=float), settings,
-                                  lnP, P, v_l, v_v, ok, iterations, evaluations)
-        return lnP, P, v_l, v_v, ok, iterations, evaluations
+        real = np.empty((4, n))
+        counts = np.empty((2, n), np.int64)
+        flags = np.empty((2, n), np.bool_)
+        summary = loop(T, kind, params, start, table, volumes, settings, real, counts, flags)
+        return real[0], real[1], real[2], real[3], flags[0], counts[0], counts[1], flags[1], summary
 
+    with contextlib.suppress(TypeError):   # a model that cannot be weakly referenced
+        _saturation_runs[model] = run
     return run
+
+
+_saturation_runs = weakref.WeakKeyDictionary()   # model -> its saturation_kernel(model)
 
 
 @functools.lru_cache(maxsize=1)

@@ -79,8 +79,12 @@ def alpha_value(T, kind, Tc, slope):
 def coefficients(a, b, T, P, R, u, w):
     """c2, c1, c0 of the cubic in Z and B = bP/(RT), as CubicModel.cubic_coefficients."""
     RT = R * T
-    A = a * P / (RT * RT)
-    B = b * P / RT
+    return coefficients_of(a * P / (RT * RT), b * P / RT, u, w)
+
+
+@jit
+def coefficients_of(A, B, u, w):
+    """c2, c1, c0 of the cubic in Z, and B, from A = aP/(RT)^2 and B = bP/(RT)."""
     c2 = (u - 1.0) * B - 1.0
     c1 = A + w * B * B - u * B * (1.0 + B)
     c0 = -B * (A + w * B * (1.0 + B))
@@ -158,18 +162,56 @@ def kernel(T_in, P_in, kind, prm, roots, stable, v_out, phase):
 
 
 @jit
-def start_estimate(Tr, alpha, x_first, inv_h, shift, table):
-    """ln(P/Pc) from the corresponding-states table, as saturation._start_estimate (NaN outside)."""
+def start_values(Tr, alpha, x_first, inv_h, shift, table, volumes):
+    """ln(P/Pc), v_L/b and Z_V from the corresponding-states tables, as saturation._start_values
+    (NaN outside): one set of four-point Lagrange weights serves the three columns."""
     t = (np.sqrt(alpha / Tr - shift) - x_first) * inv_h
     n = table.size
     if not (t >= 0.0 and t <= n - 1.0):
-        return np.nan
+        return np.nan, np.nan, np.nan
     j = int(t) - 1
     j = 0 if j < 0 else (n - 4 if j > n - 4 else j)
     u = t - j
-    return (-(u - 1.0) * (u - 2.0) * (u - 3.0) * _SIXTH * table[j] + u * (u - 2.0) * (u - 3.0) * 0.5 * table[j + 1]
-            - u * (u - 1.0) * (u - 3.0) * 0.5 * table[j + 2] + u * (u - 1.0) * (u - 2.0) * _SIXTH * table[j + 3]
-            + np.log(alpha))
+    w0 = -(u - 1.0) * (u - 2.0) * (u - 3.0) * _SIXTH
+    w1 = u * (u - 2.0) * (u - 3.0) * 0.5
+    w2 = -u * (u - 1.0) * (u - 3.0) * 0.5
+    w3 = u * (u - 1.0) * (u - 2.0) * _SIXTH
+    ln_pr = w0 * table[j] + w1 * table[j + 1] + w2 * table[j + 2] + w3 * table[j + 3] + np.log(alpha)
+    rl = w0 * volumes[j, 0] + w1 * volumes[j + 1, 0] + w2 * volumes[j + 2, 0] + w3 * volumes[j + 3, 0]
+    zv = w0 * volumes[j, 1] + w1 * volumes[j + 1, 1] + w2 * volumes[j + 2, 1] + w3 * volumes[j + 3, 1]
+    return ln_pr, rl, zv
+
+
+@jit
+def refine_root(z, c2, c1, c0, steps, tol):
+    """Newton on the cubic in Z from z, as saturation._refine_root: (root, slope) once a step
+    is at most tol |z|, (NaN, 0) if none is within the steps."""
+    for _ in range(steps):
+        df = (3.0 * z + 2.0 * c2) * z + c1
+        dz = (((z + c2) * z + c1) * z + c0) / df
+        z = z - dz
+        if abs(dz) <= tol * abs(z):
+            return z, df
+    return np.nan, 0.0
+
+
+@jit
+def table_roots(zl, zv, c2, c1, c0, B, steps, tol):
+    """The liquid and vapour roots refined from the table's starts, and whether they pass
+    the check of saturation._table_roots (B < Z_L < Z_middle < Z_V, rising cubic at both)."""
+    zl, dl = refine_root(zl, c2, c1, c0, steps, tol)
+    zv, dv = refine_root(zv, c2, c1, c0, steps, tol)
+    zm = -c2 - zl - zv
+    return zl, zv, dl > 0.0 and dv > 0.0 and zl > B and zm > zl and zv > zm
+
+
+@jit
+def root_rate(z, c2, c1, A, B, u, w):
+    """dZ/dln P [-] of a root z of the cubic at fixed T (A and B proportional to P), as
+    saturation._root_rate."""
+    df = (3.0 * z + 2.0 * c2) * z + c1
+    dfl = ((u - 1.0) * B * z + (A + 2.0 * w * B * B - u * B * (1.0 + 2.0 * B))) * z - B * (2.0 * A + w * B * (2.0 + 3.0 * B))
+    return -dfl / df
 
 
 @jit
@@ -183,31 +225,48 @@ def fugacity_gap_z(zl, zv, A_over_B, B, d1, d2):
 
 
 @jit
-def saturation_kernel(T_in, kind, prm, start, table, settings, lnP_out, P_out, vl_out, vv_out, ok_out,
-                      it_out, ev_out):
-    """Bracketed Newton in ln P on ln phi_L - ln phi_V, as saturation._newton_saturation_numpy."""
+def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, real_out, count_out, flag_out):
+    """Bracketed Newton in ln P on ln phi_L - ln phi_V, as saturation._newton_saturation_numpy.
+
+    Writes ln P, P, v_L, v_V to the rows of real_out, iterations and evaluations to those
+    of count_out, finished and table-started to those of flag_out (few arguments: each
+    one costs time at every call). Temperatures from fast_tr_max Tc on are left unsolved.
+    Returns T's least and greatest value (both NaN if one T is NaN) and the number of
+    temperatures not finished, so that the caller needs no other pass over the arrays."""
     Tc, Pc, a_c, b, c, v_min, v_c, d1, d2, slope, R = prm
     x_first, inv_h, shift = start
-    ln_lowest, accept, narrow, maxiter, eps4 = settings
+    ln_lowest, accept, narrow, maxiter, eps4, root_steps, root_tol, fast_tr_max = settings
+    steps = int(root_steps)
     u, w = d1 + d2, d1 * d2
     lnPc = np.log(Pc)
+    t_min, t_max, nan_seen, unfinished = np.inf, -np.inf, False, 0
     for i in range(T_in.size):
         T = T_in[i]
+        t_min, t_max, nan_seen = min(t_min, T), max(t_max, T), nan_seen or T != T
         alpha = alpha_value(T, kind, Tc, slope)
         a = a_c * alpha
         RT = R * T
         A_over_B = a / (b * RT)
+        A_per_P, B_per_P = a / (RT * RT), b / RT   # A and B are proportional to P
         lo, hi = lnPc + ln_lowest, lnPc
-        x = lnPc + start_estimate(T / Tc, alpha, x_first, inv_h, shift, table)
-        ok, iters, evals = False, 0, 0
-        P, zl, zv, step = np.nan, np.nan, np.nan, 0.0
-        if not (x > lo and x < hi) and np.isfinite(x):   # NaN (outside the table) stays NaN
+        ln_pr, rl, zv_start = start_values(T / Tc, alpha, x_first, inv_h, shift, table, volumes)
+        x = lnPc + ln_pr if T < fast_tr_max * Tc else np.nan
+        ok, iters, evals, started = False, 0, 0, False
+        P, zl, zv, step, rate_l, rate_v = np.nan, np.nan, np.nan, 0.0, 0.0, 0.0
+        from_table = x > lo and x < hi   # the table's volumes belong to its own start only
+        if not from_table and np.isfinite(x):   # NaN (outside the table) stays NaN
             x = lo + 0.5 * (hi - lo)
         if np.isfinite(x):
             for _ in range(int(maxiter)):
                 P = np.exp(x)
-                c2, c1, c0, B = coefficients(a, b, T, P, R, u, w)
-                r0, r1, r2 = z_roots(c2, c1, c0, B)
+                c2, c1, c0, B = coefficients_of(A_per_P * P, B_per_P * P, u, w)
+                if from_table:
+                    from_table = False
+                    r0, r2, started = table_roots(B * rl, zv_start, c2, c1, c0, B, steps, root_tol)
+                    if not started:
+                        r0, r1, r2 = z_roots(c2, c1, c0, B)
+                else:
+                    r0, r1, r2 = z_roots(c2, c1, c0, B)
                 evals += 1
                 scale = RT / P
                 v0 = r0 * scale - c
@@ -223,6 +282,8 @@ def saturation_kernel(T_in, kind, prm, start, table, settings, lnP_out, P_out, v
                     iters += 1
                     if abs(step) <= accept:
                         zl, zv, ok = r0, r2, True
+                        rate_l = root_rate(r0, c2, c1, A_per_P * P, B, u, w)
+                        rate_v = root_rate(r2, c2, c1, A_per_P * P, B, u, w)
                         break
                     xn = x + step
                     if not (xn > lo and xn < hi):
@@ -238,15 +299,18 @@ def saturation_kernel(T_in, kind, prm, start, table, settings, lnP_out, P_out, v
                     break
                 x = xn
         vl, vv = np.nan, np.nan
-        if ok:   # the last step taken, and the roots carried to its pressure by one guarded polish
+        if ok:   # the last step taken, and the roots carried to its pressure along their slopes
             x = x + step
             P = P * (1.0 + step * (1.0 + 0.5 * step))
-            c2, c1, c0, B = coefficients(a, b, T, P, R, u, w)
-            zl, zv = polish(zl, c2, c1, c0), polish(zv, c2, c1, c0)
-            if zl > B and zv > zl:
+            zl, zv = zl + rate_l * step, zv + rate_v * step
+            if zl > B_per_P * P and zv > zl:
                 scale = RT / P
                 vl, vv = zl * scale - c, zv * scale - c
             else:
                 ok = False
-        lnP_out[i], P_out[i], vl_out[i], vv_out[i] = x, P, vl, vv
-        ok_out[i], it_out[i], ev_out[i] = ok, iters, evals
+        real_out[0, i], real_out[1, i], real_out[2, i], real_out[3, i] = x, P, vl, vv
+        count_out[0, i], count_out[1, i], flag_out[0, i], flag_out[1, i] = iters, evals, ok, started
+        unfinished += not ok
+    if nan_seen:
+        t_min, t_max = np.nan, np.nan
+    return t_min, t_max, unfinished

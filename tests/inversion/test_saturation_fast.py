@@ -34,8 +34,9 @@ def _random_Tr(name, n, low=0.35, high=0.99):
 
 
 def _numpy_fast(model, T):
+    """The numpy loop's per-temperature outputs (without T's range)."""
     return sat._newton_saturation_numpy(model, T, sat._TABLE_START,
-                                        sat._start_table(model.delta1, model.delta2), sat._SETTINGS)
+                                        *sat._start_tables(model.delta1, model.delta2), sat._SETTINGS)[:8]
 
 
 @pytest.mark.parametrize("cls", CUBICS, ids=lambda c: c.short_name)
@@ -43,8 +44,9 @@ def test_fast_path_agrees_with_the_window_solver_to_1e_12(cls):
     for fluid in _fluids():
         m = cls(fluid)
         T = _random_Tr(fluid.name + cls.short_name, 40) * fluid.Tc
-        lnP, P, v_l, v_v, ok, iterations, evaluations = _numpy_fast(m, T)
+        lnP, P, v_l, v_v, ok, iterations, evaluations, started = _numpy_fast(m, T)
         assert ok.all(), fluid.name   # the fast path covers Tr 0.35-0.99 for every library fluid
+        assert started.all(), fluid.name   # and its roots start from the table and pass the check
         assert evaluations.max() <= 3, fluid.name   # the corresponding-states start is that good
         P_ref, vl_ref, vv_ref, result = sat._window_saturation(m, T)
         assert np.all(result.converged)
@@ -60,7 +62,7 @@ def test_fast_path_satisfies_equal_fugacity_and_the_equation_of_state(cls):
     for fluid in _fluids(every=5):
         m = cls(fluid)
         T = _random_Tr(fluid.name, 30) * fluid.Tc
-        _, P, v_l, v_v, ok, _, _ = _numpy_fast(m, T)
+        _, P, v_l, v_v, ok, _, _, _ = _numpy_fast(m, T)
         assert ok.all(), fluid.name
         gap = m.ln_phi(T, v_l, P) - m.ln_phi(T, v_v, P)
         assert np.max(np.abs(gap)) < 1e-10, fluid.name
@@ -147,16 +149,16 @@ def test_a_poor_start_still_converges_by_the_bracket(propane, monkeypatch):
     m = tr.PengRobinson(propane)
     T = np.linspace(0.35, 0.985, 40) * propane.Tc
     good = _numpy_fast(m, T)
-    table = sat._start_table(m.delta1, m.delta2)
+    table, volumes = sat._start_tables(m.delta1, m.delta2)
     for shift in (3.0, -3.0):
-        poor = sat._newton_saturation_numpy(m, T, sat._TABLE_START, table + shift, sat._SETTINGS)
+        poor = sat._newton_saturation_numpy(m, T, sat._TABLE_START, table + shift, volumes, sat._SETTINGS)
         assert poor[4].all() and poor[6].min() > good[6].max()
         np.testing.assert_allclose(poor[1], good[1], rtol=1e-12)
     # and with two evaluations at most, the ones that did not finish go to the window solver
     settings = list(sat._SETTINGS)
     settings[3] = 2.0
     monkeypatch.setattr(sat, "_SETTINGS", tuple(settings))
-    monkeypatch.setattr(sat, "_start_table", lambda d1, d2: table + 3.0)
+    monkeypatch.setattr(sat, "_start_tables", lambda d1, d2: (table + 3.0, volumes))
     P, _, _, result = sat.saturation_pressure(m, T)
     assert np.all(result.converged) and "chandrupatla" in result.method
     np.testing.assert_allclose(P, good[1], rtol=1e-12)
@@ -183,3 +185,104 @@ def test_public_saturation_uses_the_fast_path_and_counts_its_work(co2):
     assert np.all(s.convergence.evaluations >= 1) and np.all(s.convergence.iterations >= 1)
     one = tr.saturation(m, T=250.0)
     assert isinstance(one.P, float) and one.convergence.method == "newton"
+
+
+@pytest.mark.parametrize("cls", CUBICS, ids=lambda c: c.short_name)
+def test_table_volumes_are_the_solved_saturated_volumes(cls):
+    """The tables' v_L/b and Z_V, read at s = Tr/alpha of a real model, are that model's
+    saturated roots (corresponding states of the two-parameter cubic, Michelsen &
+    Mollerup 2007, ch. 3) to the interpolation's accuracy: close enough that a few
+    Newton steps on the cubic finish them."""
+    for fluid in _fluids(every=9):
+        m = cls(fluid)
+        T = _random_Tr(fluid.name + "volumes", 40, high=0.98) * fluid.Tc
+        P, v_l, v_v, result = sat._window_saturation(m, T)
+        assert np.all(result.converged)
+        a, _ = m.attraction(T)
+        ln_pr, rl, zv = sat._start_values(T / fluid.Tc, a / m.a_c, sat._TABLE_START, *sat._start_tables(m.delta1, m.delta2))
+        to_z = P / (tr.R * T)
+        np.testing.assert_allclose(ln_pr, np.log(P / fluid.Pc), rtol=0, atol=1e-7, err_msg=fluid.name)
+        np.testing.assert_allclose(rl, (v_l + m.c) / m.b, rtol=1e-6, err_msg=fluid.name)
+        np.testing.assert_allclose(zv, (v_v + m.c) * to_z, rtol=1e-6, err_msg=fluid.name)
+
+
+def _three_root_state(m, Tr):
+    """(T, P, c2, c1, c0, B) and the sorted Z roots at Tr and 0.9 Psat, where the cubic has three."""
+    T = np.array([Tr * m.fluid.Tc])
+    P = 0.9 * sat._window_saturation(m, T)[0]
+    c2, c1, c0, B = m.cubic_coefficients(T, P)
+    v = tr.volume_roots(m, T, P)[0]
+    assert np.all(np.isfinite(v))
+    return T, P, (c2, c1, c0, B), (v + m.c) * (P / (tr.R * T))
+
+
+def _table_roots_both(m, T, P, zl, zv, coefficients):
+    """The check on both sides: numpy's _table_roots and, if numba is there, its compiled twin."""
+    zl, zv = np.ravel(zl), np.ravel(zv)
+    out = [sat._table_roots(m, T, P, zl / coefficients[3], zv, sat._ROOT_STEPS, sat._ROOT_TOL)]
+    try:
+        from thermo_roots import _accel_kernels as kernels
+    except ImportError:
+        return out
+    c2, c1, c0, B = (float(np.ravel(x)[0]) for x in coefficients)
+    zl_c, zv_c, good = kernels.table_roots(float(zl[0]), float(zv[0]), c2, c1, c0, B, sat._ROOT_STEPS, sat._ROOT_TOL)
+    return out + [(np.array([zl_c]), np.array([zv_c]), np.array([good]))]
+
+
+@pytest.mark.parametrize("cls", CUBICS, ids=lambda c: c.short_name)
+def test_root_check_accepts_the_outer_roots_and_rejects_wrong_starts(cls, co2):
+    m = cls(co2)
+    T, P, coefficients, z = _three_root_state(m, 0.8)
+    near = lambda k: z[k:k + 1] * (1.0 + 1e-7)   # noqa: E731  a start close to root k
+    # close to the liquid and vapour roots: accepted, and refined to the closed form's roots
+    for zl, zv, good in _table_roots_both(m, T, P, near(0), near(2), coefficients):
+        assert good.all()
+        np.testing.assert_allclose([zl[0], zv[0]], [z[0], z[2]], rtol=1e-14)
+    # both starts at the vapour root, the liquid start at the middle root, the vapour start
+    # at the middle root, swapped starts, a start that gets nowhere (NaN): all rejected
+    for zl0, zv0 in ((near(2), near(2)), (near(1), near(2)), (near(0), near(1)), (near(2), near(0)),
+                     (near(0), np.array([np.nan]))):
+        for _, _, good in _table_roots_both(m, T, P, zl0, zv0, coefficients):
+            assert not good.any(), (zl0, zv0)
+    # where the cubic has one root only (well above the window), no start passes
+    P_high = 3.0 * sat._window_saturation(m, T)[0]
+    high = m.cubic_coefficients(T, P_high)
+    z_one = (tr.volume_roots(m, T, P_high)[0, 0] + m.c) * P_high / (tr.R * T)
+    assert not np.isfinite(tr.volume_roots(m, T, P_high)[0, 1])
+    for _, _, good in _table_roots_both(m, T, P_high, np.array([z_one]), np.array([z_one * 1.01]), high):
+        assert not good.any()
+
+
+def test_a_wrong_table_start_falls_back_to_the_closed_form(propane):
+    """Vapour starts of Z = 0 run to the liquid root: the check rejects every pair, the
+    closed-form roots serve, and the answer is the same as from the right starts."""
+    m = tr.PengRobinson(propane)
+    T = np.linspace(0.35, 0.985, 60) * propane.Tc
+    table, volumes = sat._start_tables(m.delta1, m.delta2)
+    wrong = volumes.copy()
+    wrong[:, 1] = 0.0
+    good = sat._newton_saturation_numpy(m, T, sat._TABLE_START, table, volumes, sat._SETTINGS)
+    poor = sat._newton_saturation_numpy(m, T, sat._TABLE_START, table, wrong, sat._SETTINGS)
+    assert good[7].all() and not poor[7].any() and poor[4].all()
+    for k in (1, 2, 3):
+        np.testing.assert_allclose(poor[k], good[k], rtol=1e-12)
+    np.testing.assert_array_equal(poor[6], good[6])   # the closed form costs no extra evaluation
+
+
+@pytest.mark.parametrize("cls", CUBICS, ids=lambda c: c.short_name)
+def test_root_rate_is_the_slope_of_the_closed_form_roots(cls, co2):
+    """dZ/dln P of the liquid and vapour roots, which carries them to the last step's
+    pressure, against central differences of cubic.py's roots (implicit differentiation,
+    common practice)."""
+    m = cls(co2)
+    T = np.linspace(0.4, 0.98, 25) * co2.Tc
+    P = sat._window_saturation(m, T)[0]
+    c2, c1, _, B = m.cubic_coefficients(T, P)
+    a, _ = m.attraction(T)
+    A = a / (m.b * tr.R * T) * B
+    h = 1e-6
+    z = [(tr.volume_roots(m, T, P * np.exp(k * h)) + m.c) * (P * np.exp(k * h) / (tr.R * T))[:, None] for k in (-1, 0, 1)]
+    for col in (0, 2):
+        rate = sat._root_rate(z[1][:, col], c2, c1, A, B, m.delta1 + m.delta2, m.delta1 * m.delta2)
+        central = (z[2][:, col] - z[0][:, col]) / (2 * h)
+        np.testing.assert_allclose(rate, central, rtol=1e-6, atol=1e-9)
