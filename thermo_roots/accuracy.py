@@ -113,6 +113,24 @@ class AccuracyMap:
     summary: pd.DataFrame = field(repr=False)
     models: tuple = ()
 
+    @classmethod
+    def combine(cls, parts) -> "AccuracyMap":
+        """One map from maps over consecutive temperature rows on the same pressures and models
+        (as a panel computes a map chunk by chunk); the summary is worked out afresh."""
+        first = parts[0]
+        points = pd.concat([p.points for p in parts], ignore_index=True)
+        points.attrs = dict(first.points.attrs)
+        points.attrs["T_grid"] = [T for p in parts for T in p.points.attrs["T_grid"]]
+        for key in ("excluded_points", "excluded_two_phase"):
+            points.attrs[key] = sum(p.points.attrs.get(key, 0) for p in parts)
+        reasons = {}
+        for p in parts:
+            for reason, count in p.points.attrs.get("excluded_reasons", {}).items():
+                reasons[reason] = reasons.get(reason, 0) + count
+        points.attrs["excluded_reasons"] = reasons
+        return cls(fluid=first.fluid, points=points, summary=_summarise(points, list(first.models)),
+                   models=first.models)
+
     def best_by_region(self) -> pd.DataFrame:
         """The model of lowest mean |deviation| in each region (index: region)."""
         table = self.summary.dropna(subset=["mean_abs_percent"])

@@ -106,7 +106,7 @@ class AccuracyPanel(w.VBox):
 
     def _steps(self):
         """The computation as a generator: one yield after each chunk of temperature rows."""
-        from ..accuracy import accuracy_map
+        from ..accuracy import AccuracyMap, accuracy_map
 
         self._stop = False
         try:
@@ -143,7 +143,7 @@ class AccuracyPanel(w.VBox):
         if not parts:
             self._fail("Cancelled before the first chunk finished; the previous map is kept.")
             return
-        self.result, self.error = _merge(parts), None
+        self.result, self.error = AccuracyMap.combine(parts), None
         self.status.value = ("<div style='color:#8a5a00'>Cancelled: the map shows the temperature rows "
                              "finished before the cancel.</div>" if self.cancelled else "")
         self.progress_note.value += " (cancelled)" if self.cancelled else " done"
@@ -180,23 +180,3 @@ class AccuracyPanel(w.VBox):
 
 def _share(x) -> str:
     return "-" if not math.isfinite(x) else f"{100 * x:.0f} %"
-
-
-def _merge(parts):
-    """One AccuracyMap from maps over consecutive temperature rows on the same pressures."""
-    from ..accuracy import AccuracyMap, _summarise
-    import pandas as pd
-
-    first = parts[0]
-    points = pd.concat([p.points for p in parts], ignore_index=True)
-    points.attrs = dict(first.points.attrs)
-    points.attrs["T_grid"] = [T for p in parts for T in p.points.attrs["T_grid"]]
-    for key in ("excluded_points", "excluded_two_phase"):
-        points.attrs[key] = sum(p.points.attrs.get(key, 0) for p in parts)
-    reasons = {}
-    for p in parts:
-        for reason, count in p.points.attrs.get("excluded_reasons", {}).items():
-            reasons[reason] = reasons.get(reason, 0) + count
-    points.attrs["excluded_reasons"] = reasons
-    return AccuracyMap(fluid=first.fluid, points=points, summary=_summarise(points, list(first.models)),
-                       models=first.models)
