@@ -52,11 +52,42 @@ def test_user_defined_fluid_and_its_validation():
             tr.Fluid("bad", **kwargs)
 
 
-def test_shipped_library_table_is_what_coolprop_reports():
-    # the table lets get_fluid skip CoolProp's slow import; it must hold CoolProp's values exactly
+def test_shipped_library_table_agrees_with_the_installed_coolprop():
+    # The table lets get_fluid skip CoolProp's slow import. It was generated from the CoolProp
+    # release named in its "source" field; pyproject.toml allows that major series only. A
+    # later release may add fluids or refine a constant in the last digits: every shipped
+    # fluid must still exist and agree to 1e-9 (a larger change means: regenerate the table
+    # with `python -m thermo_roots.fluids`).
     from thermo_roots.fluids import LIBRARY_TABLE, library_table_from_coolprop
     import json
 
     shipped = json.loads(LIBRARY_TABLE.read_text(encoding="utf-8"))
     live = library_table_from_coolprop()
-    assert shipped["fluids"] == live["fluids"], "run `python -m thermo_roots.fluids` to refresh the table"
+    assert shipped["source"].startswith("CoolProp ")
+    missing = sorted(set(shipped["fluids"]) - set(live["fluids"]))
+    assert not missing, f"{live['source']} no longer has {missing}; regenerate the table"
+    for name, entry in shipped["fluids"].items():
+        now = live["fluids"][name]
+        for key in ("Tc", "Pc", "omega", "molar_mass"):
+            assert entry[key] == pytest.approx(now[key], rel=1e-9), (name, key, shipped["source"], live["source"])
+        assert entry["CAS"] == now["CAS"], name
+
+
+def test_library_fluids_carry_the_names_engineers_write():
+    # the reference library's identifiers stay in library_name; results show everyday names
+    assert tr.get_fluid("CO2").name == "carbon dioxide"
+    assert tr.get_fluid("propane").name == "propane"
+    assert tr.get_fluid("R134a").name == "R134a"
+    assert tr.get_fluid("isobutane").name == "isobutane"
+    assert tr.get_fluid("CO2").library_name == "CarbonDioxide"
+
+
+def test_numpy_scalars_are_accepted_as_constants_and_booleans_are_not():
+    import numpy as np
+
+    f = tr.Fluid("x", Tc=np.float32(350.0), Pc=np.int64(4_000_000), omega=np.float64(0.2), molar_mass=0.05)
+    assert type(f.Tc) is float and f.Pc == 4.0e6 and f.Tc == pytest.approx(350.0)
+    with pytest.raises(tr.InputError, match="Tc"):
+        tr.Fluid("x", Tc=True, Pc=4e6, omega=0.2, molar_mass=0.05)
+    with pytest.raises(tr.InputError, match="Tc"):
+        tr.Fluid("x", Tc=np.array([350.0, 360.0]), Pc=4e6, omega=0.2, molar_mass=0.05)

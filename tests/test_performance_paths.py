@@ -262,8 +262,11 @@ def test_large_saturation_still_checks_its_input(co2):
                        (np.nan, tr.errors.InputError)):
         T_bad = T.copy()
         T_bad[7] = bad
-        with pytest.raises(error):
-            tr.saturation(model, T=T_bad)
+        with pytest.raises(error, match=r"index \(7,\)"):
+            tr.saturation(model, T=T_bad, errors="raise")
+        s = tr.saturation(model, T=T_bad)   # the default: NaN and a reason there, the rest solved
+        assert np.isnan(s.P[7]) and s.reason[7] and not any(s.reason[np.arange(T.size) != 7])
+        np.testing.assert_allclose(np.delete(s.P, 7), np.delete(tr.saturation(model, T=T).P, 7), rtol=1e-12)
     T_crit = T.copy()
     T_crit[-1] = co2.Tc   # the critical tangent, through the general path
     s = tr.saturation(model, T=T_crit)

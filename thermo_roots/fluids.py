@@ -11,8 +11,11 @@ import functools
 import json
 import math
 import pathlib
+import numbers
 import re
 from dataclasses import dataclass
+
+import numpy as np
 
 from .errors import InputError, UnknownFluidError
 
@@ -50,13 +53,19 @@ class Fluid:
     library_name: str | None = None
 
     def __post_init__(self):
+        if not isinstance(self.name, str) or not self.name.strip():
+            raise InputError(f"A Fluid needs a name (non-empty text), not {self.name!r}.")
+        for label in ("Tc", "Pc", "molar_mass", "omega"):   # numpy scalars are stored as floats
+            value = getattr(self, label)
+            if _is_real_number(value):
+                object.__setattr__(self, label, float(value))
         for label, value in (("Tc", self.Tc), ("Pc", self.Pc), ("molar_mass", self.molar_mass)):
-            if not (isinstance(value, (int, float)) and math.isfinite(value) and value > 0):
+            if not (_is_real_number(value) and math.isfinite(value) and value > 0):
                 raise InputError(
                     f"Fluid {self.name!r}: {label} = {value!r} must be a positive finite number in SI "
                     "units (Tc [K], Pc [Pa], molar_mass [kg/mol])."
                 )
-        if not (isinstance(self.omega, (int, float)) and math.isfinite(self.omega) and -1 < self.omega < 2):
+        if not (_is_real_number(self.omega) and math.isfinite(self.omega) and -1 < self.omega < 2):
             raise InputError(f"Fluid {self.name!r}: omega = {self.omega!r} must be a finite number between -1 and 2.")
 
     def __repr__(self):
@@ -74,6 +83,33 @@ class Fluid:
         ]
         body = "".join(f"<tr><th style='text-align:left'>{k}</th><td>{v}</td></tr>" for k, v in rows)
         return f"<table><caption>{self.name}</caption>{body}</table>"
+
+
+def _is_real_number(value) -> bool:
+    """A real number (Python or numpy scalar), not a bool, not an array."""
+    return isinstance(value, numbers.Real) and not isinstance(value, (bool, np.bool_))
+
+
+#: Library names that engineers write differently from the split-and-lower rule below.
+_DISPLAY_NAMES = {
+    "n-Propane": "propane", "CycloHexane": "cyclohexane", "CycloPropane": "cyclopropane",
+    "IsoButane": "isobutane", "IsoButene": "isobutene", "EthylBenzene": "ethylbenzene",
+    "ParaHydrogen": "parahydrogen", "OrthoHydrogen": "orthohydrogen",
+    "ParaDeuterium": "paradeuterium", "OrthoDeuterium": "orthodeuterium",
+}
+
+
+def display_name(library_name: str) -> str:
+    """The name engineers write for a library fluid: "CarbonDioxide" -> "carbon dioxide".
+
+    Refrigerant numbers and codes (R134a, R1234ze(E), D4, MDM, SES36, Novec649) are kept as
+    they are; other names are split at capitals and written in lower case.
+    """
+    if library_name in _DISPLAY_NAMES:
+        return _DISPLAY_NAMES[library_name]
+    if re.search(r"[A-Za-z]\d|[A-Z]{2}", library_name):   # a code (R134a, D4, MDM), not a word
+        return library_name
+    return re.sub(r"(?<=[a-z])(?=[A-Z])", " ", library_name).lower()
 
 
 def _normalise(name: str) -> str:
@@ -190,7 +226,7 @@ def get_fluid(name: str) -> Fluid:
 
 def _fluid_from_library(library_name: str) -> Fluid:
     entry = _library_table()[library_name]
-    return Fluid(name=library_name, Tc=entry["Tc"], Pc=entry["Pc"], omega=entry["omega"],
+    return Fluid(name=display_name(library_name), Tc=entry["Tc"], Pc=entry["Pc"], omega=entry["omega"],
                  molar_mass=entry["molar_mass"], library_name=library_name)
 
 

@@ -17,6 +17,7 @@ numpy arrays and broadcast like numpy.
 from __future__ import annotations
 
 import math
+import numbers
 from dataclasses import dataclass, field
 from typing import Callable
 
@@ -140,6 +141,20 @@ PR78 = CubicFamily("Peng-Robinson 1978", 1.0 + SQRT2, 1.0 - SQRT2, _soave_alpha(
 
 # --------------------------------------------------------------------------- models
 
+def _as_fluid(fluid, model_name: str) -> Fluid:
+    """A Fluid, or a library name looked up; anything else is refused with an example."""
+    if isinstance(fluid, str):
+        from .fluids import get_fluid
+
+        return get_fluid(fluid)
+    if not isinstance(fluid, Fluid):
+        from .errors import InputError
+
+        raise InputError(f"{model_name} needs a Fluid or a fluid name, e.g. {model_name}(get_fluid('propane')) "
+                         f"or {model_name}('propane'); got {fluid!r}.")
+    return fluid
+
+
 class _Model:
     """Behaviour shared by every model: Z and the fluid it belongs to."""
 
@@ -169,8 +184,8 @@ class IdealGas(_Model):
     c = 0.0
     v_min = 0.0
 
-    def __init__(self, fluid: Fluid):
-        self.fluid = fluid
+    def __init__(self, fluid: Fluid | str):
+        self.fluid = _as_fluid(fluid, type(self).__name__)
 
     def pressure(self, T, v):
         """Pressure [Pa] at T [K] and v [m^3/mol]."""
@@ -231,11 +246,7 @@ class CubicModel(_Model):
     family: CubicFamily
 
     def __init__(self, fluid: Fluid, family: CubicFamily | None = None, volume_shift=0.0):
-        if not isinstance(fluid, Fluid):
-            from .errors import InputError
-
-            raise InputError(f"A model needs a Fluid (see get_fluid), not {fluid!r}.")
-        self.fluid = fluid
+        fluid = self.fluid = _as_fluid(fluid, type(self).__name__)
         if family is not None:
             self.family = family
         f = self.family
@@ -243,7 +254,7 @@ class CubicModel(_Model):
         self.delta1, self.delta2 = f.delta1, f.delta2
         self.a_c = f.omega_a * (R * fluid.Tc) ** 2 / fluid.Pc
         self.b = f.omega_b * R * fluid.Tc / fluid.Pc
-        self.c = _volume_shift(volume_shift, f, fluid)
+        self.c = _volume_shift(volume_shift, f, fluid, self.b)
         self.v_min = self.b - self.c
         self.v_c = f.Zc * R * fluid.Tc / fluid.Pc - self.c
         self.Zc = f.Zc - self.c * fluid.Pc / (R * fluid.Tc)
@@ -380,19 +391,31 @@ class PengRobinson78(CubicModel):
     short_name = "PR78"
 
 
-def _volume_shift(option, family: CubicFamily, fluid: Fluid) -> float:
-    """The translation c [m^3/mol] for a float or the "peneloux" option."""
+def _volume_shift(option, family: CubicFamily, fluid: Fluid, b: float) -> float:
+    """The translation c [m^3/mol] for a number or the "peneloux" option, checked below b.
+
+    The translated model's smallest volume is b - c, so a shift at or above the co-volume b
+    would admit zero or negative volumes (and Z < 0); it is refused here, once.
+    """
+    from .errors import InputError
+
     if isinstance(option, str):
-        if option.lower() != "peneloux":
-            from .errors import InputError
-
+        if option.strip().lower() != "peneloux":
             raise InputError(f"volume_shift={option!r}: give a number [m^3/mol] or 'peneloux'.")
-        return peneloux_shift(family, fluid)
-    c = float(option)
+        c = peneloux_shift(family, fluid)
+    elif isinstance(option, (bool, np.bool_)) or not isinstance(option, (numbers.Real, np.ndarray)) \
+            or np.ndim(option) != 0:
+        raise InputError(f"volume_shift={option!r}: give one number [m^3/mol] (e.g. 5e-6) or 'peneloux'; "
+                         "0 means no translation.")
+    else:
+        c = float(option)
     if not math.isfinite(c):
-        from .errors import InputError
-
         raise InputError(f"volume_shift={option!r} must be finite [m^3/mol].")
+    if c >= b:
+        raise InputError(
+            f"volume_shift = {c:.6g} m3/mol is at or above the co-volume b = {b:.6g} m3/mol of "
+            f"{family.name} for {fluid.name}: the model would admit zero or negative volumes. "
+            f"Give a shift below b (typical shifts are a few percent of b, e.g. {0.05 * b:.3g} m3/mol).")
     return c
 
 

@@ -11,19 +11,24 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..errors import DomainError, InputError
+from ..errors import ConvergenceError, DomainError, InputError
 from ..models import IdealGas, R, _scalar_or_array
 from ..roots import find_root
 from ..units import STANDARD_ATMOSPHERE, to_si
 from .cubic import phase_codes, stable_roots, volume_roots
+from ._problems import Problems, check_errors_option, si_array
 from .saturation import saturation_pressure, saturation_temperature
 
 #: Root kinds, as labelled on every root.
 LIQUID_LIKE, VAPOR_LIKE, UNSTABLE = "liquid-like", "vapor-like", "unstable"
 #: Phases a state can have.
 PHASES = ("liquid", "vapor", "supercritical", "two-phase")
-#: The phases as an object array, indexed by the integer codes of the cubic module.
-_PHASE_OBJECTS = np.array(PHASES, dtype=object)
+#: The phase of an element that could not be solved (its reason is in State.reason).
+NOT_SOLVED = "not solved"
+#: The phases as an object array, indexed by the integer codes of the cubic module (and
+#: one more code for an element not solved).
+_PHASE_OBJECTS = np.array(PHASES + (NOT_SOLVED,), dtype=object)
+_NOT_SOLVED_CODE = np.int8(len(PHASES))
 
 
 class _PhaseCodes:
@@ -93,8 +98,14 @@ class State:
     metastable : True where the state is a single-phase root other than the stable one
         (asked for with ``branch=``): between binodal and spinodal.
     knowns : the two quantities given, as SI values
-    convergence : result of the root finder that inverted the knowns (None when the state
-        followed in closed form)
+    convergence : result of the root finder that inverted the knowns, in the knowns' shape
+        (None when the state followed in closed form). Elements it did not iterate (bad
+        input, or settled another way) have status "not iterated".
+    reason : why an element is not solved ("" where it is), str or array of str; such
+        elements are NaN with phase "not solved"
+    T_other : (P, v) knowns only: a second temperature [K] that gives the same P and v in
+        the model, NaN where the answer is unique (see solve's Notes)
+    warnings : plain sentences about the result (empty when none)
     """
 
     model: object = field(repr=False)
@@ -109,6 +120,9 @@ class State:
     metastable: object = field(repr=False)
     knowns: dict = field(repr=False, default_factory=dict)
     convergence: object = field(repr=False, default=None)
+    reason: object = field(repr=False, default="")
+    T_other: object = field(repr=False, default=float("nan"))
+    warnings: tuple = field(repr=False, default=())
 
     # -- derived values
     @property
@@ -146,11 +160,15 @@ class State:
         if np.ndim(self.T):
             return self.root_volumes
         stable = _stable_index(self.root_ln_phi, self.root_kinds)
+        # on the saturation line the liquid and vapor roots coexist: equal Gibbs energy
+        coexist = self.phase == "two-phase"
         out = []
         for i, v in enumerate(self.root_volumes):
             if np.isfinite(v):
-                out.append(Root(float(v), float(self.P * v / (R * self.T)), str(self.root_kinds[i]),
-                                float(self.root_ln_phi[i]), bool(i == stable)))
+                kind = str(self.root_kinds[i])
+                lowest = (kind != UNSTABLE) if coexist else (i == stable)
+                out.append(Root(float(v), float(self.P * v / (R * self.T)), kind,
+                                float(self.root_ln_phi[i]), bool(lowest)))
         return tuple(out)
 
     @functools.cached_property
@@ -194,18 +212,25 @@ class State:
 
 # --------------------------------------------------------------------------- public entry
 
-def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, **knowns) -> State:
+def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, errors: str = "nan",
+          **knowns) -> State:
     """Solve the state of a model from two knowns.
 
     Parameters
     ----------
     model : IdealGas or CubicModel
+        A model object, e.g. ``PengRobinson(get_fluid("propane"))``.
     branch : {"stable", "liquid", "vapor"}
         For (T, P): which root to report. "stable" (default) takes the lowest Gibbs
         energy; "liquid" or "vapor" takes that root where it exists (a metastable state,
         flagged) and the only root elsewhere.
     atmosphere : float or str
         Atmospheric pressure a gauge pressure (``"8 barg"``) refers to [Pa].
+    errors : {"nan", "raise"}
+        For array knowns: "nan" (default) gives NaN and a reason (:attr:`State.reason`) at
+        every element that cannot be solved (not finite, out of range, no convergence) and
+        solves the rest; "raise" raises at the first, naming its index and value. A scalar
+        solve always raises.
     **knowns
         Exactly two of T [K], P [Pa], v [m^3/mol], rho [mol/m^3], rho_mass [kg/m^3],
         quality [-] (only with T or P); floats, arrays, text with units or pint quantities.
@@ -217,42 +242,68 @@ def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, **kn
     Raises
     ------
     InputError
-        Not two knowns, an unknown name, an unreadable value or unit.
+        Not a model, not two knowns, an unknown name, an unreadable value or unit,
+        shapes that do not broadcast, or (scalar or errors="raise") a value that is not finite.
     DomainError
-        T or P not positive, v <= b, quality outside [0, 1], quality above Tc or Pc.
+        (scalar or errors="raise") T or P not positive, v <= b, quality outside [0, 1],
+        quality above Tc or Pc, no temperature that gives (P, v).
     ConvergenceError
-        An inversion did not converge (carries the root finder's result).
+        (scalar or errors="raise") An inversion did not converge (carries the root
+        finder's result, in the caller's shape).
 
     Notes
     -----
-    (P, v) -> T: at fixed v, P = RT/(v-b) - a(T)/D(v) rises with T wherever a(T) does
-    not, which holds for every alpha function here below Tc (1 + 1/m)^2, where the Soave
-    alpha has its minimum (about 2.5 Tc for heavy fluids, omega ~ 0.9, up to about 9 Tc
-    for omega ~ 0). The bracket is T_lo = P (v-b)/R, where P(T_lo) <= P because a >= 0,
-    and T_hi = (P + a(T_lo)/D) (v-b)/R, where P(T_hi) >= P while a falls. Should the
-    Soave alpha rise again past its minimum, T_hi is doubled until the sign changes, and
-    the root found is the lowest-temperature one in that bracket.
+    (P, v) -> T: at fixed v, P(T) = RT/(v-b) - a(T)/D(v) is concave in T for every alpha
+    function here (a(T) is convex: constant for vdW, a_c/sqrt(Tr) for RK, and the Soave
+    form's second derivative is positive), so it crosses a given P at most twice. Where the
+    Soave alpha rises again past its minimum (T = Tc (1 + 1/m)^2, about 2.5 Tc for heavy
+    fluids), P(T) can peak and fall: then a second, higher temperature gives the same
+    (P, v). The lower one is reported as T, the other as :attr:`State.T_other` with a
+    warning; where the peak lies below P, no temperature gives the state and it is
+    refused with the peak pressure in the reason. The bracket of the lower root is
+    T_lo = P (v-b)/R, where P(T_lo) <= P because a >= 0, up to the first of: a temperature
+    where P >= P_given (starting from T_hi = (P + a(T_lo)/D)(v-b)/R, doubled), or the peak.
 
     References
     ----------
     Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
     Computational Aspects, 2nd ed., ch. 3 (root selection by Gibbs energy).
+    Soave, G. (1972), Chem. Eng. Sci. 27, 1197-1203 (the alpha function).
     """
-    if branch not in _BRANCHES:
+    _check_model(model, "solve")
+    if not (isinstance(branch, str) and branch in _BRANCHES):
         raise InputError(f"branch={branch!r} is not one of {', '.join(_BRANCHES)}.")
+    check_errors_option(errors)
     given = _read_knowns(model, knowns, atmosphere)
     shape = np.shape(next(iter(given.values())))
     flat = {k: np.atleast_1d(x).ravel() for k, x in given.items()}   # 1-D inside, shape restored at the end
+    problems = Problems(next(iter(flat.values())).size, shape, strict=shape == () or errors == "raise")
+    _check_knowns(model, flat, knowns, problems)
     names = frozenset(given)
-    if "quality" in names:
-        parts = _from_quality(model, flat)
-    elif names == {"T", "P"}:
-        parts = _from_T_P(model, flat["T"], flat["P"], branch)
-    elif "T" in names:
-        parts = _from_T_v(model, flat["T"], flat["v"])
-    else:
-        parts = _from_P_v(model, flat["P"], flat["v"])
-    return _make_state(model, shape, given, **parts)
+    pair = (_from_quality if "quality" in names else _from_T_P if names == {"T", "P"}
+            else _from_T_v if "T" in names else _from_P_v)
+    ok = problems.ok
+    if ok.all():
+        parts = pair(model, flat, problems, branch)
+    else:   # solve the good elements only; the flagged ones stay NaN
+        sub = Problems(int(ok.sum()), shape, problems.strict)
+        parts = _scatter(pair(model, {k: x[ok] for k, x in flat.items()}, sub, branch), ok)
+        problems.flag_at(np.flatnonzero(ok)[~sub.ok], sub.reason[~sub.ok])
+    _flag_unfinite(model, parts, problems)
+    return _make_state(model, shape, given, problems, **parts)
+
+
+def _check_model(model, caller):
+    """Refuse anything that is not a model object, with an example of one."""
+    from ..models import _Model
+
+    if isinstance(model, _Model):
+        return
+    example = "solve(tr.PengRobinson(tr.get_fluid('propane')), T='25 degC', P='10 bar')"
+    if isinstance(model, type) and issubclass(model, _Model):
+        raise InputError(f"{caller} needs a model object, not the class {model.__name__}: make one for a fluid, "
+                         f"e.g. {model.__name__}(get_fluid('propane')).")
+    raise InputError(f"{caller} needs a model object as its first argument, e.g. {example}; got {model!r}.")
 
 
 def _read_knowns(model, knowns, atmosphere):
@@ -269,40 +320,111 @@ def _read_knowns(model, knowns, atmosphere):
     if "quality" in knowns and not ({"T", "P"} & set(knowns)):
         raise InputError("quality goes with T or with P, e.g. solve(model, T='20 degC', quality=0.3).")
     M = model.fluid.molar_mass
-    si = {k: np.asarray(to_si(val, k, molar_mass=M, atmosphere=atmosphere), dtype=float)
+    si = {k: np.asarray(si_array(to_si, val, k, molar_mass=M, atmosphere=atmosphere), dtype=float)
           for k, val in knowns.items()}
-    si = dict(zip(si, np.broadcast_arrays(*si.values())))
-    for name in ("T", "P", "v", "rho", "rho_mass"):
-        if name in si and np.any(si[name] <= 0.0):
-            given = f" (given as {knowns[name]!r})" if isinstance(knowns[name], str) else ""
-            absolute = " absolute" if name in ("T", "P") else ""
-            raise DomainError(f"{name} must be above zero{absolute}: got {_first(si[name], si[name] <= 0.0):.6g} "
-                              f"{_unit(name)}{given}.")
-    if "rho" in si:
-        si["v"] = 1.0 / si.pop("rho")
-    if "rho_mass" in si:
-        si["v"] = M / si.pop("rho_mass")
-    v_min = getattr(model, "v_min", 0.0)
-    if "v" in si and np.any(si["v"] <= v_min):
-        raise DomainError(
-            f"v = {_first(si['v'], si['v'] <= v_min):.6g} m3/mol is at or below the co-volume "
-            f"b = {v_min:.6g} m3/mol of {model.name} for {model.fluid.name}: no fluid is that dense "
-            "in this model. Check the volume or density and its unit."
-        )
-    if "quality" in si and np.any((si["quality"] < 0.0) | (si["quality"] > 1.0)):
-        raise DomainError(f"quality must be between 0 and 1; got {_first(si['quality'], True):.6g}.")
+    try:
+        si = dict(zip(si, np.broadcast_arrays(*si.values())))
+    except ValueError:
+        shapes = ", ".join(f"{k} {np.shape(x)}" for k, x in si.items())
+        raise InputError(f"The knowns' shapes do not broadcast together: {shapes}. Give arrays of one shape, "
+                         "or shapes that numpy broadcasts (e.g. T of shape (n, 1) with P of shape (m,)).") from None
     return si
 
 
-# --------------------------------------------------------------------------- the pairs
+def _check_knowns(model, flat, given, problems):
+    """Flag every element whose knowns lie outside the model's domain (NaN, <= 0, v <= b, ...)."""
+    def value(name, i):
+        x = flat[name][i]
+        text = given[name] if isinstance(given[name], str) else None
+        return f"{x:.6g} {_unit(name)}" + (f" (given as {text!r})" if text else "")
 
-def _from_T_P(model, T, P, branch):
+    for name, x in flat.items():
+        problems.flag(~np.isfinite(x), lambda i, n=name: f"{n} = {value(n, i)} is not a finite number.",
+                      kind=InputError)
+    for name in ("T", "P", "v", "rho", "rho_mass"):
+        if name in flat:
+            absolute = " absolute" if name in ("T", "P") else ""
+            problems.flag(flat[name] <= 0.0, lambda i, n=name, a=absolute: f"{n} must be above zero{a}: got {value(n, i)}.")
+    M = model.fluid.molar_mass
+    if "rho" in flat:
+        flat["v"] = 1.0 / flat.pop("rho")
+    if "rho_mass" in flat:
+        flat["v"] = M / flat.pop("rho_mass")
+    v_min = model.v_min
+    if "v" in flat:
+        problems.flag(flat["v"] <= v_min, lambda i: (
+            f"v = {flat['v'][i]:.6g} m³/mol is at or below the co-volume b = {v_min:.6g} m³/mol of {model.name} "
+            f"for {model.fluid.name}: no fluid is that dense in this model. Check the volume or density and its unit."))
+    if "quality" in flat:
+        q = flat["quality"]
+        problems.flag((q < 0.0) | (q > 1.0), lambda i: f"quality must be between 0 and 1; got {q[i]:.6g}.")
+        if isinstance(model, IdealGas):
+            raise DomainError("The ideal gas has no saturation, so quality has no meaning; choose a cubic model.")
+        if "T" in flat:
+            T = flat["T"]
+            problems.flag(T > model.fluid.Tc, lambda i: (
+                f"quality needs T at or below Tc = {model.fluid.Tc:.6g} K; got {T[i]:.6g} K."))
+        else:
+            P = flat["P"]
+            problems.flag(P > model.fluid.Pc, lambda i: (
+                f"quality needs P at or below Pc = {model.fluid.Pc:.6g} Pa; got {P[i]:.6g} Pa."))
+
+
+def _flag_unfinite(model, parts, problems):
+    """A solved element whose T, P or v came out NaN or inf is refused, not reported."""
+    T, P, v = (np.asarray(parts[k], dtype=float) for k in ("T", "P", "v"))
+    bad = ~(np.isfinite(T) & np.isfinite(P) & np.isfinite(v) & (v > 0.0))
+    problems.flag(bad, lambda i: (
+        f"the model gives no finite state at T = {T[i]:.6g} K, P = {P[i]:.6g} Pa, v = {v[i]:.6g} m³/mol: "
+        f"these knowns lie outside the range {model.name} holds in double precision (e.g. a pressure or "
+        "temperature hundreds of orders of magnitude from the critical point). Check the values and units."))
+
+
+def _scatter(parts, ok):
+    """The pair solver's values on the good elements, spread over the full flat arrays (NaN elsewhere)."""
+    n = ok.size
+    out = {}
+    for key, x in parts.items():
+        if key == "convergence":
+            out[key] = x
+            continue
+        x = np.asarray(x)
+        if key == "phase" and x.dtype == np.int8:
+            full = np.full(n, _NOT_SOLVED_CODE, np.int8)
+        elif x.dtype == object:
+            full = np.full((n,) + x.shape[1:], NOT_SOLVED, dtype=object)
+        elif x.dtype == bool:
+            full = np.zeros((n,) + x.shape[1:], bool)
+        else:
+            full = np.full((n,) + x.shape[1:], np.nan)
+        full[ok] = x
+        out[key] = full
+    out["convergence"] = _expand_convergence(parts.get("convergence"), ok)
+    return out
+
+
+def _expand_convergence(convergence, ok):
+    """The root finder's record, (result, flat indices it covers) in the caller's flat indexing."""
+    if convergence is None:
+        return None
+    result, covered = convergence
+    return result, np.flatnonzero(ok)[covered]
+
+
+# --------------------------------------------------------------------------- the pairs
+# Each takes the flat SI knowns of the elements to solve and a Problems of the same size
+# (to flag what it cannot solve) and returns the state's parts; "convergence" is the root
+# finder's result with the flat indices it covers.
+
+def _from_T_P(model, flat, problems, branch):
+    T, P = flat["T"], flat["P"]
     if isinstance(model, IdealGas):
         v_roots = _ideal_roots(T, P)
         stable, v = np.zeros(T.shape, np.int8), v_roots[:, 0]
         phase = phase_codes(model, T, P, v)
     else:
-        v_roots, stable, v, phase = stable_roots(model, T, P)
+        with np.errstate(all="ignore"):   # overflowing coefficients are flagged as unfinite after
+            v_roots, stable, v, phase = stable_roots(model, T, P)
     if branch == "stable":
         metastable = np.zeros(T.shape, bool)
     else:
@@ -313,57 +435,77 @@ def _from_T_P(model, T, P, branch):
     return dict(T=T, P=P, v=v, phase=phase, roots=v_roots, metastable=metastable)
 
 
-def _from_T_v(model, T, v):
-    P = np.asarray(model.pressure(T, v), dtype=float)
+def _from_T_v(model, flat, problems, branch=None):
+    T, v = flat["T"], flat["v"]
+    with np.errstate(all="ignore"):
+        P = np.asarray(model.pressure(T, v), dtype=float)
+    problems.flag(P <= 0.0, lambda i: (
+        f"at T = {T[i]:.6g} K and v = {v[i]:.6g} m³/mol {model.name} gives P = {P[i]:.6g} Pa, not above zero: "
+        "this volume lies on the unstable loop of a low isotherm (inside the dome the state is two-phase only "
+        "between the saturated volumes)."))
     quality, v_l, v_v = (np.full(T.shape, np.nan) for _ in range(3))
     phase = np.asarray(_single_phase(model, T, P, v), dtype=object)
     if not isinstance(model, IdealGas):
         sub = T < model.fluid.Tc
         if np.any(sub):
-            P_sat, vl, vv, _ = saturation_pressure(model, T[sub])
+            P_sat, vl, vv, _ = saturation_pressure(model, T[sub], strict=False)
             idx = _lever_rule(v, sub, P_sat, vl, vv, P, v_l, v_v, quality)
             phase[idx] = "two-phase"
     return dict(T=T, P=P, v=v, phase=phase, quality=quality, v_liquid=v_l, v_vapor=v_v,
                 roots=_roots_for(model, T, P))
 
 
-def _from_P_v(model, P, v):
+def _from_P_v(model, flat, problems, branch=None):
+    P, v = flat["P"], flat["v"]
     if isinstance(model, IdealGas):
-        return _from_T_v(model, P * v / R, v)
+        return _from_T_v(model, {"T": P * v / R, "v": v}, problems)
     quality, v_l, v_v = (np.full(P.shape, np.nan) for _ in range(3))
-    T = np.full(P.shape, np.nan)
+    T, T_other = np.full(P.shape, np.nan), np.full(P.shape, np.nan)
     inside = np.zeros(P.shape, bool)
     sub = P < model.fluid.Pc
-    result = None
+    convergence = None
     if np.any(sub):
-        T_sat, vl, vv, result = saturation_temperature(model, P[sub])
+        T_sat, vl, vv, result = saturation_temperature(model, P[sub], strict=False)
         inside[_lever_rule(v, sub, T_sat, vl, vv, T, v_l, v_v, quality)] = True
+        if inside.all() and result is not None and np.size(result.root) == inside.size:
+            convergence = (result, np.arange(inside.size))   # all two-phase: the saturation solve
     single = ~inside
     if np.any(single):
-        T[single], result = _temperature_at(model, P[single], v[single])
+        T[single], T_other[single], result = _temperature_at(model, P[single], v[single],
+                                                            problems, np.flatnonzero(single))
+        convergence = (result, np.flatnonzero(single))
     phase = np.asarray(_single_phase(model, T, P, v), dtype=object)
     phase[inside] = "two-phase"
     return dict(T=T, P=P, v=v, phase=phase, quality=quality, v_liquid=v_l, v_vapor=v_v,
-                roots=_roots_for(model, T, P), convergence=result)
+                roots=_roots_for(model, T, P), convergence=convergence, T_other=T_other)
 
 
 def temperature_bracket(model, P, v):
-    """Temperatures [K] that bracket the T with P(T, v) = P [Pa] at fixed v [m^3/mol].
+    """Temperatures [K] that bracket the lowest T with P(T, v) = P [Pa] at fixed v [m^3/mol].
 
     T_lo = P (v - b)/R, where P(T_lo, v) <= P because the attraction term is never
-    negative; T_hi = (P + a(T_lo)/D(v)) (v - b)/R, where P(T_hi, v) >= P while a(T) falls,
-    doubled where the Soave alpha has turned upwards until the sign changes (see solve).
+    negative. T_hi starts at (P + a(T_lo)/D(v)) (v - b)/R, where P(T_hi, v) >= P while a(T)
+    falls, and is doubled while P(T_hi) < P and P still rises with T. Where it stops with
+    P(T_hi) < P and P falling, the peak of the concave P(T) lies in [T_lo, T_hi] (see solve).
+
+    Returns
+    -------
+    T_lo, T_hi : ndarray [K]
+    found : ndarray of bool, True where P(T_hi) >= P (a bracket); elsewhere the peak must
+        be found first.
     """
     P, v = np.asarray(P, dtype=float), np.asarray(v, dtype=float)
     T_lo = P * (v - model.v_min) / R
     a_lo, _ = model.attraction(T_lo)
     T_hi = (P + a_lo / model._denominator(v)) * (v - model.v_min) / R * (1.0 + 1e-12)
-    for _ in range(60):  # only needed where the Soave alpha has turned upwards
-        short = model.pressure(T_hi, v) < P
-        if not np.any(short):
-            break
-        T_hi = np.where(short, 2.0 * T_hi, T_hi)
-    return T_lo, T_hi
+    with np.errstate(over="ignore", invalid="ignore"):
+        for _ in range(64):
+            short = (model.pressure(T_hi, v) < P) & (model.dP_dT(T_hi, v) > 0.0)
+            if not np.any(short):
+                break
+            T_hi = np.where(short, 2.0 * T_hi, T_hi)
+        found = model.pressure(T_hi, v) >= P
+    return T_lo, T_hi, found
 
 
 def volume_bracket(model, T, P):
@@ -382,6 +524,11 @@ def pressure_gap(T, v, P, model):
     return model.pressure(T, v) / P - 1.0
 
 
+def _isochore_slope(T, v, P, model):
+    """(dP/dT) at fixed v, scaled by T/P [-]: zero at the peak of P(T) on the isochore."""
+    return model.dP_dT(T, v) * T / P
+
+
 def _lever_rule(v, sub, sat_value, vl, vv, target, v_l, v_v, quality):
     """Fill the states of ``sub`` whose v lies inside the dome; return their indices.
 
@@ -395,37 +542,128 @@ def _lever_rule(v, sub, sat_value, vl, vv, target, v_l, v_v, quality):
     return idx
 
 
-def _temperature_at(model, P, v):
-    """T [K] with P(T, v) = P, bracketed from the physics (see solve's Notes)."""
-    T_lo, T_hi = temperature_bracket(model, P, v)
-    result = find_root(pressure_gap, bracket=(T_lo, T_hi), args=(v, P, model), xtol=0.0,
-                       rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=np.size(P) == 1)
-    from .saturation import _require
+def _bracketed(f, lo, hi, args, scalar):
+    """find_root on [lo, hi]; a one-element problem is solved as a scalar (with its trace)."""
+    options = dict(xtol=0.0, rtol=4.0 * np.finfo(float).eps, maxiter=200)
+    if scalar:
+        result = find_root(f, bracket=(float(lo[0]), float(hi[0])),
+                           args=tuple(float(a[0]) if isinstance(a, np.ndarray) else a for a in args),
+                           trace=True, **options)
+        return np.atleast_1d(result.root), np.atleast_1d(result.converged), result
+    result = find_root(f, bracket=(lo, hi), args=args, trace=False, **options)
+    return np.asarray(result.root), np.asarray(result.converged), result
 
-    _require(result, "temperature", P, "P", "Pa")
-    return result.root, result
+
+def _temperature_at(model, P, v, problems, where):
+    """T [K] with P(T, v) = P, the lowest one, and the second where there is one (see solve).
+
+    ``where``: the flat indices of these elements in ``problems``. Returns (T, T_other,
+    the root finder's result for T).
+    """
+    scalar = P.size == 1 and problems.shape == ()
+    T_lo, T_hi, found = temperature_bracket(model, P, v)
+    T = np.full(P.shape, np.nan)
+    T_other = np.full(P.shape, np.nan)
+    unreachable = np.zeros(P.shape, bool)
+    peak = ~found
+    if np.any(peak):   # P(T) at this v peaks below T_hi: find the peak, check it reaches P
+        i = np.flatnonzero(peak)
+        with np.errstate(all="ignore"):
+            rising = model.dP_dT(T_lo[i], v[i]) > 0.0
+        T_peak = np.where(rising, T_lo[i], np.nan)
+        if np.any(rising):
+            j = i[rising]
+            T_peak[rising] = _bracketed(_isochore_slope, T_lo[j], T_hi[j], (v[j], P[j], model), False)[0]
+        with np.errstate(all="ignore"):
+            P_peak = np.where(np.isfinite(T_peak), model.pressure(np.where(np.isfinite(T_peak), T_peak, 1.0), v[i]), -np.inf)
+        short = ~(P_peak >= P[i])
+        unreachable[i[short]] = True
+        T_hi[i[~short]] = T_peak[~short]
+        problems.flag_at(where[i[short]], [
+            f"no temperature gives P = {P[k]:.6g} Pa at v = {v[k]:.6g} m³/mol in {model.name} for {model.fluid.name}: "
+            f"at this volume the model's pressure rises with T only to {pk:.6g} Pa"
+            + (f" (at T = {tk:.6g} K)" if np.isfinite(tk) else "") + ". Check the volume and pressure."
+            for k, pk, tk in zip(i[short], P_peak[short], T_peak[short])], kind=DomainError)
+    go = ~unreachable
+    result = None
+    if np.any(go):
+        root, converged, result = _bracketed(pressure_gap, T_lo[go], T_hi[go], (v[go], P[go], model), scalar)
+        T[go] = np.where(converged, root, np.nan)
+        failed = np.flatnonzero(go)[~converged]
+        status = np.atleast_1d(np.asarray(result.status, dtype=object))[~converged]
+        problems.flag_at(where[failed], [
+            f"the temperature at P = {P[k]:.6g} Pa, v = {v[k]:.6g} m³/mol did not converge ({st})."
+            for k, st in zip(failed, status)], kind=ConvergenceError, result=result)
+        T_other[go] = _second_temperature(model, T[go], P[go], v[go])
+    return T, T_other, result
 
 
-def _from_quality(model, given):
-    if isinstance(model, IdealGas):
-        raise DomainError("The ideal gas has no saturation, so quality has no meaning; choose a cubic model.")
-    q = given["quality"]
-    if "T" in given:
-        T = given["T"]
-        if np.any(T > model.fluid.Tc):
-            raise DomainError(f"quality needs T at or below Tc = {model.fluid.Tc:.6g} K; got "
-                              f"{_first(T, T > model.fluid.Tc):.6g} K.")
-        P, v_l, v_v, result = saturation_pressure(model, T)
+def _second_temperature(model, T1, P, v):
+    """The higher temperature [K] with P(T, v) = P past the peak of P(T), NaN where none.
+
+    P(T) is concave, so beyond the first root it falls below P again only if its slope
+    turns negative; that is checked once at 10^6 T1 (beyond, no temperature matters).
+    The bracket is then grown by doubling from 2 T1 until P(T) < P.
+    """
+    out = np.full(T1.shape, np.nan)
+    with np.errstate(all="ignore"):
+        falls = np.isfinite(T1) & (model.dP_dT(1e6 * np.where(np.isfinite(T1), T1, 1.0), v) < 0.0)
+    if not np.any(falls):
+        return out
+    i = np.flatnonzero(falls)
+    lo, hi = T1[i], 2.0 * T1[i]
+    with np.errstate(all="ignore"):
+        for _ in range(24):   # 2^24 > 10^6
+            above = model.pressure(hi, v[i]) >= P[i]
+            if not np.any(above):
+                break
+            lo, hi = np.where(above, hi, lo), np.where(above, 2.0 * hi, hi)
+        crossed = model.pressure(hi, v[i]) < P[i]
+    lo = np.where(lo == T1[i], T1[i] * (1.0 + 1e-9), lo)   # step off the first root
+    if np.any(crossed):
+        k = i[crossed]
+        root, converged, _ = _bracketed(pressure_gap, lo[crossed], hi[crossed], (v[k], P[k], model), False)
+        out[k] = np.where(converged & (root > T1[k] * (1.0 + 1e-9)), root, np.nan)
+    return out
+
+
+def _from_quality(model, flat, problems, branch=None):
+    q = flat["quality"]
+    if "T" in flat:
+        T = flat["T"]
+        problems.flag(T < _lowest_saturation_temperature(model, T), lambda i: (
+            f"no saturation from {model.name} for {model.fluid.name} at T = {T[i]:.6g} K: "
+            f"{_no_saturation_reason(model, T[i], np.nan)}"), kind=DomainError)
+        if not problems.ok.all():
+            T = np.where(problems.ok, T, model.fluid.Tc)   # placeholders, NaN in the result
+        P, v_l, v_v, result = saturation_pressure(model, T, strict=False)
+        what = lambda i: f"T = {T[i]:.6g} K"
     else:
-        P = given["P"]
-        if np.any(P > model.fluid.Pc):
-            raise DomainError(f"quality needs P at or below Pc = {model.fluid.Pc:.6g} Pa; got "
-                              f"{_first(P, P > model.fluid.Pc):.6g} Pa.")
-        T, v_l, v_v, result = saturation_temperature(model, P)
+        P = flat["P"]
+        T, v_l, v_v, result = saturation_temperature(model, P, strict=False)
+        what = lambda i: f"P = {P[i]:.6g} Pa"
+    problems.flag(~np.isfinite(v_l) | ~np.isfinite(T) | ~np.isfinite(P), lambda i: (
+        f"no saturation from {model.name} for {model.fluid.name} at {what(i)}: {_no_saturation_reason(model, T[i], P[i])}"))
     v = v_l + q * (v_v - v_l)
     phase = np.full(q.shape, "two-phase", dtype=object)
     return dict(T=T, P=P, v=v, phase=phase, quality=q, v_liquid=v_l, v_vapor=v_v,
-                roots=_roots_for(model, T, P), convergence=result)
+                roots=_roots_for(model, T, P),
+                convergence=None if result is None else (result, np.arange(np.size(result.root))))
+
+
+def _lowest_saturation_temperature(model, T):
+    """The model's lowest saturation temperature [K], worked out only if some T is low."""
+    from .saturation import lowest_saturation_temperature
+
+    return lowest_saturation_temperature(model) if np.any(T < 0.35 * model.fluid.Tc) else 0.0
+
+
+def _no_saturation_reason(model, T, P):
+    from .saturation import lowest_saturation_temperature
+
+    T_min = lowest_saturation_temperature(model)
+    return (f"below T = {T_min:.4g} K the model's saturation pressure is under the smallest it resolves; "
+            f"give T of at least {T_min:.4g} K (the real fluid is solid there long before).")
 
 
 # --------------------------------------------------------------------------- helpers
@@ -480,34 +718,101 @@ def _single_phase(model, T, P, v):
 
 
 def _sat_or_nan(model, x, critical, solver):
+    """The saturation P (or T) at x; NaN at or above the critical value and where the model
+    has none (below its lowest saturation temperature), so that a state always displays."""
     x = np.asarray(x, dtype=float)
     out = np.full(x.shape, np.nan)
     if isinstance(model, IdealGas):
         return out
     below = x < critical
     if np.any(below):
-        out[below] = solver(model, x[below])[0]
+        out[below] = solver(model, x[below], strict=False)[0]
     return out
 
 
-def _make_state(model, shape, knowns, *, T, P, v, phase, roots, quality=None, v_liquid=None,
-                v_vapor=None, metastable=None, convergence=None):
-    """Restore the broadcast shape of the knowns; a scalar solve gives Python scalars."""
+def _make_state(model, shape, knowns, problems, *, T, P, v, phase, roots, quality=None, v_liquid=None,
+                v_vapor=None, metastable=None, convergence=None, T_other=None):
+    """Restore the broadcast shape of the knowns; a scalar solve gives Python scalars.
+
+    Elements flagged in ``problems`` become NaN with phase "not solved".
+    """
+    bad = ~problems.ok
     nan = np.full(np.shape(T), np.nan)
 
     def shaped(a, dtype):
-        a = np.asarray(nan if a is None else a, dtype=dtype).reshape(shape)
+        a = np.array(nan if a is None else a, dtype=dtype)
+        if bad.any() and dtype is float:
+            a[bad] = np.nan
+        a = a.reshape(shape)
         return a.item() if shape == () else a
 
+    phase = np.array(phase)
     if phase.dtype == np.int8:   # codes from the (T, P) path: strings made when first read
-        phase = _PhaseCodes(phase.reshape(shape)) if shape else PHASES[int(phase.reshape(()))]
+        phase[bad] = _NOT_SOLVED_CODE
+        phase = _PhaseCodes(phase.reshape(shape)) if shape else _PHASE_OBJECTS[int(phase.reshape(()))]
     else:
+        phase[bad] = NOT_SOLVED
         phase = shaped(phase, object)
+    roots = np.array(roots, dtype=float)
+    roots[bad] = np.nan
+    warnings = problems.summary()
+    T_other = shaped(T_other, float)
+    n_other = int(np.sum(np.isfinite(T_other)))
+    if n_other:
+        warnings += (_second_temperature_warning(T_other, n_other, np.size(T_other), model),)
     return State(model, shaped(T, float), shaped(P, float), shaped(v, float), phase,
                  shaped(quality, float), shaped(v_liquid, float), shaped(v_vapor, float),
-                 np.asarray(roots, dtype=float).reshape(shape + (3,)),
+                 roots.reshape(shape + (3,)),
                  shaped(np.zeros(np.shape(T), bool) if metastable is None else metastable, bool),
-                 {k: (val.item() if shape == () else val) for k, val in knowns.items()}, convergence)
+                 {k: (val.item() if shape == () else val) for k, val in knowns.items()},
+                 _shaped_convergence(convergence, problems, shape),
+                 problems.reason[0] if shape == () else problems.reason.reshape(shape),
+                 T_other, warnings)
+
+
+def _second_temperature_warning(T_other, count, total, model):
+    if np.ndim(T_other) == 0:
+        return (f"A second temperature, {T_other:.6g} K, gives the same P and v in {model.name}: at this "
+                "volume the model's pressure rises with T to a peak and falls again. The lower temperature "
+                "is reported; the other is State.T_other.")
+    return (f"At {count} of {total} states a second, higher temperature gives the same P and v in "
+            f"{model.name} (see State.T_other); the lower one is reported.")
+
+
+def _shaped_convergence(convergence, problems, shape):
+    """The root finder's record over the caller's shape; a scalar solve keeps its own result."""
+    if convergence is None:
+        return None
+    result, covered = convergence
+    if shape == ():
+        return result if np.ndim(result.root) == 0 else _scalar_view(result)
+    import dataclasses
+
+    n = problems.reason.size
+    root, converged = np.full(n, np.nan), np.ones(n, bool)
+    status = np.full(n, "not iterated", dtype=object)
+    iterations, evaluations = np.zeros(n, int), np.zeros(n, int)
+    root[covered], converged[covered] = result.root, result.converged
+    status[covered] = np.asarray(result.status, dtype=object)
+    iterations[covered], evaluations[covered] = result.iterations, result.evaluations
+    converged[~problems.ok & (status == "not iterated")] = False
+    return dataclasses.replace(result, root=root.reshape(shape), converged=converged.reshape(shape),
+                               status=status.astype(str).reshape(shape), iterations=iterations.reshape(shape),
+                               evaluations=evaluations.reshape(shape), trace=None)
+
+
+def _scalar_view(result):
+    """A one-element array result as a scalar one (its status a Status where it is one)."""
+    import dataclasses
+
+    from ..roots import Status
+
+    text = str(np.asarray(result.status).reshape(-1)[0])
+    status = Status(text) if text in {s.value for s in Status} else text
+    return dataclasses.replace(result, root=float(np.asarray(result.root).reshape(-1)[0]),
+                               converged=bool(np.asarray(result.converged).reshape(-1)[0]), status=status,
+                               iterations=int(np.asarray(result.iterations).reshape(-1)[0]),
+                               evaluations=int(np.asarray(result.evaluations).reshape(-1)[0]))
 
 
 def _first(x, mask):

@@ -1,0 +1,110 @@
+"""Per-element bookkeeping of array solves: which elements cannot be solved, and why.
+
+An engineer's sweep of 10^5 states must not be lost to one bad element. Each element that
+cannot be solved (bad input, outside the model's range, no convergence) gets a reason
+sentence and NaN values; the rest are solved. With ``errors="raise"``, and always for a
+scalar solve, the first such element raises instead, naming its index and value.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import ConvergenceError, DomainError, InputError
+
+#: The values of the ``errors=`` option of solve and saturation.
+ERRORS = ("nan", "raise")
+
+
+def check_errors_option(errors) -> None:
+    if not (isinstance(errors, str) and errors in ERRORS):
+        raise InputError(f"errors={errors!r} is not one of {', '.join(map(repr, ERRORS))}: 'nan' (the default) "
+                         "gives NaN and a reason at elements that cannot be solved and solves the rest; "
+                         "'raise' raises at the first of them.")
+
+
+def si_array(to_si, value, quantity, **options):
+    """:func:`to_si` for one known, letting NaN and inf elements of a numeric array through.
+
+    Those elements are then reported one by one instead of failing the whole array. A
+    scalar, text or a pint quantity goes through ``to_si`` unchanged (which refuses a
+    non-finite scalar with its own message).
+    """
+    if isinstance(value, (list, tuple)) or (type(value) is np.ndarray and value.ndim):
+        array = np.asarray(value)
+        if array.dtype.kind == "f" and array.ndim:
+            bad = ~np.isfinite(array)
+            if bad.any():
+                si = np.array(to_si(np.where(bad, 1.0, array), quantity, **options), dtype=float)
+                si[np.broadcast_to(bad, si.shape)] = array[bad]
+                return si
+    return to_si(value, quantity, **options)
+
+
+class Problems:
+    """Reasons, element by element, why a flat array of states cannot be solved.
+
+    strict : raise at the first problem flagged (a scalar solve, or ``errors="raise"``).
+    shape : the caller's broadcast shape, for the index in messages.
+    """
+
+    _KINDS = (InputError, DomainError, ConvergenceError)
+
+    def __init__(self, size: int, shape: tuple, strict: bool):
+        self.reason = np.full(size, "", dtype=object)
+        self._kind = np.zeros(size, dtype=np.int8)
+        self.shape, self.strict = shape, strict
+
+    @property
+    def ok(self) -> np.ndarray:
+        return self.reason == ""
+
+    def flag(self, mask, message, kind=DomainError, result=None):
+        """Give every element of ``mask`` not flagged yet the reason ``message(i)``.
+
+        message : a function of the flat index returning the sentence (called only for
+        the flagged elements, usually few).
+        """
+        idx = np.flatnonzero(np.asarray(mask) & self.ok)
+        if idx.size == 0:
+            return
+        if self.strict:
+            self._raise(idx[0], message(idx[0]), kind, result)
+        for i in idx:
+            self.reason[i] = message(i)
+        self._kind[idx] = self._KINDS.index(kind)
+
+    def flag_at(self, idx, reasons, kind=ConvergenceError, result=None):
+        """Flag the flat indices ``idx`` with the given reason sentences."""
+        idx = np.asarray(idx, dtype=int)
+        if idx.size == 0:
+            return
+        if self.strict:
+            self._raise(idx[0], reasons[0], kind, result)
+        self.reason[idx] = reasons
+        self._kind[idx] = self._KINDS.index(kind)
+
+    def index(self, i) -> tuple:
+        """The flat index i in the caller's shape."""
+        return tuple(int(k) for k in np.unravel_index(i, self.shape))
+
+    def _raise(self, i, message, kind, result):
+        if self.shape != ():
+            message = (f"At index {self.index(i)}: {message} (errors='nan' gives NaN there, with this "
+                       "reason in State.reason, and solves the rest.)")
+        if kind is ConvergenceError:
+            raise ConvergenceError(message, result)
+        raise kind(message)
+
+    def summary(self) -> tuple[str, ...]:
+        """One sentence per distinct reason (at most five) with its count, for warnings."""
+        bad = np.flatnonzero(~self.ok)
+        if bad.size == 0:
+            return ()
+        texts, first, counts = np.unique(self.reason[bad].astype(str), return_index=True, return_counts=True)
+        order = np.argsort(first)
+        out = [f"{counts[k]} of {self.reason.size} states not solved (first at index {self.index(bad[first[k]])}): "
+               f"{texts[k]}" for k in order[:5]]
+        if order.size > 5:
+            out.append(f"... and {order.size - 5} other reasons; see State.reason.")
+        return tuple(out)
