@@ -226,7 +226,7 @@ def check_pv(table, model, n, repeat):
     ours = lambda: _temperature_at(model, P, v)   # noqa: E731
     theirs = lambda: elementwise.find_root(gap, (T_lo, T_hi), args=(P, v), tolerances=tol, maxiter=200)  # noqa: E731
     t_ours, t_sp = best_times([ours, theirs], repeat)
-    (T_ours, res_ours), res_sp = ours(), theirs()
+    (T_ours, _, res_ours), res_sp = ours(), theirs()
     evals_ours, evals_sp = int(np.sum(res_ours.evaluations)), int(np.sum(res_sp.nfev))
     err = np.max(np.abs(T_ours / T - 1.0))
     ratio = t_sp / t_ours

@@ -197,7 +197,7 @@ def refine_root(z, c2, c1, c0, steps, tol):
 
 @jit
 def table_roots(zl, zv, c2, c1, c0, B, steps, tol):
-    """The liquid and vapour roots refined from the table's starts, and whether they pass
+    """The liquid and vapor roots refined from the table's starts, and whether they pass
     the check of saturation._table_roots (B < Z_L < Z_middle < Z_V, rising cubic at both)."""
     zl, dl = refine_root(zl, c2, c1, c0, steps, tol)
     zv, dv = refine_root(zv, c2, c1, c0, steps, tol)

@@ -39,6 +39,9 @@ class Fluid:
     library_name : str or None
         The fluid's name in CoolProp's library, used by the reference cross-check;
         None for a user-defined fluid.
+    T_triple : float or None
+        Triple-point temperature [K], where known: below it the real fluid is solid, which
+        no cubic equation of state represents (states there carry a warning).
 
     References
     ----------
@@ -51,6 +54,7 @@ class Fluid:
     omega: float
     molar_mass: float
     library_name: str | None = None
+    T_triple: float | None = None
 
     def __post_init__(self):
         if not isinstance(self.name, str) or not self.name.strip():
@@ -65,6 +69,11 @@ class Fluid:
                     f"Fluid {self.name!r}: {label} = {value!r} must be a positive finite number in SI "
                     "units (Tc [K], Pc [Pa], molar_mass [kg/mol])."
                 )
+        if self.T_triple is not None:
+            if not (_is_real_number(self.T_triple) and 0 < self.T_triple < self.Tc):
+                raise InputError(f"Fluid {self.name!r}: T_triple = {self.T_triple!r} must be a number of kelvin "
+                                 f"between 0 and Tc = {self.Tc:.6g} K, or None.")
+            object.__setattr__(self, "T_triple", float(self.T_triple))
         if not (_is_real_number(self.omega) and math.isfinite(self.omega) and -1 < self.omega < 2):
             raise InputError(f"Fluid {self.name!r}: omega = {self.omega!r} must be a finite number between -1 and 2.")
 
@@ -159,6 +168,7 @@ def library_table_from_coolprop() -> dict:
         fluids[name] = {
             "Tc": float(state.T_critical()), "Pc": float(state.p_critical()),
             "omega": float(state.acentric_factor()), "molar_mass": float(state.molar_mass()),
+            "T_triple": float(state.Ttriple()),
             "CAS": CP.get_fluid_param_string(name, "CAS"),
             "aliases": [a for a in CP.get_fluid_param_string(name, "aliases").split(",") if a],
         }
@@ -227,7 +237,7 @@ def get_fluid(name: str) -> Fluid:
 def _fluid_from_library(library_name: str) -> Fluid:
     entry = _library_table()[library_name]
     return Fluid(name=display_name(library_name), Tc=entry["Tc"], Pc=entry["Pc"], omega=entry["omega"],
-                 molar_mass=entry["molar_mass"], library_name=library_name)
+                 molar_mass=entry["molar_mass"], library_name=library_name, T_triple=entry.get("T_triple"))
 
 
 if __name__ == "__main__":

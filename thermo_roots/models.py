@@ -413,9 +413,9 @@ def _volume_shift(option, family: CubicFamily, fluid: Fluid, b: float) -> float:
         raise InputError(f"volume_shift={option!r} must be finite [m^3/mol].")
     if c >= b:
         raise InputError(
-            f"volume_shift = {c:.6g} m3/mol is at or above the co-volume b = {b:.6g} m3/mol of "
+            f"volume_shift = {c:.6g} m³/mol is at or above the co-volume b = {b:.6g} m³/mol of "
             f"{family.name} for {fluid.name}: the model would admit zero or negative volumes. "
-            f"Give a shift below b (typical shifts are a few percent of b, e.g. {0.05 * b:.3g} m3/mol).")
+            f"Give a shift below b (typical shifts are a few percent of b, e.g. {0.05 * b:.3g} m³/mol).")
     return c
 
 

@@ -51,13 +51,33 @@ class Problems:
     _KINDS = (InputError, DomainError, ConvergenceError)
 
     def __init__(self, size: int, shape: tuple, strict: bool):
-        self.reason = np.full(size, "", dtype=object)
-        self._kind = np.zeros(size, dtype=np.int8)
-        self.shape, self.strict = shape, strict
+        self._bad = np.zeros(size, dtype=bool)
+        self._reason = None   # an object array, made when the first problem is flagged
+        self._kind = None
+        self.shape, self.strict, self.size = shape, strict, size
 
     @property
     def ok(self) -> np.ndarray:
-        return self.reason == ""
+        return ~self._bad
+
+    @property
+    def any(self) -> bool:
+        return self._reason is not None
+
+    @property
+    def reason(self) -> np.ndarray:
+        """The reason of every element, "" where there is none (a read-only view if none at all)."""
+        if self._reason is None:
+            return np.broadcast_to(np.array("", dtype=object), (self.size,))
+        return self._reason
+
+    def _store(self, idx, reasons, kind):
+        if self._reason is None:
+            self._reason = np.full(self.size, "", dtype=object)
+            self._kind = np.zeros(self.size, dtype=np.int8)
+        self._reason[idx] = reasons
+        self._kind[idx] = self._KINDS.index(kind)
+        self._bad[idx] = True
 
     def flag(self, mask, message, kind=DomainError, result=None):
         """Give every element of ``mask`` not flagged yet the reason ``message(i)``.
@@ -65,14 +85,12 @@ class Problems:
         message : a function of the flat index returning the sentence (called only for
         the flagged elements, usually few).
         """
-        idx = np.flatnonzero(np.asarray(mask) & self.ok)
+        idx = np.flatnonzero(np.asarray(mask) & ~self._bad)
         if idx.size == 0:
             return
         if self.strict:
             self._raise(idx[0], message(idx[0]), kind, result)
-        for i in idx:
-            self.reason[i] = message(i)
-        self._kind[idx] = self._KINDS.index(kind)
+        self._store(idx, [message(i) for i in idx], kind)
 
     def flag_at(self, idx, reasons, kind=ConvergenceError, result=None):
         """Flag the flat indices ``idx`` with the given reason sentences."""
@@ -81,8 +99,7 @@ class Problems:
             return
         if self.strict:
             self._raise(idx[0], reasons[0], kind, result)
-        self.reason[idx] = reasons
-        self._kind[idx] = self._KINDS.index(kind)
+        self._store(idx, list(reasons), kind)
 
     def index(self, i) -> tuple:
         """The flat index i in the caller's shape."""
@@ -98,12 +115,12 @@ class Problems:
 
     def summary(self) -> tuple[str, ...]:
         """One sentence per distinct reason (at most five) with its count, for warnings."""
-        bad = np.flatnonzero(~self.ok)
-        if bad.size == 0:
+        if self._reason is None:
             return ()
+        bad = np.flatnonzero(self._bad)
         texts, first, counts = np.unique(self.reason[bad].astype(str), return_index=True, return_counts=True)
         order = np.argsort(first)
-        out = [f"{counts[k]} of {self.reason.size} states not solved (first at index {self.index(bad[first[k]])}): "
+        out = [f"{counts[k]} of {self.size} states not solved (first at index {self.index(bad[first[k]])}): "
                f"{texts[k]}" for k in order[:5]]
         if order.size > 5:
             out.append(f"... and {order.size - 5} other reasons; see State.reason.")

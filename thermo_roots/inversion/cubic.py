@@ -223,7 +223,7 @@ def phase_codes(model, T, P, v):
     """Phase code of single-phase states: above Tc by pressure, below Tc by v against v_c."""
     Tc, Pc = model.fluid.Tc, model.fluid.Pc
     v_c = getattr(model, "v_c", 0.0)
-    code = np.where(v < v_c, LIQUID, VAPOR).astype(np.int8)   # NaN reads as vapour
+    code = np.where(v < v_c, LIQUID, VAPOR).astype(np.int8)   # NaN reads as vapor
     above = T >= Tc
     code[above & (P >= Pc)] = SUPERCRITICAL
     code[above & (P < Pc)] = VAPOR

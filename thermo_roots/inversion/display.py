@@ -23,6 +23,8 @@ def state_rows(state) -> list[tuple[str, str]]:
     """(label, value with unit) rows of a scalar state."""
     if np.ndim(state.T):
         raise ValueError("state_rows shows one state; index the arrays of an array solve instead.")
+    if state.reason:
+        return [("Phase", str(state.phase)), ("Not solved", state.reason)]
     M = state.model.fluid.molar_mass
     rows = [
         ("Phase", str(state.phase)),
@@ -35,17 +37,35 @@ def state_rows(state) -> list[tuple[str, str]]:
         ("Compressibility factor Z", _fmt(state.Z)),
     ]
     if state.phase == "two-phase":
-        rows += [("Vapour quality", _fmt(state.quality, digits=4)),
+        rows += [("Vapor quality (mole fraction)", _fmt(state.quality, digits=4)),
                  ("Saturated liquid density", f"{_fmt(M / state.v_liquid)} kg/m³"),
-                 ("Saturated vapour density", f"{_fmt(M / state.v_vapor)} kg/m³")]
+                 ("Saturated vapor density", f"{_fmt(M / state.v_vapor)} kg/m³")]
     elif state.T < state.model.fluid.Tc and state.P < state.model.fluid.Pc:
-        margin = state.superheat
-        word = "superheat" if margin >= 0 else "subcooling"
-        rows += [("Saturation pressure at T", f"{_fmt(state.P_sat, 1e-5)} bar"),
-                 (f"Margin to saturation ({word})", f"{_fmt(abs(margin), digits=4)} K")]
+        if np.isfinite(state.P_sat) and np.isfinite(state.T_sat):
+            margin = state.superheat
+            word = "superheat" if margin >= 0 else "subcooling"
+            rows += [("Saturation pressure at T", f"{_fmt(state.P_sat, 1e-5)} bar"),
+                     (f"Margin to saturation ({word})", f"{_fmt(abs(margin), digits=4)} K")]
+        else:
+            rows.append(("Saturation pressure at T", "none from this model here (below its lowest saturation "
+                                                      "temperature)"))
+    if np.isfinite(state.T_other):
+        rows.append(("Second temperature with this P and v", f"{_fmt(state.T_other)} K"))
     if state.metastable:
         rows.append(("Stability", "METASTABLE: between binodal and spinodal"))
     return rows
+
+
+def state_text(state) -> str:
+    """The state as a few lines of text in engineering units, with its warnings and caution."""
+    if np.ndim(state.T):
+        return repr(state)
+    title = f"{state.model.fluid.name}, {state.model.name}"
+    width = max(len(k) for k, _ in state_rows(state))
+    lines = [title] + [f"  {k.ljust(width)}  {v}" for k, v in state_rows(state)]
+    lines += [f"  Warning: {w}" for w in state.warnings]
+    lines.append(f"  Caution: {CAUTION}")
+    return "\n".join(lines)
 
 
 def state_html(state) -> str:
@@ -59,7 +79,8 @@ def state_html(state) -> str:
         f"<tr><td>{r.v * 1e3:.6g}</td><td>{r.Z:.6g}</td><td>{html.escape(r.kind)}</td>"
         f"<td>{r.ln_phi:.6g}</td><td>{'yes' if r.stable else ''}</td></tr>" for r in state.roots)
     root_table = ("<table><caption>Volume roots of the cubic at this T and P</caption>"
-                  "<tr><th>v [L/mol]</th><th>Z</th><th>kind</th><th>ln φ</th><th>lowest Gibbs energy</th></tr>"
+                  "<tr><th>v [L/mol]</th><th>Z</th><th>kind</th><th>ln φ</th><th>stable (lowest Gibbs energy)</th></tr>"
                   f"{roots}</table>")
-    return (f"<div><table><caption>{html.escape(title)}</caption>{body}</table>{root_table}"
+    warnings = "".join(f"<p><b>Warning.</b> {html.escape(w)}</p>" for w in state.warnings)
+    return (f"<div><table><caption>{html.escape(title)}</caption>{body}</table>{root_table}{warnings}"
             f"<p style='font-size:smaller'><b>Caution.</b> {html.escape(CAUTION)}</p></div>")

@@ -43,7 +43,7 @@ _LOWEST_REDUCED_PRESSURE = 1e-120
 
 @dataclass(frozen=True)
 class Saturation:
-    """Saturated liquid and vapour of a model at T or P.
+    """Saturated liquid and vapor of a model at T or P.
 
     Attributes
     ----------
@@ -77,7 +77,7 @@ class Saturation:
 
     @property
     def rho_vapor(self):
-        """Saturated vapour molar density [mol/m^3]."""
+        """Saturated vapor molar density [mol/m^3]."""
         return 1.0 / np.asarray(self.v_vapor) if np.ndim(self.v_vapor) else 1.0 / self.v_vapor
 
     def _repr_html_(self):
@@ -86,9 +86,9 @@ class Saturation:
         M = self.model.fluid.molar_mass
         rows = [("Temperature", f"{self.T:.6g} K"), ("Pressure", f"{self.P / 1e5:.6g} bar"),
                 ("Liquid molar volume", f"{self.v_liquid * 1e3:.6g} L/mol"),
-                ("Vapour molar volume", f"{self.v_vapor * 1e3:.6g} L/mol"),
+                ("Vapor molar volume", f"{self.v_vapor * 1e3:.6g} L/mol"),
                 ("Liquid density", f"{M / self.v_liquid:.6g} kg/m³"),
-                ("Vapour density", f"{M / self.v_vapor:.6g} kg/m³")]
+                ("Vapor density", f"{M / self.v_vapor:.6g} kg/m³")]
         body = "".join(f"<tr><th style='text-align:left'>{k}</th><td>{v}</td></tr>" for k, v in rows)
         return f"<table><caption>Saturation, {self.model.fluid.name}, {self.model.name}</caption>{body}</table>"
 
@@ -450,7 +450,7 @@ def fugacity_gap_z(zl, zv, A_over_B, B, delta1, delta2):
     Parameters
     ----------
     zl, zv : numpy.ndarray
-        Liquid and vapour roots of the cubic in Z [-].
+        Liquid and vapor roots of the cubic in Z [-].
     A_over_B : numpy.ndarray
         a / (b R T) [-].
     B : numpy.ndarray
@@ -607,7 +607,7 @@ def _root_rate(z, c2, c1, A, B, u, w):
 
 
 def _table_roots(model, T, P, rl, zv, steps, tol):
-    """The saturated liquid and vapour roots in Z [-] at (T, P), refined from the table.
+    """The saturated liquid and vapor roots in Z [-] at (T, P), refined from the table.
 
     Each start (Z_L = B rl, Z_V = zv) is refined by Newton's method on the cubic
     (:func:`_refine_root`). The pair is kept only if it is the outer pair of three
@@ -753,7 +753,7 @@ def _accept(result, mask):
 
 
 def spinodal_volumes(model, T):
-    """Liquid and vapour spinodal volumes [m^3/mol] (dP/dv = 0) at T < Tc [K].
+    """Liquid and vapor spinodal volumes [m^3/mol] (dP/dv = 0) at T < Tc [K].
 
     The spinodals lie on either side of the model's critical volume: dP/dv < 0 as v -> b
     and as v -> infinity, and dP/dv > 0 at v_c for every T < Tc.
@@ -775,7 +775,7 @@ def _isotherm_slope(model):
 
 
 def _beyond_vapor_spinodal(model, T):
-    """A volume past the vapour spinodal, where dP/dv < 0 again."""
+    """A volume past the vapor spinodal, where dP/dv < 0 again."""
     a, _ = model.attraction(T)
     v = model.v_c + 4.0 * a / (R * T)   # dP/dv ~ -RT/v^2 + 2a/v^3 < 0 once v > 2a/(RT)
     for _ in range(60):
@@ -812,7 +812,7 @@ def _fugacity_gap(lnP, model, T):
         narrow = three & (v_vapor < _NARROW_DOME * v_liquid)
         if np.any(narrow):
             gap = np.where(narrow, _equal_area_gap(model, T, P, v_liquid, v_vapor), gap)
-    one_side = np.where(v_liquid > model.v_c, 1.0, -1.0)  # lone vapour root: below the window
+    one_side = np.where(v_liquid > model.v_c, 1.0, -1.0)  # lone vapor root: below the window
     return np.where(three, gap, one_side)
 
 
@@ -826,7 +826,7 @@ def _equal_area_gap(model, T, P, v_liquid, v_vapor):
 
 
 def _saturated_volumes(model, T, P, lo, hi):
-    """Liquid and vapour roots at the saturation pressure (window edges if roots merged)."""
+    """Liquid and vapor roots at the saturation pressure (window edges if roots merged)."""
     v = volume_roots(model, T, P)
     v_l, v_v = v[..., 0], v[..., 2]
     merged = ~np.isfinite(v_v)

@@ -92,7 +92,7 @@ class State:
     P : pressure [Pa]
     v : molar volume [m^3/mol] (the mixture's mean volume in the two-phase region)
     phase : "liquid", "vapor", "supercritical" or "two-phase"
-    quality : vapour mole fraction [-], NaN outside the two-phase region
+    quality : vapor mole fraction [-], NaN outside the two-phase region
     v_liquid, v_vapor : saturated volumes [m^3/mol] for two-phase states, else NaN
     root_volumes : all real roots v > b at (T, P), shape (..., 3), ascending, NaN-padded
     metastable : True where the state is a single-phase root other than the stable one
@@ -183,7 +183,7 @@ class State:
 
     @property
     def superheat(self):
-        """T - T_sat(P) [K]: above zero a superheated vapour, below zero a subcooled liquid."""
+        """T - T_sat(P) [K]: above zero a superheated vapor, below zero a subcooled liquid."""
         return _scalar_or_array(np.asarray(self.T) - np.asarray(self.T_sat))
 
     @property
@@ -200,9 +200,21 @@ class State:
 
     def __repr__(self):
         if np.ndim(self.T):
-            return f"State({self.model!r}, {np.size(self.T)} states, shape {np.shape(self.T)})"
-        return (f"State({self.model!r}, T={self.T:.6g} K, P={self.P:.6g} Pa, v={self.v:.6g} m3/mol, "
-                f"Z={self.Z:.6g}, phase={self.phase!r})")
+            unsolved = int(np.count_nonzero(np.asarray(self.reason) != ""))
+            note = f", {unsolved} not solved (see .reason)" if unsolved else ""
+            return f"State({self.model!r}, {np.size(self.T)} states, shape {np.shape(self.T)}{note})"
+        if self.reason:
+            return f"State({self.model!r}, not solved: {self.reason})"
+        quality = f", quality={self.quality:.4g}" if self.phase == "two-phase" else ""
+        return (f"State({self.model!r}, T={self.T:.6g} K ({self.T - 273.15:.6g} °C), "
+                f"P={self.P:.6g} Pa ({self.P / 1e5:.6g} bar), v={self.v:.6g} m³/mol, "
+                f"rho_mass={self.rho_mass:.6g} kg/m³, Z={self.Z:.6g}, phase={self.phase!r}{quality})")
+
+    def __str__(self):
+        """The state in engineering units, with its warnings and the caution (for print)."""
+        from .display import state_text
+
+        return state_text(self)
 
     def _repr_html_(self):
         from .display import state_html
@@ -282,10 +294,10 @@ def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, erro
     names = frozenset(given)
     pair = (_from_quality if "quality" in names else _from_T_P if names == {"T", "P"}
             else _from_T_v if "T" in names else _from_P_v)
-    ok = problems.ok
-    if ok.all():
+    if not problems.any:
         parts = pair(model, flat, problems, branch)
     else:   # solve the good elements only; the flagged ones stay NaN
+        ok = problems.ok
         sub = Problems(int(ok.sum()), shape, problems.strict)
         parts = _scatter(pair(model, {k: x[ok] for k, x in flat.items()}, sub, branch), ok)
         problems.flag_at(np.flatnonzero(ok)[~sub.ok], sub.reason[~sub.ok])
@@ -499,12 +511,16 @@ def temperature_bracket(model, P, v):
     a_lo, _ = model.attraction(T_lo)
     T_hi = (P + a_lo / model._denominator(v)) * (v - model.v_min) / R * (1.0 + 1e-12)
     with np.errstate(over="ignore", invalid="ignore"):
-        for _ in range(64):
-            short = (model.pressure(T_hi, v) < P) & (model.dP_dT(T_hi, v) > 0.0)
+        found = model.pressure(T_hi, v) >= P
+        for _ in range(64):   # rarely needed: only where the Soave alpha has turned upwards
+            if found.all():
+                break
+            short = ~found
+            short[short] = model.dP_dT(T_hi[short], v[short]) > 0.0   # still rising: double
             if not np.any(short):
                 break
             T_hi = np.where(short, 2.0 * T_hi, T_hi)
-        found = model.pressure(T_hi, v) >= P
+            found[short] = model.pressure(T_hi[short], v[short]) >= P[short]
     return T_lo, T_hi, found
 
 
@@ -554,12 +570,15 @@ def _bracketed(f, lo, hi, args, scalar):
     return np.asarray(result.root), np.asarray(result.converged), result
 
 
-def _temperature_at(model, P, v, problems, where):
+def _temperature_at(model, P, v, problems=None, where=None):
     """T [K] with P(T, v) = P, the lowest one, and the second where there is one (see solve).
 
-    ``where``: the flat indices of these elements in ``problems``. Returns (T, T_other,
-    the root finder's result for T).
+    P [Pa], v [m^3/mol]: 1-D arrays. ``problems`` collects what cannot be solved (a fresh
+    one, not strict, by default); ``where``: the flat indices of these elements in it.
+    Returns (T, T_other, the root finder's result for T).
     """
+    if problems is None:
+        problems, where = Problems(P.size, P.shape, strict=False), np.arange(P.size)
     scalar = P.size == 1 and problems.shape == ()
     T_lo, T_hi, found = temperature_bracket(model, P, v)
     T = np.full(P.shape, np.nan)
@@ -679,7 +698,7 @@ def _roots_for(model, T, P):
 
 
 def _root_kinds(model, T, v_roots):
-    """Label roots: dP/dv > 0 is unstable; otherwise liquid-like below v_c, vapour-like above."""
+    """Label roots: dP/dv > 0 is unstable; otherwise liquid-like below v_c, vapor-like above."""
     kinds = np.full(v_roots.shape, "", dtype=object)
     exists = np.isfinite(v_roots)
     if isinstance(model, IdealGas):
@@ -704,7 +723,7 @@ def _branch_index(kinds, stable, branch):
         return stable
     wanted = LIQUID_LIKE if branch == "liquid" else VAPOR_LIKE
     has = kinds == wanted
-    # the liquid-like root is the first, the vapour-like the last existing one
+    # the liquid-like root is the first, the vapor-like the last existing one
     first = np.argmax(has, axis=-1)
     last = kinds.shape[-1] - 1 - np.argmax(has[..., ::-1], axis=-1)
     pick = first if branch == "liquid" else last
@@ -736,26 +755,27 @@ def _make_state(model, shape, knowns, problems, *, T, P, v, phase, roots, qualit
 
     Elements flagged in ``problems`` become NaN with phase "not solved".
     """
-    bad = ~problems.ok
+    bad = ~problems.ok if problems.any else None
     nan = np.full(np.shape(T), np.nan)
 
     def shaped(a, dtype):
-        a = np.array(nan if a is None else a, dtype=dtype)
-        if bad.any() and dtype is float:
-            a[bad] = np.nan
+        a = np.asarray(nan if a is None else a, dtype=dtype)
+        if bad is not None and dtype is float:
+            a = np.where(bad, np.nan, a)
         a = a.reshape(shape)
         return a.item() if shape == () else a
 
-    phase = np.array(phase)
+    phase = np.asarray(phase)
+    roots = np.asarray(roots, dtype=float)
+    if bad is not None:
+        phase, roots = phase.copy(), np.where(bad[:, None], np.nan, roots)
+        phase[bad] = _NOT_SOLVED_CODE if phase.dtype == np.int8 else NOT_SOLVED
     if phase.dtype == np.int8:   # codes from the (T, P) path: strings made when first read
-        phase[bad] = _NOT_SOLVED_CODE
         phase = _PhaseCodes(phase.reshape(shape)) if shape else _PHASE_OBJECTS[int(phase.reshape(()))]
     else:
-        phase[bad] = NOT_SOLVED
         phase = shaped(phase, object)
-    roots = np.array(roots, dtype=float)
-    roots[bad] = np.nan
-    warnings = problems.summary()
+    warnings = problems.summary() + _solid_warning(model, np.asarray(T, dtype=float) if bad is None
+                                                   else np.asarray(T, dtype=float)[~bad])
     T_other = shaped(T_other, float)
     n_other = int(np.sum(np.isfinite(T_other)))
     if n_other:
@@ -768,6 +788,19 @@ def _make_state(model, shape, knowns, problems, *, T, P, v, phase, roots, qualit
                  _shaped_convergence(convergence, problems, shape),
                  problems.reason[0] if shape == () else problems.reason.reshape(shape),
                  T_other, warnings)
+
+
+def _solid_warning(model, T):
+    """A sentence where T lies below the fluid's triple point: the real fluid is solid there."""
+    T_triple = model.fluid.T_triple
+    if T_triple is None:
+        return ()
+    cold = int(np.count_nonzero(T < T_triple))
+    if not cold:
+        return ()
+    where = "T is" if T.size == 1 else f"At {cold} of {T.size} states T is"
+    return (f"{where} below the triple point of {model.fluid.name} ({T_triple:.6g} K): the real fluid is "
+            "solid there, which a cubic equation of state does not represent (it shows a liquid or vapor).",)
 
 
 def _second_temperature_warning(T_other, count, total, model):
@@ -822,4 +855,4 @@ def _first(x, mask):
 
 
 def _unit(name):
-    return {"T": "K", "P": "Pa", "v": "m3/mol", "rho": "mol/m3", "rho_mass": "kg/m3"}[name]
+    return {"T": "K", "P": "Pa", "v": "m³/mol", "rho": "mol/m³", "rho_mass": "kg/m³", "quality": ""}[name]
