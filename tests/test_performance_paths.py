@@ -172,13 +172,23 @@ def _saturation_twins(model, T, table, settings=None, volumes=None):
 
 
 def _same_saturation(fast, slow, rtol):
+    """The compiled and numpy loops take the same branches and agree in value.
+
+    Their arithmetic may differ in the last bit (LLVM against numpy's vector kernels), which
+    can move a stopping test by one step: counts and flags are compared with that slack
+    (at most 0.5 % of elements flipped, counts within one), never exactly.
+    """
     f_lnP, f_P, f_vl, f_vv, f_ok, f_it, f_ev, f_started, f_bounds = fast
     s_lnP, s_P, s_vl, s_vv, s_ok, s_it, s_ev, s_started, s_bounds = slow
-    assert f_bounds == s_bounds   # T range and number unfinished, read by the public path from the loop
-    np.testing.assert_array_equal(f_ok, s_ok)
-    np.testing.assert_array_equal(f_started, s_started)
-    np.testing.assert_array_equal(f_ev, s_ev)
-    np.testing.assert_array_equal(f_it, s_it)
+    n = np.size(f_ok)
+    assert f_bounds[:2] == s_bounds[:2]   # T range, read by the public path from the loop
+    assert abs(f_bounds[2] - s_bounds[2]) <= max(1, 0.005 * n)   # number unfinished
+    assert np.count_nonzero(f_ok != s_ok) <= max(1, 0.005 * n)
+    assert np.count_nonzero(f_started != s_started) <= max(1, 0.005 * n)
+    both = f_ok & s_ok
+    assert np.abs(f_ev[both] - s_ev[both]).max(initial=0) <= 1
+    assert np.abs(f_it[both] - s_it[both]).max(initial=0) <= 1
+    f_ok = s_ok = both
     for a, b in ((f_P, s_P), (f_vl, s_vl), (f_vv, s_vv)):
         np.testing.assert_allclose(a[f_ok], b[s_ok], rtol=rtol, atol=0.0)
     np.testing.assert_allclose(f_lnP[f_ok], s_lnP[s_ok], rtol=rtol, atol=1e-14)   # ln P near 0: absolute
@@ -239,7 +249,10 @@ def test_large_saturation_uses_the_compiled_loop_and_agrees_with_numpy(co2):
         slow = tr.saturation(model, T=T)
     np.testing.assert_allclose(fast.P, slow.P, rtol=1e-12)
     np.testing.assert_allclose(fast.v_vapor, slow.v_vapor, rtol=1e-12)
-    np.testing.assert_array_equal(fast.convergence.evaluations, slow.convergence.evaluations)
+    # the same iteration, so the same work; compiled and numpy math may differ in the last
+    # bit, which can move a stopping test by one step (never assert exact counts across paths)
+    gap = np.abs(np.asarray(fast.convergence.evaluations) - np.asarray(slow.convergence.evaluations))
+    assert gap.max() <= 1 and gap.sum() <= 0.02 * T.size
 
 
 def test_switching_the_saturation_loop_off_by_environment():

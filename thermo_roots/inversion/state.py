@@ -451,10 +451,6 @@ def _from_T_v(model, flat, problems, branch=None):
     T, v = flat["T"], flat["v"]
     with np.errstate(all="ignore"):
         P = np.asarray(model.pressure(T, v), dtype=float)
-    problems.flag(P <= 0.0, lambda i: (
-        f"at T = {T[i]:.6g} K and v = {v[i]:.6g} m³/mol {model.name} gives P = {P[i]:.6g} Pa, not above zero: "
-        "this volume lies on the unstable loop of a low isotherm (inside the dome the state is two-phase only "
-        "between the saturated volumes)."))
     quality, v_l, v_v = (np.full(T.shape, np.nan) for _ in range(3))
     phase = np.asarray(_single_phase(model, T, P, v), dtype=object)
     if not isinstance(model, IdealGas):
@@ -463,6 +459,10 @@ def _from_T_v(model, flat, problems, branch=None):
             P_sat, vl, vv, _ = saturation_pressure(model, T[sub], strict=False)
             idx = _lever_rule(v, sub, P_sat, vl, vv, P, v_l, v_v, quality)
             phase[idx] = "two-phase"
+    problems.flag(~(P > 0.0) & (phase != "two-phase"), lambda i: (
+        f"at T = {T[i]:.6g} K and v = {v[i]:.6g} m³/mol {model.name} gives P = {P[i]:.6g} Pa, not above zero, "
+        "and no saturation state holds this volume (the model has none at this T): this volume lies on the "
+        "unstable loop of a low isotherm."))
     return dict(T=T, P=P, v=v, phase=phase, quality=quality, v_liquid=v_l, v_vapor=v_v,
                 roots=_roots_for(model, T, P))
 
