@@ -23,11 +23,13 @@ from __future__ import annotations
 import functools
 import html
 import math
+import threading
+import types
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from .errors import DomainError, InputError
+from .errors import DomainError, InputError, UnknownFluidError
 from .inversion import CAUTION, saturation
 from .models import R, _scalar_or_array
 from .units import to_si
@@ -42,20 +44,54 @@ AUTO_PROGRESS_ABOVE = 5000
 #: The reason given to states a run did not reach because it was interrupted.
 INTERRUPTED = "not checked: the run was interrupted before this state"
 
+_LIMIT_KEYS = ("T_min", "T_max", "P_max", "P_triple", "Tc", "Pc", "v_c")
 _FIELDS = ("T", "P", "v", "quality", "P_sat", "T_sat", "v_liquid", "v_vapor")
 
 
 # --------------------------------------------------------------------------- CoolProp access
 
-@functools.lru_cache(maxsize=None)
-def _abstract_state(library_name: str):
-    """One HEOS AbstractState per fluid and process, with its limits."""
+#: Per thread, {library name: CoolProp AbstractState}. A state object is updated and then
+#: read in separate calls, so two threads sharing one would read each other's states.
+_THREAD_STATES = threading.local()
+
+
+def _new_abstract_state(library_name: str):
+    """A fresh HEOS AbstractState; UnknownFluidError when CoolProp does not know the name."""
     import CoolProp
 
-    state = CoolProp.AbstractState("HEOS", library_name)
-    limits = dict(T_min=max(state.Tmin(), state.Ttriple()), T_max=state.Tmax(), P_max=state.pmax(),
-                  P_triple=state.p_triple(), Tc=state.T_critical(), Pc=state.p_critical(),
-                  v_c=1.0 / state.rhomolar_critical(), melting=state.has_melting_line())
+    try:
+        return CoolProp.AbstractState("HEOS", library_name)
+    except ValueError as error:
+        raise UnknownFluidError(
+            f"library_name={library_name!r} is not a fluid of CoolProp's library ({error}); use a name from "
+            "thermo_roots.fluid_names() (get_fluid finds it by its usual name), or library_name=None for a fluid without a reference "
+            "equation.") from None
+
+
+@functools.lru_cache(maxsize=None)
+def _library_limits(library_name: str):
+    """The reference equation's limits and constants for a fluid (read-only, shared)."""
+    state = _new_abstract_state(library_name)
+    return types.MappingProxyType(dict(
+        T_min=max(state.Tmin(), state.Ttriple()), T_max=state.Tmax(), P_max=state.pmax(),
+        P_triple=state.p_triple(), Tc=state.T_critical(), Pc=state.p_critical(),
+        v_c=1.0 / state.rhomolar_critical(), melting=state.has_melting_line(),
+        omega=state.acentric_factor(), molar_mass=state.molar_mass()))
+
+
+def _abstract_state(library_name: str):
+    """This thread's HEOS AbstractState of the fluid, and the fluid's limits.
+
+    One state object per fluid *and thread* (each worker process has its own threads), so
+    an update and the reads that follow it can never interleave with another thread's.
+    """
+    limits = _library_limits(library_name)
+    states = getattr(_THREAD_STATES, "by_fluid", None)
+    if states is None:
+        states = _THREAD_STATES.by_fluid = {}
+    state = states.get(library_name)
+    if state is None:
+        state = states[library_name] = _new_abstract_state(library_name)
     return state, limits
 
 
@@ -79,7 +115,7 @@ def reference_limits(fluid) -> dict:
     P_triple [Pa], and its critical point Tc [K], Pc [Pa], v_c [m^3/mol]; raises InputError
     for a fluid without a library name."""
     name = _library_name(fluid)
-    return {k: v for k, v in _abstract_state(name)[1].items() if k != "melting"}
+    return {k: v for k, v in _library_limits(name).items() if k in _LIMIT_KEYS}
 
 
 def _library_name(fluid) -> str:
