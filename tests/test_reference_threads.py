@@ -113,3 +113,32 @@ def test_each_thread_has_its_own_reference_object():
         t.join()
     grab()
     assert len({id(s) for s in seen}) == 4
+
+
+def test_interrupted_threaded_run_keeps_the_chunks_done(co2_states, serial, monkeypatch):
+    # attack: the third chunk is interrupted (Ctrl-C) in a thread pool; the states of the chunks
+    # before it are kept, exactly as in the serial run, and the rest say why they are empty
+    calls = {"n": 0}
+    lock = threading.Lock()
+    real = ref._reference_chunk
+
+    def interrupting(library_name, pair, a, b, with_saturation):
+        with lock:
+            calls["n"] += 1
+            mine = calls["n"]
+        if mine == 3:
+            raise KeyboardInterrupt
+        return real(library_name, pair, a, b, with_saturation)
+
+    monkeypatch.setattr(ref, "_reference_chunk", interrupting)
+    index = slice(0, 200)
+    sub = tr.solve(co2_states.model, T=np.asarray(co2_states.T)[index], P=np.asarray(co2_states.P)[index])
+    with ThreadPoolExecutor(1) as pool:      # one thread: chunks start in order, the third is interrupted
+        check = ref.cross_check(sub, executor=pool, chunk_size=10, on_interrupt="partial")
+    assert check.completed == 20
+    np.testing.assert_allclose(check.reference_v[:20], np.asarray(serial.reference_v)[:20], rtol=1e-12)
+    assert set(check.reason[20:]) == {ref.INTERRUPTED}
+    with ThreadPoolExecutor(1) as pool:
+        calls["n"] = 0
+        with pytest.raises(KeyboardInterrupt):
+            ref.cross_check(sub, executor=pool, chunk_size=10)
