@@ -108,8 +108,8 @@ def test_pr_liquid_density_is_far_better_than_srk(maps, name):
 
 
 @pytest.mark.parametrize("name", FLUIDS)
-def test_low_pressure_vapour_within_a_few_percent(maps, name):
-    # common practice: below a tenth of Pc both cubics give vapour volumes within ~1-2 %
+def test_low_pressure_vapor_within_a_few_percent(maps, name):
+    # common practice: below a tenth of Pc both cubics give vapor volumes within ~1-2 %
     pts = maps[name].points
     low = pts[(pts["P"] <= 0.1 * tr.get_fluid(name).Pc) & (pts["phase_reference"] == "vapor")
               & (pts["phase_model"] == "vapor") & pts["model"].isin(["PR", "SRK"])]

@@ -48,7 +48,7 @@ def _direct(name, out, a_name, a, b_name, b):
 
 @pytest.mark.parametrize("knowns, phase", [
     (dict(T=250.0, P="30 bar"), "liquid"),            # subcooled CO2 liquid
-    (dict(T=280.0, P="15 bar"), "vapor"),             # superheated vapour
+    (dict(T=280.0, P="15 bar"), "vapor"),             # superheated vapor
     (dict(T=330.0, P="120 bar"), "supercritical"),
     (dict(T=270.0, quality=0.4), "two-phase"),
 ])

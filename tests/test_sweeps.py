@@ -27,8 +27,9 @@ def test_isotherm_rows_are_the_array_solve(pr_co2):
     np.testing.assert_allclose(frame["v"], state.v, rtol=1e-12)
     np.testing.assert_allclose(frame[["v_root_1", "v_root_2", "v_root_3"]].to_numpy(), state.root_volumes)
     assert list(frame["phase"]) == list(state.phase)
-    assert frame.attrs["units"]["P"] == "Pa" and frame.attrs["units"]["rho_mass"] == "kg/m3"
-    assert frame.attrs["units"]["v_root_2"] == "m3/mol" and frame.attrs["T"] == pytest.approx(280.15)
+    # units as a person reads them, in Unicode (the project's spelling)
+    assert frame.attrs["units"]["P"] == "Pa" and frame.attrs["units"]["rho_mass"] == "kg/m³"
+    assert frame.attrs["units"]["v_root_2"] == "m³/mol" and frame.attrs["T"] == pytest.approx(280.15)
     assert frame.attrs["fluid"] == "CarbonDioxide" and frame.attrs["model"] == "Peng-Robinson"
     assert frame.attrs["version"] == tr.__version__ and frame.attrs["caution"] == tr.CAUTION
     assert frame.attrs["fluid_constants"]["Tc"] == pr_co2.fluid.Tc
@@ -100,7 +101,7 @@ def test_saturation_curve_against_reference(pr_co2):
     direct = [CP.PropsSI("P", "T", T, "Q", 0, "HEOS::CO2") for T in (220.0, 260.0, 300.0)]
     np.testing.assert_allclose(frame["reference_P"], direct, rtol=1e-9)
     np.testing.assert_allclose(frame["deviation_P_percent"], 100 * (frame["P"] / direct - 1), rtol=1e-9)
-    # common practice: PR's vapour pressures are within a few percent of the reference
+    # common practice: PR's vapor pressures are within a few percent of the reference
     assert frame["deviation_P_percent"].abs().max() < 3.0
     default = sw.saturation_curve(pr_co2, n=5)
     assert default["T"].iloc[0] == pytest.approx(ref.reference_limits(pr_co2.fluid)["T_min"])

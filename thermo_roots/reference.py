@@ -177,7 +177,7 @@ def _reference_chunk(library_name: str, pair: str, a, b, with_saturation: bool =
         P = x if first == "P" else (y if second == "P" else math.nan)
         reason = _limit_reason(limits, T, P)
         if not reason and second == "v" and y <= 0.0:
-            reason = f"v = {y:.6g} m3/mol is not positive"
+            reason = f"v = {y:.6g} m³/mol is not positive"
         if not reason and second == "quality" and not 0.0 <= y <= 1.0:
             reason = f"quality = {y:.6g} is outside [0, 1]"
         if not reason and second == "quality":
@@ -368,7 +368,7 @@ class ReferenceState:
     P : pressure [Pa]
     v : molar volume [m^3/mol] (mixture mean in the two-phase region)
     phase : "liquid", "vapor", "supercritical", "two-phase" ("" where unavailable)
-    quality : vapour mole fraction [-] in the two-phase region, else NaN
+    quality : vapor mole fraction [-] in the two-phase region, else NaN
     P_sat : saturation pressure at T [Pa], NaN at or above Tc
     T_sat : saturation temperature at P [K], NaN at or above Pc
     v_liquid, v_vapor : saturated volumes at T [m^3/mol]
@@ -573,7 +573,7 @@ class ReferenceSaturation:
         if np.ndim(self.T):
             return f"ReferenceSaturation({self.fluid.name!r}, {np.size(self.T)} points)"
         return (f"ReferenceSaturation({self.fluid.name!r}, T={self.T:.6g} K, P={self.P:.6g} Pa, "
-                f"v_liquid={self.v_liquid:.6g} m3/mol, v_vapor={self.v_vapor:.6g} m3/mol)")
+                f"v_liquid={self.v_liquid:.6g} m³/mol, v_vapor={self.v_vapor:.6g} m³/mol)")
 
     def _repr_html_(self):
         return f"<pre>{html.escape(repr(self))}</pre>"
@@ -641,7 +641,7 @@ class CrossCheck:
     reference_P_sat : saturation pressure at T [Pa], NaN at or above Tc
     reference_T_sat : saturation temperature at P [K], NaN at or above Pc
     reference_v_liquid, reference_v_vapor : saturated volumes at T [m^3/mol]
-    reference_quality : vapour mole fraction [-] where the reference is two-phase
+    reference_quality : vapor mole fraction [-] where the reference is two-phase
     completed : how many leading states were checked (less than the size if interrupted)
     warnings : sentences about the whole check, e.g. the fluid's constants differ from those
         of the reference equation (see :func:`constant_warnings`); () when there is nothing to say

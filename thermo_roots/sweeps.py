@@ -175,11 +175,11 @@ def _unit_of(column: str) -> str:
     if column.endswith("_K"):
         return "K"
     base = column.removeprefix("reference_")
-    for prefix, unit in (("v_", "m3/mol"), ("rho_mass", "kg/m3"), ("rho", "mol/m3"), ("Z", "-"),
+    for prefix, unit in (("v_", "m³/mol"), ("rho_mass", "kg/m³"), ("rho", "mol/m³"), ("Z", "-"),
                          ("quality", "-"), ("P_sat", "Pa"), ("T_sat", "K")):
         if base.startswith(prefix):
             return unit
-    return {"T": "K", "P": "Pa", "v": "m3/mol"}.get(base, "")
+    return {"T": "K", "P": "Pa", "v": "m³/mol"}.get(base, "")
 
 
 def _attrs(model, table: str, **extra) -> dict:
@@ -376,7 +376,7 @@ def isochore(model, v=None, *, rho=None, rho_mass=None, T=None, n=DEFAULT_POINTS
     """A closed vessel heated up: states at fixed molar volume along temperature.
 
     Below Tc a vessel filled more densely than the critical density holds liquid and
-    vapour until the liquid has expanded to fill it (the *liquid-full* point), after which
+    vapor until the liquid has expanded to fill it (the *liquid-full* point), after which
     the pressure climbs steeply with temperature; one filled less densely dries out
     instead (the *vapor-full* point). That point is inserted as a row of its own
     (column ``fill_point`` True) and recorded in ``attrs["fill_point"]``:
@@ -426,7 +426,7 @@ def isochore(model, v=None, *, rho=None, rho_mass=None, T=None, n=DEFAULT_POINTS
     if reference:
         extra["reference_fill_point"] = reference_fill_point(model.fluid, v_fixed, T_range=(Ts.min(), Ts.max()))
     frame = state_frame(state, reference=reference, progress=progress, executor=executor, chunk_size=chunk_size,
-                        table=f"isochore at v = {v_fixed:.6g} m3/mol ({M / v_fixed:.6g} kg/m3)", extra_attrs=extra)
+                        table=f"isochore at v = {v_fixed:.6g} m³/mol ({M / v_fixed:.6g} kg/m³)", extra_attrs=extra)
     frame["fill_point"] = fill[:len(frame)]
     return _finish(frame, dict(frame.attrs))
 
@@ -562,7 +562,7 @@ def to_csv(frame: pd.DataFrame, path) -> None:
                      f"Pc = {fc['Pc']:.8g} Pa, omega = {fc['omega']:.6g}, molar mass = {fc['molar_mass']:.8g} kg/mol")
     if "model" in a:
         lines.append(f"model: {a['model']} ({a.get('model_short_name', '')}), volume shift c = "
-                     f"{a.get('volume_shift', 0.0):.6g} m3/mol")
+                     f"{a.get('volume_shift', 0.0):.6g} m³/mol")
     lines.append(f"table: {a.get('table', '')}")
     lines.append(f"written: {datetime.datetime.now().astimezone().isoformat(timespec='seconds')} by thermo_roots "
                  f"{a.get('version', _version())}")
