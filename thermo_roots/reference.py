@@ -751,6 +751,13 @@ class CrossCheck:
         """
         return [row for row, _ in self._table()]
 
+    def large_deviations(self) -> list[bool]:
+        """One flag per row of :meth:`rows`: True where the deviation is beyond
+        :data:`LARGE_DEVIATION_PERCENT` (:data:`LARGE_DEVIATION_K` for temperatures) or the
+        phases differ, as the HTML table highlights them (style :data:`LARGE_DEVIATION_STYLE`,
+        legend :data:`LARGE_DEVIATION_LEGEND`)."""
+        return [large for _, large in self._table()]
+
     def _repr_html_(self):
         s = self.state
         title = html.escape(f"{_fluid_name(s.model.fluid)} — {s.model.name} against the reference equation "
@@ -763,7 +770,7 @@ class CrossCheck:
         body = []
         for row, large in self._table():
             cells = [f"<td>{html.escape(c)}</td>" for c in row[:3]]
-            cells.append(f"<td style='{_LARGE_STYLE}'>{html.escape(row[3])}</td>" if large
+            cells.append(f"<td style='{LARGE_DEVIATION_STYLE}'>{html.escape(row[3])}</td>" if large
                          else f"<td>{html.escape(row[3])}</td>")
             body.append("<tr>" + "".join(cells) + "</tr>")
         legend = (f"<p style='font-size:smaller'>{html.escape(LARGE_DEVIATION_LEGEND)}</p>"
@@ -781,7 +788,7 @@ LARGE_DEVIATION_PERCENT = 5.0
 LARGE_DEVIATION_K = 2.0
 LARGE_DEVIATION_LEGEND = (f"Deviations beyond ±{LARGE_DEVIATION_PERCENT:g} % (±{LARGE_DEVIATION_K:g} K for "
                           "temperatures), and a phase that differs, are shown in bold on a shaded background.")
-_LARGE_STYLE = "font-weight:bold; background-color:#f6d6a8; color:#5a2a00"
+LARGE_DEVIATION_STYLE = "font-weight:bold; background-color:#f6d6a8; color:#5a2a00"
 
 
 def _warning_text(notes) -> str:
