@@ -291,3 +291,16 @@ def test_large_deviations_are_highlighted_and_small_ones_are_not(co2):
     near = ref.cross_check(tr.solve(tr.IdealGas(tr.get_fluid("nitrogen")), T=300.0, P=1e5))
     assert abs(near.deviation_v_percent) < 0.05
     assert "font-weight:bold" not in near._repr_html_() and not any(near.large_deviations())
+
+
+def test_reference_state_takes_a_fluid_or_its_name(co2):
+    by_name = ref.reference_state("CO2", T=300.0, P=1e6)
+    assert by_name.v == pytest.approx(ref.reference_state(co2, T=300.0, P=1e6).v, rel=1e-12)
+    assert ref.reference_saturation("CO2", T=250.0).P == pytest.approx(_direct("CO2", "P", "T", 250.0, "Q", 0),
+                                                                       rel=1e-9)
+    with pytest.raises(TypeError, match=r"reference_state\(fluid, ...\) needs a Fluid"):
+        ref.reference_state(None, T=300.0, P=1e6)
+    with pytest.raises(TypeError, match="reference_saturation"):
+        ref.reference_saturation(42, T=250.0)
+    with pytest.raises(tr.UnknownFluidError):
+        ref.reference_state("no such gas", T=300.0, P=1e6)

@@ -2,10 +2,13 @@
 
 This module is the only code that drives CoolProp's state objects. It evaluates the
 fluid's multiparameter Helmholtz-energy equation (CoolProp's ``HEOS`` backend, one
-``AbstractState`` per fluid and process) at the same knowns as a solved model state and
+``AbstractState`` per fluid and thread) at the same knowns as a solved model state and
 reports the deviations. A state the reference cannot give -- below its triple point,
 beyond its temperature or pressure limits, in the solid, or where CoolProp raises -- comes
-back as *unavailable* with a readable reason, never as an exception out of a sweep.
+back as *unavailable* with a readable reason, never as an exception out of a sweep; so
+does every state of a fluid without a reference equation (no ``library_name``, or one
+CoolProp does not know). Threads never share a state object, so any
+``concurrent.futures.Executor`` -- threads, processes, a cluster's -- gives the serial result.
 
 Only the ``HEOS`` backend is used: the tabular backends have crashed the process on bulk
 calls. ``PropsSI`` is not used either: the low-level ``update`` is several times faster.
@@ -440,8 +443,8 @@ def reference_state(fluid, *, with_saturation: bool = True, progress=False, exec
 
     Parameters
     ----------
-    fluid : Fluid
-        A library fluid (with ``library_name``).
+    fluid : Fluid or str
+        A library fluid (with ``library_name``), or its name.
     with_saturation, progress, executor, chunk_size
         As in :func:`evaluate_reference`.
     **knowns
@@ -460,6 +463,7 @@ def reference_state(fluid, *, with_saturation: bool = True, progress=False, exec
     """
     _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size,
                        with_saturation=with_saturation)
+    fluid = _as_fluid(fluid, "reference_state")
     pair, a, b = _reference_knowns(fluid, knowns)
     shape = np.broadcast(a, b).shape
     values, completed, notes = _fluid_reference(fluid, pair, a, b, shape, with_saturation=with_saturation,
@@ -536,6 +540,18 @@ def _fluid_reference(fluid, pair, a, b, shape, **options):
     return values, completed, constant_warnings(fluid)
 
 
+def _as_fluid(fluid, where: str):
+    """A Fluid from a Fluid or a library fluid's name; TypeError for anything else."""
+    from .fluids import Fluid, get_fluid
+
+    if isinstance(fluid, str):
+        return get_fluid(fluid)
+    if not isinstance(fluid, Fluid):
+        raise TypeError(f"{where}(fluid, ...) needs a Fluid or a library fluid's name, e.g. get_fluid('propane') "
+                        f"or 'propane'; got {_given(fluid)}.")
+    return fluid
+
+
 def _reference_knowns(fluid, knowns):
     if len(knowns) != 2:
         raise InputError(f"Give exactly two knowns, got {', '.join(knowns) or 'none'}; "
@@ -600,6 +616,7 @@ def reference_saturation(fluid, T=None, P=None) -> ReferenceSaturation:
     ----------
     Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp).
     """
+    fluid = _as_fluid(fluid, "reference_saturation")
     if (T is None) == (P is None):
         raise InputError("reference_saturation() needs exactly one of T= or P=.")
     known = {"T": T} if T is not None else {"P": P}
