@@ -304,3 +304,12 @@ def test_reference_state_takes_a_fluid_or_its_name(co2):
         ref.reference_saturation(42, T=250.0)
     with pytest.raises(tr.UnknownFluidError):
         ref.reference_state("no such gas", T=300.0, P=1e6)
+
+
+def test_fit_volume_shift_arguments_are_checked(propane):
+    with pytest.raises(TypeError, match="Tr must be a number"):
+        ref.fit_volume_shift(tr.PengRobinson, propane, Tr="0.7")
+    with pytest.raises(TypeError, match=r"fit_volume_shift\(fluid"):
+        ref.fit_volume_shift(tr.PengRobinson, None)
+    with pytest.raises(tr.DomainError, match="between 0 and 1"):
+        ref.fit_volume_shift(tr.PengRobinson, propane, Tr=float("nan"))

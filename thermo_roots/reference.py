@@ -984,6 +984,9 @@ def fit_volume_shift(model_class, fluid, Tr: float = 0.7) -> float:
         model_class = type(model_class)
     if not (isinstance(model_class, type) and issubclass(model_class, CubicModel)):
         raise InputError(f"fit_volume_shift needs a cubic model class such as PengRobinson, not {model_class!r}.")
+    fluid = _as_fluid(fluid, "fit_volume_shift")
+    if isinstance(Tr, (bool, np.bool_)) or not isinstance(Tr, (int, float, np.integer, np.floating)):
+        raise TypeError(f"Tr must be a number between 0 and 1 (a reduced temperature T/Tc); got {_given(Tr)}.")
     if not 0.0 < Tr < 1.0:
         raise DomainError(f"Tr = {Tr!r} must lie between 0 and 1 (a saturated liquid exists only below Tc).")
     T = Tr * fluid.Tc
