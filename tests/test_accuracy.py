@@ -60,8 +60,8 @@ def test_points_columns_units_and_values():
     assert row["deviation_percent"] == pytest.approx(100 * (v_srk - v_ref) / v_ref, rel=1e-9)
     assert row["phase_model"] == row["phase_reference"] == "liquid"
     s = amap.summary
-    assert set(s.columns) >= {"model", "region", "points", "phase_disagreements", "mean_abs_percent",
-                              "max_abs_percent", "within_1_percent", "within_5_percent"}
+    assert tuple(s.columns) == acc.SUMMARY_COLUMNS
+    assert s.attrs["units"]["percent_within_5"] == "%" and s.attrs["units"]["percent_within_1"] == "%"
     assert s["points"].sum() == 12
     best = amap.best_by_region()
     assert set(best.index) <= set(acc.REGIONS)
@@ -108,8 +108,8 @@ def test_pr_liquid_density_is_far_better_than_srk(maps, name):
 
 
 @pytest.mark.parametrize("name", FLUIDS)
-def test_low_pressure_vapour_within_a_few_percent(maps, name):
-    # common practice: below a tenth of Pc both cubics give vapour volumes within ~1-2 %
+def test_low_pressure_vapor_within_a_few_percent(maps, name):
+    # common practice: below a tenth of Pc both cubics give vapor volumes within ~1-2 %
     pts = maps[name].points
     low = pts[(pts["P"] <= 0.1 * tr.get_fluid(name).Pc) & (pts["phase_reference"] == "vapor")
               & (pts["phase_model"] == "vapor") & pts["model"].isin(["PR", "SRK"])]
@@ -143,8 +143,52 @@ def test_summary_shares_and_disagreements_are_consistent(maps):
         part = pts[(pts["model"] == row["model"]) & (pts["phase_reference"] == row["region"])]
         agree = part["phase_model"] == part["phase_reference"]
         assert row["points"] == len(part) and row["phase_disagreements"] == int((~agree).sum())
+        # the columns are percentages (0-100) of the region's points, as their names say
         within = ((part["deviation_percent"].abs() <= 5.0) & agree).mean()
-        assert row["within_5_percent"] == pytest.approx(within)
+        assert row["percent_within_5"] == pytest.approx(100.0 * within)
+        within_1 = ((part["deviation_percent"].abs() <= 1.0) & agree).mean()
+        assert row["percent_within_1"] == pytest.approx(100.0 * within_1)
+        assert 0.0 <= row["percent_within_1"] <= row["percent_within_5"] <= 100.0
         assert row["max_abs_percent"] >= row["mean_abs_percent"]
     assert isinstance(amap.best_by_region(), pd.DataFrame)
     assert np.isfinite(amap.summary["mean_abs_percent"]).all()
+
+
+def test_shares_are_percentages_a_person_can_read():
+    # PR for propane vapor at 300 K and 1-5 bar: within 1 % of the reference (common practice:
+    # cubics are within about 1 % for a vapor below a tenth of Pc), so 100, not 1.0
+    amap = acc.accuracy_map("propane", ["PR"], T=[300.0], P=[1e5, 2e5, 5e5], progress=False)
+    row = amap.summary.iloc[0]
+    assert row["region"] == "vapor" and row["percent_within_1"] == pytest.approx(100.0)
+    best = amap.best_by_region()
+    assert list(best.columns) == ["model", "mean_abs_percent", "percent_within_5", "points"]
+    assert best.loc["vapor", "percent_within_5"] == pytest.approx(100.0)
+    assert not any("within_5_percent" in c or "within_1_percent" in c for c in amap.summary.columns)
+
+
+@pytest.mark.parametrize("kwargs, error, words", [
+    (dict(n=0), tr.InputError, "n=0"),
+    (dict(n=2.5), tr.InputError, "whole number"),
+    (dict(n="10"), TypeError, r"\bn\b"),
+    (dict(log="log"), TypeError, "log must be"),
+    (dict(chunk_size=-5), tr.InputError, "chunk_size=-5"),
+    (dict(executor=object()), TypeError, "executor"),
+    (dict(progress=2), TypeError, "progress"),
+    (dict(models=None), TypeError, "models must be"),
+])
+def test_accuracy_map_arguments_are_checked(kwargs, error, words):
+    kwargs = {"models": ["PR"], **kwargs}
+    with pytest.raises(error, match=words):
+        acc.accuracy_map("propane", T=[300.0], P=[1e5], **kwargs)
+
+
+def test_accuracy_map_of_something_not_a_fluid_is_a_type_error():
+    with pytest.raises(TypeError, match="library fluid or its name"):
+        acc.accuracy_map(None, ["PR"])
+
+
+def test_accuracy_map_warns_about_made_up_constants():
+    fluid = tr.Fluid("propane", Tc=500.0, Pc=5e6, omega=0.2, molar_mass=0.05, library_name="n-Propane")
+    with pytest.warns(UserWarning, match="differ from those of the reference equation"):
+        amap = acc.accuracy_map(fluid, ["PR"], T=[300.0], P=[1e5], progress=False)
+    assert "Tc = 500 K" in amap.points.attrs["reference_warnings"][0]

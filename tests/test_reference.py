@@ -48,7 +48,7 @@ def _direct(name, out, a_name, a, b_name, b):
 
 @pytest.mark.parametrize("knowns, phase", [
     (dict(T=250.0, P="30 bar"), "liquid"),            # subcooled CO2 liquid
-    (dict(T=280.0, P="15 bar"), "vapor"),             # superheated vapour
+    (dict(T=280.0, P="15 bar"), "vapor"),             # superheated vapor
     (dict(T=330.0, P="120 bar"), "supercritical"),
     (dict(T=270.0, quality=0.4), "two-phase"),
 ])
@@ -191,3 +191,125 @@ def test_interrupt_keeps_finished_chunks(co2, monkeypatch):
     calls["n"] = 0
     with pytest.raises(KeyboardInterrupt):
         ref.cross_check(states, chunk_size=10)
+
+
+# --------------------------------------------------------------------------- bad input (issue 8, sections 3 and 5)
+
+@pytest.mark.parametrize("bad", ["hello", None, 300.0, {"T": 300.0}])
+def test_cross_check_of_something_not_a_state_names_the_argument(bad):
+    with pytest.raises(TypeError, match=r"cross_check\(state\) needs a State from thermo_roots.solve"):
+        ref.cross_check(bad)
+
+
+@pytest.mark.parametrize("options, error, words", [
+    (dict(chunk_size=0), tr.InputError, "chunk_size=0"),
+    (dict(chunk_size=-1), tr.InputError, "chunk_size=-1"),
+    (dict(chunk_size=2.5), tr.InputError, "whole number"),
+    (dict(chunk_size=True), TypeError, "chunk_size"),
+    (dict(chunk_size="50"), TypeError, "chunk_size"),
+    (dict(progress="yes"), tr.InputError, "progress='yes'"),
+    (dict(progress=None), TypeError, "progress"),
+    (dict(executor=4), TypeError, "executor"),
+    (dict(on_interrupt="keep"), tr.InputError, "on_interrupt='keep'"),
+    (dict(with_saturation="no"), TypeError, "with_saturation"),
+])
+def test_cross_check_options_are_checked(co2, options, error, words):
+    state = tr.solve(tr.PengRobinson(co2), T=300.0, P=1e6)
+    with pytest.raises(error, match=words):
+        ref.cross_check(state, **options)
+    with pytest.raises(error, match=words):
+        ref.evaluate_reference("CarbonDioxide", "T,P", 300.0, 1e6, **options)
+    if "on_interrupt" not in options:
+        with pytest.raises(error, match=words):
+            ref.reference_state(co2, T=300.0, P=1e6, **options)
+
+
+def test_unknown_library_name_gives_unavailable_results_not_an_error():
+    # the README promises that cross_check never raises for a state
+    fluid = tr.Fluid("plant mix 7", 400.0, 4e6, 0.2, 0.05, library_name="NoSuchFluid")   # invented
+    model = tr.PengRobinson(fluid)
+    check = ref.cross_check(tr.solve(model, T=300.0, P=1e5))
+    assert not check.available and "does not know library_name='NoSuchFluid'" in check.reason
+    assert check.rows()[0][3].startswith("unavailable: ") and "Reference unavailable" in check._repr_html_()
+    many = ref.cross_check(tr.solve(model, T=[300.0, 350.0], P=1e5))
+    assert not np.any(many.available) and many.completed == 2
+    assert not np.any(ref.reference_state(fluid, T=300.0, P=[1e5, 2e5]).available)
+    with pytest.raises(tr.UnknownFluidError, match="NoSuchFluid"):
+        ref.reference_limits(fluid)
+
+
+def test_phase_row_says_unavailable_with_the_reason(propane):
+    # 60 K is below propane's triple point, 85.5 K (CoolProp's reference equation, Lemmon et al. 2009)
+    check = ref.cross_check(tr.solve(tr.PengRobinson(propane), T=60.0, P=2e6))
+    phase = check.rows()[0]
+    assert phase[0] == "Phase" and "DIFFERS" not in phase[3]
+    assert phase[3].startswith("unavailable: ") and "triple point" in phase[3]
+
+
+def test_state_at_very_low_temperature_still_displays(propane):
+    # 20 K: the model gives no saturation pressure there (issue 8, section 3: State.P_sat raised
+    # ConvergenceError out of rows()); the table shows "-" in its place
+    check = ref.cross_check(tr.solve(tr.PengRobinson(propane), T=20.0, P=1e5))
+    rows = {r[0]: r[1:] for r in check.rows()}
+    assert rows["Saturation pressure at T [bar]"] == ("-", "-", "-")
+    assert "triple point" in check._repr_html_()
+
+
+def test_made_up_constants_with_a_real_library_name_are_warned_about():
+    fluid = tr.Fluid("propane", Tc=500.0, Pc=5e6, omega=0.2, molar_mass=0.05, library_name="n-Propane")
+    check = ref.cross_check(tr.solve(tr.PengRobinson(fluid), T=300.0, P=1e5))
+    assert len(check.warnings) == 1
+    note = check.warnings[0]
+    # CoolProp's propane (Lemmon, McLinden & Wagner 2009): Tc = 369.89 K, Pc = 42.51 bar (from memory)
+    assert "Tc = 500 K against 369.89 K" in note and "Pc = 50 bar against 42.51" in note
+    assert "omega" in note and "molar_mass" in note and "get_fluid('n-Propane')" in note
+    assert "Warning" in repr(check) and "Warning." in check._repr_html_()
+    assert ref.reference_state(fluid, T=300.0, P=1e5).warnings == check.warnings
+
+
+def test_library_and_handbook_constants_give_no_warning(propane):
+    assert ref.cross_check(tr.solve(tr.PengRobinson(propane), T=300.0, P=1e5)).warnings == ()
+    # Poling, Prausnitz & O'Connell, The Properties of Gases and Liquids, 5th ed. (2001),
+    # Appendix A, propane: Tc = 369.83 K, Pc = 42.48 bar, omega = 0.152, M = 44.097 g/mol (from memory)
+    handbook = tr.Fluid("propane", Tc=369.83, Pc=42.48e5, omega=0.152, molar_mass=44.097e-3, library_name="n-Propane")
+    assert ref.constant_warnings(handbook) == ()
+    assert ref.constant_warnings(tr.Fluid("x", 400.0, 4e6, 0.2, 0.05)) == ()     # no library name: nothing to compare
+
+
+def test_large_deviations_are_highlighted_and_small_ones_are_not(co2):
+    # the ideal gas for CO2 at 300 K and 50 bar: the reference Z is about 0.8 (Span & Wagner
+    # 1996 via CoolProp, recomputed here), so v is off by far more than 5 %
+    far = ref.cross_check(tr.solve(tr.IdealGas(co2), T=300.0, P=5e6))
+    Z_ref = _direct("CO2", "Z", "T", 300.0, "P", 5e6)
+    assert abs(100 * (1 / Z_ref - 1)) > ref.LARGE_DEVIATION_PERCENT
+    page = far._repr_html_()
+    assert ref.LARGE_DEVIATION_LEGEND in page
+    flagged = [row for row, large in zip(far.rows(), far.large_deviations()) if large]
+    assert any(row[0] == "Molar volume [L/mol]" for row in flagged)
+    assert page.count("font-weight:bold") == len(flagged)
+    # common practice: nitrogen at 300 K and 1 bar is within 0.05 % of the ideal gas
+    near = ref.cross_check(tr.solve(tr.IdealGas(tr.get_fluid("nitrogen")), T=300.0, P=1e5))
+    assert abs(near.deviation_v_percent) < 0.05
+    assert "font-weight:bold" not in near._repr_html_() and not any(near.large_deviations())
+
+
+def test_reference_state_takes_a_fluid_or_its_name(co2):
+    by_name = ref.reference_state("CO2", T=300.0, P=1e6)
+    assert by_name.v == pytest.approx(ref.reference_state(co2, T=300.0, P=1e6).v, rel=1e-12)
+    assert ref.reference_saturation("CO2", T=250.0).P == pytest.approx(_direct("CO2", "P", "T", 250.0, "Q", 0),
+                                                                       rel=1e-9)
+    with pytest.raises(TypeError, match=r"reference_state\(fluid, ...\) needs a Fluid"):
+        ref.reference_state(None, T=300.0, P=1e6)
+    with pytest.raises(TypeError, match="reference_saturation"):
+        ref.reference_saturation(42, T=250.0)
+    with pytest.raises(tr.UnknownFluidError):
+        ref.reference_state("no such gas", T=300.0, P=1e6)
+
+
+def test_fit_volume_shift_arguments_are_checked(propane):
+    with pytest.raises(TypeError, match="Tr must be a number"):
+        ref.fit_volume_shift(tr.PengRobinson, propane, Tr="0.7")
+    with pytest.raises(TypeError, match=r"fit_volume_shift\(fluid"):
+        ref.fit_volume_shift(tr.PengRobinson, None)
+    with pytest.raises(tr.DomainError, match="between 0 and 1"):
+        ref.fit_volume_shift(tr.PengRobinson, propane, Tr=float("nan"))

@@ -27,8 +27,9 @@ def test_isotherm_rows_are_the_array_solve(pr_co2):
     np.testing.assert_allclose(frame["v"], state.v, rtol=1e-12)
     np.testing.assert_allclose(frame[["v_root_1", "v_root_2", "v_root_3"]].to_numpy(), state.root_volumes)
     assert list(frame["phase"]) == list(state.phase)
-    assert frame.attrs["units"]["P"] == "Pa" and frame.attrs["units"]["rho_mass"] == "kg/m3"
-    assert frame.attrs["units"]["v_root_2"] == "m3/mol" and frame.attrs["T"] == pytest.approx(280.15)
+    # units as a person reads them, in Unicode (the project's spelling)
+    assert frame.attrs["units"]["P"] == "Pa" and frame.attrs["units"]["rho_mass"] == "kg/m³"
+    assert frame.attrs["units"]["v_root_2"] == "m³/mol" and frame.attrs["T"] == pytest.approx(280.15)
     assert frame.attrs["fluid"] == "CarbonDioxide" and frame.attrs["model"] == "Peng-Robinson"
     assert frame.attrs["version"] == tr.__version__ and frame.attrs["caution"] == tr.CAUTION
     assert frame.attrs["fluid_constants"]["Tc"] == pr_co2.fluid.Tc
@@ -100,7 +101,7 @@ def test_saturation_curve_against_reference(pr_co2):
     direct = [CP.PropsSI("P", "T", T, "Q", 0, "HEOS::CO2") for T in (220.0, 260.0, 300.0)]
     np.testing.assert_allclose(frame["reference_P"], direct, rtol=1e-9)
     np.testing.assert_allclose(frame["deviation_P_percent"], 100 * (frame["P"] / direct - 1), rtol=1e-9)
-    # common practice: PR's vapour pressures are within a few percent of the reference
+    # common practice: PR's vapor pressures are within a few percent of the reference
     assert frame["deviation_P_percent"].abs().max() < 3.0
     default = sw.saturation_curve(pr_co2, n=5)
     assert default["T"].iloc[0] == pytest.approx(ref.reference_limits(pr_co2.fluid)["T_min"])
@@ -170,3 +171,95 @@ def test_ideal_gas_sweep_has_no_fill_point():
     with warnings.catch_warnings():
         warnings.simplefilter("error")
         sw.isobar(tr.IdealGas(tr.get_fluid("nitrogen")), 1e5, T=[300.0], reference=True)
+
+
+# --------------------------------------------------------------------------- bad input (issue 8, section 3)
+
+@pytest.mark.parametrize("n, error", [(0, tr.InputError), (-1, tr.InputError), (1, tr.InputError),
+                                      (2.5, tr.InputError), (float("nan"), tr.InputError),
+                                      ("5", TypeError), (None, TypeError), (True, TypeError)])
+def test_point_counts_are_whole_numbers_of_at_least_two(pr_co2, n, error):
+    for call in (lambda: sw.isochore(pr_co2, rho_mass=700.0, n=n),
+                 lambda: sw.isotherm(pr_co2, 300.0, n=n),
+                 lambda: sw.isobar(pr_co2, 1e6, n=n),
+                 lambda: sw.state_grid(pr_co2, (250.0, 300.0), (1e5, 1e6), n=n),
+                 lambda: sw.saturation_curve(pr_co2, n=n),
+                 lambda: sw.between(1e5, 1e6, n=n)):
+        with pytest.raises(error, match=r"\bn\b.*whole number of at least 2"):
+            call()
+
+
+def test_whole_float_and_numpy_counts_are_accepted(pr_co2):
+    assert len(sw.isotherm(pr_co2, 300.0, n=4.0)) == 4
+    assert len(sw.isotherm(pr_co2, 300.0, n=np.int64(3))) == 3
+
+
+@pytest.mark.parametrize("model, words", [(None, "NoneType"), ("PR", "A text is not a model"),
+                                          (tr.PengRobinson, "This is the class")])
+def test_a_sweep_without_a_model_says_what_a_model_is(model, words):
+    with pytest.raises(TypeError, match=words):
+        sw.isotherm(model, 300.0)
+    with pytest.raises(TypeError, match=r"isochore\(\) needs a model"):
+        sw.isochore(model, rho_mass=700.0)
+
+
+@pytest.mark.parametrize("kwargs, error, words", [
+    (dict(log="yes"), TypeError, "log must be True"),
+    (dict(reference="yes"), TypeError, "reference must be True"),
+    (dict(reference=True, chunk_size=0), tr.InputError, "chunk_size=0"),
+    (dict(reference=True, executor="pool"), TypeError, "executor"),
+    (dict(progress="sometimes"), tr.InputError, "progress="),
+    (dict(P=[]), tr.InputError, "holds no values"),
+])
+def test_other_sweep_arguments_are_checked(pr_co2, kwargs, error, words):
+    with pytest.raises(error, match=words):
+        sw.isotherm(pr_co2, 300.0, **kwargs)
+
+
+def test_to_csv_of_something_else_is_a_type_error(tmp_path):
+    with pytest.raises(TypeError, match="DataFrame"):
+        sw.to_csv("not a table", tmp_path / "x.csv")
+
+
+def test_user_fluid_with_reference_keeps_every_row():
+    # a fluid without a reference equation: every row stays, marked unavailable (it was cut
+    # to zero rows as if interrupted)
+    fluid = tr.Fluid("lab blend X", 420.0, 4.1e6, 0.21, 0.058)          # invented
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        frame = sw.isobar(tr.PengRobinson(fluid), 1e6, T=(300.0, 400.0), n=5, reference=True)
+    assert len(frame) == 5 and frame.attrs["interrupted"] is False
+    assert not frame["reference_available"].any() and frame["reference_reason"].str.contains("library_name").all()
+
+
+def test_unknown_library_name_sweep_uses_the_model_range_and_marks_unavailable():
+    fluid = tr.Fluid("plant mix 7", 400.0, 4e6, 0.2, 0.05, library_name="NoSuchFluid")   # invented
+    frame = sw.isochore(tr.PengRobinson(fluid), rho_mass=300.0, n=5, reference=True)
+    assert len(frame) >= 5 and frame["T"].min() == pytest.approx(0.6 * fluid.Tc)
+    assert frame.attrs["reference_fill_point"] is None and not frame["reference_available"].any()
+
+
+def test_sweep_with_made_up_constants_warns_and_records_it():
+    fluid = tr.Fluid("propane", Tc=500.0, Pc=5e6, omega=0.2, molar_mass=0.05, library_name="n-Propane")
+    with pytest.warns(UserWarning, match="differ from those of the reference equation"):
+        frame = sw.isobar(tr.PengRobinson(fluid), 1e6, T=[300.0, 400.0], reference=True)
+    assert "Tc = 500 K" in frame.attrs["reference_warnings"][0]
+
+
+def test_nan_temperature_among_many_states_keeps_the_rest():
+    # attack: 2000 CO2 states with one T = NaN (a model state that did not solve), through a
+    # process pool: that state is unavailable with a reason, every other state is exactly
+    # its serial value (CoolProp's reference equation, Span & Wagner 1996)
+    T = np.linspace(230.0, 400.0, 2000)
+    P = np.full(T.shape, 5e6)
+    serial, _ = ref.evaluate_reference("CarbonDioxide", "T,P", T, P, with_saturation=False)
+    T_bad = T.copy()
+    T_bad[1234] = np.nan
+    with ProcessPoolExecutor(max_workers=2) as pool:
+        values, completed = ref.evaluate_reference("CarbonDioxide", "T,P", T_bad, P, with_saturation=False,
+                                                   executor=pool, chunk_size=250)
+    assert completed == 2000
+    assert "not finite" in values["reason"][1234] and np.isnan(values["v"][1234])
+    keep = np.arange(T.size) != 1234
+    assert (values["reason"][keep] == serial["reason"][keep]).all()
+    np.testing.assert_allclose(values["v"][keep], serial["v"][keep], rtol=1e-12)

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import html
 import math
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -23,13 +24,17 @@ from .errors import InputError
 from .fluids import Fluid, get_fluid
 from .inversion import CAUTION, solve
 from .models import MODELS, CubicModel, IdealGas, peneloux_shift
-from .reference import evaluate_reference, reference_limits
-from .sweeps import _values
+from .reference import _check_run_options, _given, constant_warnings, evaluate_reference, reference_limits
+from .sweeps import _values, check_log, check_points
 
 #: Regions of the summary, by the reference's phase.
 REGIONS = ("liquid", "vapor", "supercritical")
 #: Columns of :attr:`AccuracyMap.points`, in order.
 POINT_COLUMNS = ("model", "T", "P", "v_model", "v_reference", "deviation_percent", "phase_model", "phase_reference")
+#: Columns of :attr:`AccuracyMap.summary`, in order; the last two are percentages (0-100) of a
+#: region's points within 1 % and 5 % of the reference.
+SUMMARY_COLUMNS = ("model", "region", "points", "phase_disagreements", "mean_abs_percent", "max_abs_percent",
+                   "percent_within_1", "percent_within_5")
 _POINT_UNITS = {"model": "", "T": "K", "P": "Pa", "v_model": "m3/mol", "v_reference": "m3/mol",
                 "deviation_percent": "%", "phase_model": "", "phase_reference": ""}
 
@@ -54,6 +59,9 @@ def resolve_models(fluid, models) -> list:
     """Model instances for the fluid from classes, instances or short names ("PR", "SRK")."""
     if isinstance(models, (str, type, CubicModel, IdealGas)):
         models = [models]
+    if not isinstance(models, (list, tuple)) and not hasattr(models, "__iter__"):
+        raise TypeError(f"models must be a model or a list of them (classes, instances or short names such as "
+                        f"['PR', 'SRK']); got {_given(models)}.")
     by_name = {k.lower(): cls for k, cls in MODELS.items()}
     out = []
     for item in models:
@@ -101,9 +109,9 @@ class AccuracyMap:
         Per model and region (the reference's phase): ``points``,
         ``phase_disagreements``, ``mean_abs_percent`` and ``max_abs_percent`` (over the
         points whose phase agrees: where the phases differ the deviation measures the
-        saturation line's position, not the density), ``within_1_percent`` and
-        ``within_5_percent`` (shares of all points in the region; a point with the
-        wrong phase counts as outside).
+        saturation line's position, not the density), ``percent_within_1`` and
+        ``percent_within_5`` (the percentage, 0 to 100, of all points in the region whose
+        |deviation| is at most 1 % and 5 %; a point with the wrong phase counts as outside).
     models : tuple of str
         The model labels, in the order given.
     """
@@ -132,11 +140,12 @@ class AccuracyMap:
                    models=first.models)
 
     def best_by_region(self) -> pd.DataFrame:
-        """The model of lowest mean |deviation| in each region (index: region)."""
+        """The model of lowest mean |deviation| in each region (index: region; columns model,
+        mean_abs_percent, percent_within_5 [% of the region's points], points)."""
         table = self.summary.dropna(subset=["mean_abs_percent"])
         rows = table.loc[table.groupby("region", sort=False)["mean_abs_percent"].idxmin()]
         rows = rows.set_index("region").reindex([r for r in REGIONS if r in set(rows["region"])])
-        return rows[["model", "mean_abs_percent", "within_5_percent", "points"]]
+        return rows[["model", "mean_abs_percent", "percent_within_5", "points"]]
 
     def __repr__(self):
         return (f"AccuracyMap({self.fluid.name!r}, models={list(self.models)}, "
@@ -182,6 +191,12 @@ def accuracy_map(fluid, models=("PR", "SRK"), T=None, P=None, *, n=25, log=None,
     """
     if isinstance(fluid, str):
         fluid = get_fluid(fluid)
+    if not isinstance(fluid, Fluid):
+        raise TypeError(f"accuracy_map(fluid, ...) needs a library fluid or its name, e.g. get_fluid('propane') "
+                        f"or 'propane'; got {_given(fluid)}.")
+    check_points(n)
+    check_log(log)
+    _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size)
     if not getattr(fluid, "library_name", None):
         raise InputError(f"Fluid {fluid.name!r} has no reference equation (no library_name); an accuracy map "
                          "needs a library fluid (get_fluid).")
@@ -210,6 +225,10 @@ def accuracy_map(fluid, models=("PR", "SRK"), T=None, P=None, *, n=25, log=None,
         }))
     points = pd.concat(frames, ignore_index=True)[list(POINT_COLUMNS)]
     points.attrs.update(_attrs(fluid, labels, Ts, Ps, int((~keep).sum()), ref))
+    notes = constant_warnings(fluid)
+    points.attrs["reference_warnings"] = list(notes)
+    for note in notes:
+        warnings.warn(note, UserWarning, stacklevel=2)
     return AccuracyMap(fluid=fluid, points=points, summary=_summarise(points, labels), models=tuple(labels))
 
 
@@ -250,11 +269,10 @@ def _summarise(points: pd.DataFrame, labels) -> pd.DataFrame:
                 "phase_disagreements": int((~agree).sum()),
                 "mean_abs_percent": float(dev.mean()) if len(dev) else math.nan,
                 "max_abs_percent": float(dev.max()) if len(dev) else math.nan,
-                "within_1_percent": float((inside <= 1.0).mean()),
-                "within_5_percent": float((inside <= 5.0).mean()),
+                "percent_within_1": 100.0 * float((inside <= 1.0).mean()),
+                "percent_within_5": 100.0 * float((inside <= 5.0).mean()),
             })
-    summary = pd.DataFrame(rows, columns=["model", "region", "points", "phase_disagreements", "mean_abs_percent",
-                                          "max_abs_percent", "within_1_percent", "within_5_percent"])
-    summary.attrs["units"] = {"mean_abs_percent": "%", "max_abs_percent": "%", "within_1_percent": "-",
-                              "within_5_percent": "-"}
+    summary = pd.DataFrame(rows, columns=list(SUMMARY_COLUMNS))
+    summary.attrs["units"] = {"points": "", "phase_disagreements": "", "mean_abs_percent": "%",
+                              "max_abs_percent": "%", "percent_within_1": "%", "percent_within_5": "%"}
     return summary

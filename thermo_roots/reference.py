@@ -2,10 +2,13 @@
 
 This module is the only code that drives CoolProp's state objects. It evaluates the
 fluid's multiparameter Helmholtz-energy equation (CoolProp's ``HEOS`` backend, one
-``AbstractState`` per fluid and process) at the same knowns as a solved model state and
+``AbstractState`` per fluid and thread) at the same knowns as a solved model state and
 reports the deviations. A state the reference cannot give -- below its triple point,
 beyond its temperature or pressure limits, in the solid, or where CoolProp raises -- comes
-back as *unavailable* with a readable reason, never as an exception out of a sweep.
+back as *unavailable* with a readable reason, never as an exception out of a sweep; so
+does every state of a fluid without a reference equation (no ``library_name``, or one
+CoolProp does not know). Threads never share a state object, so any
+``concurrent.futures.Executor`` -- threads, processes, a cluster's -- gives the serial result.
 
 Only the ``HEOS`` backend is used: the tabular backends have crashed the process on bulk
 calls. ``PropsSI`` is not used either: the low-level ``update`` is several times faster.
@@ -23,11 +26,13 @@ from __future__ import annotations
 import functools
 import html
 import math
+import threading
+import types
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from .errors import DomainError, InputError
+from .errors import DomainError, InputError, UnknownFluidError
 from .inversion import CAUTION, saturation
 from .models import R, _scalar_or_array
 from .units import to_si
@@ -42,20 +47,54 @@ AUTO_PROGRESS_ABOVE = 5000
 #: The reason given to states a run did not reach because it was interrupted.
 INTERRUPTED = "not checked: the run was interrupted before this state"
 
+_LIMIT_KEYS = ("T_min", "T_max", "P_max", "P_triple", "Tc", "Pc", "v_c")
 _FIELDS = ("T", "P", "v", "quality", "P_sat", "T_sat", "v_liquid", "v_vapor")
 
 
 # --------------------------------------------------------------------------- CoolProp access
 
-@functools.lru_cache(maxsize=None)
-def _abstract_state(library_name: str):
-    """One HEOS AbstractState per fluid and process, with its limits."""
+#: Per thread, {library name: CoolProp AbstractState}. A state object is updated and then
+#: read in separate calls, so two threads sharing one would read each other's states.
+_THREAD_STATES = threading.local()
+
+
+def _new_abstract_state(library_name: str):
+    """A fresh HEOS AbstractState; UnknownFluidError when CoolProp does not know the name."""
     import CoolProp
 
-    state = CoolProp.AbstractState("HEOS", library_name)
-    limits = dict(T_min=max(state.Tmin(), state.Ttriple()), T_max=state.Tmax(), P_max=state.pmax(),
-                  P_triple=state.p_triple(), Tc=state.T_critical(), Pc=state.p_critical(),
-                  v_c=1.0 / state.rhomolar_critical(), melting=state.has_melting_line())
+    try:
+        return CoolProp.AbstractState("HEOS", library_name)
+    except ValueError as error:
+        raise UnknownFluidError(
+            f"library_name={library_name!r} is not a fluid of CoolProp's library ({error}); use a name from "
+            "thermo_roots.fluid_names() (get_fluid finds it by its usual name), or library_name=None for a fluid without a reference "
+            "equation.") from None
+
+
+@functools.lru_cache(maxsize=None)
+def _library_limits(library_name: str):
+    """The reference equation's limits and constants for a fluid (read-only, shared)."""
+    state = _new_abstract_state(library_name)
+    return types.MappingProxyType(dict(
+        T_min=max(state.Tmin(), state.Ttriple()), T_max=state.Tmax(), P_max=state.pmax(),
+        P_triple=state.p_triple(), Tc=state.T_critical(), Pc=state.p_critical(),
+        v_c=1.0 / state.rhomolar_critical(), melting=state.has_melting_line(),
+        omega=state.acentric_factor(), molar_mass=state.molar_mass()))
+
+
+def _abstract_state(library_name: str):
+    """This thread's HEOS AbstractState of the fluid, and the fluid's limits.
+
+    One state object per fluid *and thread* (each worker process has its own threads), so
+    an update and the reads that follow it can never interleave with another thread's.
+    """
+    limits = _library_limits(library_name)
+    states = getattr(_THREAD_STATES, "by_fluid", None)
+    if states is None:
+        states = _THREAD_STATES.by_fluid = {}
+    state = states.get(library_name)
+    if state is None:
+        state = states[library_name] = _new_abstract_state(library_name)
     return state, limits
 
 
@@ -79,7 +118,7 @@ def reference_limits(fluid) -> dict:
     P_triple [Pa], and its critical point Tc [K], Pc [Pa], v_c [m^3/mol]; raises InputError
     for a fluid without a library name."""
     name = _library_name(fluid)
-    return {k: v for k, v in _abstract_state(name)[1].items() if k != "melting"}
+    return {k: v for k, v in _library_limits(name).items() if k in _LIMIT_KEYS}
 
 
 def _library_name(fluid) -> str:
@@ -141,7 +180,7 @@ def _reference_chunk(library_name: str, pair: str, a, b, with_saturation: bool =
         P = x if first == "P" else (y if second == "P" else math.nan)
         reason = _limit_reason(limits, T, P)
         if not reason and second == "v" and y <= 0.0:
-            reason = f"v = {y:.6g} m3/mol is not positive"
+            reason = f"v = {y:.6g} m³/mol is not positive"
         if not reason and second == "quality" and not 0.0 <= y <= 1.0:
             reason = f"quality = {y:.6g} is outside [0, 1]"
         if not reason and second == "quality":
@@ -197,11 +236,56 @@ def _saturation_into(out, i, state, limits, T, P):
 
 
 def _resolve_progress(progress, n):
-    if progress == "auto":
+    if isinstance(progress, str) and progress == "auto":
         return n > AUTO_PROGRESS_ABOVE
-    if progress in (True, False):
+    if isinstance(progress, (bool, np.bool_)):
         return bool(progress)
-    raise InputError(f"progress={progress!r}: give True, False or 'auto'.")
+    if isinstance(progress, str):
+        raise InputError(f"progress={progress!r} is not an option: give True, False or 'auto' (a bar above "
+                         f"{AUTO_PROGRESS_ABOVE} states).")
+    raise TypeError(f"progress must be True, False or 'auto'; got {_given(progress)}.")
+
+
+def _given(value) -> str:
+    """A value as a message shows it: its type and a short repr."""
+    text = repr(value)
+    if len(text) > 60:
+        text = text[:57] + "..."
+    return f"{type(value).__name__} {text}"
+
+
+def whole_number(value, name: str, *, minimum: int = 1, example: str = "", allow_none: bool = False):
+    """``value`` as an int, or a clear error naming the argument.
+
+    Accepts Python and numpy integers and floats with a whole value (2.0); refuses True and
+    False, NaN, fractions (2.5), text and anything below ``minimum``. TypeError for a wrong
+    type, InputError for a number that is not allowed.
+    """
+    hint = f" Try {example}." if example else ""
+    if value is None and allow_none:
+        return None
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, float, np.integer, np.floating)):
+        raise TypeError(f"{name} must be a whole number of at least {minimum}; got {_given(value)}.{hint}")
+    if not (math.isfinite(value) and float(value) == math.floor(value)) or value < minimum:
+        raise InputError(f"{name}={value!r} is not allowed: it must be a whole number of at least {minimum}."
+                         f"{hint}")
+    return int(value)
+
+
+def _check_run_options(*, progress=False, executor=None, chunk_size=None, on_interrupt="raise",
+                       with_saturation=True):
+    """Refuse bad run options up front, each error naming the argument and what is allowed."""
+    _resolve_progress(progress, 0)
+    if executor is not None and not callable(getattr(executor, "submit", None)):
+        raise TypeError(f"executor must be a concurrent.futures.Executor (anything with submit(), such as "
+                        f"ThreadPoolExecutor(4), ProcessPoolExecutor() or a Dask client's get_executor()) or "
+                        f"None; got {_given(executor)}.")
+    whole_number(chunk_size, "chunk_size", minimum=1, example=f"chunk_size={DEFAULT_CHUNK}", allow_none=True)
+    if not (isinstance(on_interrupt, str) and on_interrupt in ("raise", "partial")):
+        raise InputError(f"on_interrupt={on_interrupt!r} is not an option: give 'raise' (stop with the "
+                         "KeyboardInterrupt) or 'partial' (keep the states checked so far).")
+    if not isinstance(with_saturation, (bool, np.bool_)):
+        raise TypeError(f"with_saturation must be True or False; got {_given(with_saturation)}.")
 
 
 def evaluate_reference(library_name: str, pair: str, a, b, *, with_saturation: bool = True,
@@ -235,15 +319,13 @@ def evaluate_reference(library_name: str, pair: str, a, b, *, with_saturation: b
         The arrays of :func:`_reference_chunk` in input order, and how many leading states
         were evaluated (all of them unless interrupted).
     """
-    if pair not in REFERENCE_PAIRS:
+    if not (isinstance(pair, str) and pair in REFERENCE_PAIRS):
         raise InputError(f"pair={pair!r} is not one of {', '.join(REFERENCE_PAIRS)}.")
-    if on_interrupt not in ("raise", "partial"):
-        raise InputError(f"on_interrupt={on_interrupt!r}: give 'raise' or 'partial'.")
+    _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size, on_interrupt=on_interrupt,
+                       with_saturation=with_saturation)
     a, b = np.broadcast_arrays(np.asarray(a, dtype=float).ravel(), np.asarray(b, dtype=float).ravel())
     n = a.size
-    size = int(chunk_size or DEFAULT_CHUNK)
-    if size < 1:
-        raise InputError(f"chunk_size={chunk_size!r} must be a positive whole number.")
+    size = whole_number(chunk_size, "chunk_size", allow_none=True) or DEFAULT_CHUNK
     starts = list(range(0, n, size)) or [0]
     show = _resolve_progress(progress, n)
     pieces, completed = [], 0
@@ -289,13 +371,15 @@ class ReferenceState:
     P : pressure [Pa]
     v : molar volume [m^3/mol] (mixture mean in the two-phase region)
     phase : "liquid", "vapor", "supercritical", "two-phase" ("" where unavailable)
-    quality : vapour mole fraction [-] in the two-phase region, else NaN
+    quality : vapor mole fraction [-] in the two-phase region, else NaN
     P_sat : saturation pressure at T [Pa], NaN at or above Tc
     T_sat : saturation temperature at P [K], NaN at or above Pc
     v_liquid, v_vapor : saturated volumes at T [m^3/mol]
     available : bool
     reason : why a state is unavailable ("" where available)
     completed : how many leading states were evaluated (less than the size if interrupted)
+    warnings : sentences about the whole result, e.g. the fluid's constants differ from the
+        reference equation's (see :func:`constant_warnings`); () when there is nothing to say
     """
 
     fluid: object = field(repr=False)
@@ -311,6 +395,7 @@ class ReferenceState:
     available: object = field(repr=False)
     reason: object = field(repr=False)
     completed: int = field(repr=False, default=0)
+    warnings: tuple = field(repr=False, default=())
 
     @property
     def Z(self):
@@ -323,13 +408,15 @@ class ReferenceState:
         return _scalar_or_array(self.fluid.molar_mass / np.asarray(self.v))
 
     def __repr__(self):
+        name = _fluid_name(self.fluid)
         if np.ndim(self.T):
-            return (f"ReferenceState({self.fluid.name!r}, {np.size(self.T)} states, "
-                    f"{int(np.sum(self.available))} available)")
-        if not self.available:
-            return f"ReferenceState({self.fluid.name!r}, unavailable: {self.reason})"
-        return (f"ReferenceState({self.fluid.name!r}, T={self.T:.6g} K, P={self.P:.6g} Pa, "
-                f"v={self.v:.6g} m3/mol, phase={self.phase!r})")
+            text = f"ReferenceState({name!r}, {np.size(self.T)} states, {int(np.sum(self.available))} available)"
+        elif not self.available:
+            text = f"ReferenceState({name!r}, unavailable: {self.reason})"
+        else:
+            text = (f"ReferenceState({name!r}, T={self.T:.6g} K, P={self.P:.6g} Pa, "
+                    f"v={self.v:.6g} m³/mol, phase={self.phase!r})")
+        return text + _warning_text(self.warnings)
 
     def _repr_html_(self):
         return f"<pre>{html.escape(repr(self))}</pre>"
@@ -356,8 +443,8 @@ def reference_state(fluid, *, with_saturation: bool = True, progress=False, exec
 
     Parameters
     ----------
-    fluid : Fluid
-        A library fluid (with ``library_name``).
+    fluid : Fluid or str
+        A library fluid (with ``library_name``), or its name.
     with_saturation, progress, executor, chunk_size
         As in :func:`evaluate_reference`.
     **knowns
@@ -374,20 +461,95 @@ def reference_state(fluid, *, with_saturation: bool = True, progress=False, exec
     ----------
     Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp).
     """
+    _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size,
+                       with_saturation=with_saturation)
+    fluid = _as_fluid(fluid, "reference_state")
     pair, a, b = _reference_knowns(fluid, knowns)
     shape = np.broadcast(a, b).shape
-    if not getattr(fluid, "library_name", None):
-        values, completed = _unavailable_values(int(np.prod(shape)), _no_library_reason(fluid)), 0
-    else:
-        values, completed = evaluate_reference(fluid.library_name, pair, a, b, with_saturation=with_saturation,
-                                               progress=progress, executor=executor, chunk_size=chunk_size)
+    values, completed, notes = _fluid_reference(fluid, pair, a, b, shape, with_saturation=with_saturation,
+                                                progress=progress, executor=executor, chunk_size=chunk_size)
     reason = values.pop("reason")
     shaped = _shape_values({**values, "reason": reason, "available": reason == ""}, shape)
-    return ReferenceState(fluid=fluid, completed=completed, **shaped)
+    return ReferenceState(fluid=fluid, completed=completed, warnings=notes, **shaped)
+
+
+def _fluid_name(fluid) -> str:
+    """The fluid's name as engineers write it (``display_name`` where the fluid has one)."""
+    return str(getattr(fluid, "display_name", None) or getattr(fluid, "name", fluid))
 
 
 def _no_library_reason(fluid):
-    return f"fluid {getattr(fluid, 'name', fluid)!r} is a user fluid without a reference equation (no library_name)"
+    return f"fluid {_fluid_name(fluid)!r} is a user fluid without a reference equation (no library_name)"
+
+
+def _unknown_library_reason(fluid):
+    return (f"the reference library does not know library_name={fluid.library_name!r} (fluid "
+            f"{_fluid_name(fluid)!r}), so there is no reference equation to compare with; "
+            "thermo_roots.fluid_names() lists the names it knows")
+
+
+def library_reason(fluid) -> str:
+    """Why the fluid has no reference equation ("" when it has one): no library name, or a
+    library name CoolProp does not know."""
+    if not getattr(fluid, "library_name", None):
+        return _no_library_reason(fluid)
+    try:
+        _library_limits(fluid.library_name)
+    except UnknownFluidError:
+        return _unknown_library_reason(fluid)
+    return ""
+
+
+#: How far a fluid's constants may be from its reference equation's before a cross-check
+#: warns: relative for Tc, Pc and the molar mass, absolute for the acentric factor. Wide
+#: enough for handbook values rounded to four digits (common practice).
+CONSTANT_TOLERANCE = {"Tc": 5e-3, "Pc": 5e-3, "molar_mass": 5e-3, "omega": 0.01}
+
+
+def constant_warnings(fluid) -> tuple:
+    """Sentences saying where the fluid's constants differ from those of the reference
+    equation it is compared with (beyond :data:`CONSTANT_TOLERANCE`); () when they agree or
+    the fluid has no reference equation."""
+    if library_reason(fluid):
+        return ()
+    lib = _library_limits(fluid.library_name)
+    units = {"Tc": ("K", 1.0), "Pc": ("bar", 1e-5), "molar_mass": ("g/mol", 1e3), "omega": ("", 1.0)}
+    differ = []
+    for key, tol in CONSTANT_TOLERANCE.items():
+        mine, theirs = float(getattr(fluid, key)), float(lib[key])
+        off = abs(mine - theirs) if key == "omega" else abs(mine - theirs) / abs(theirs)
+        if not off <= tol:
+            unit, scale = units[key]
+            differ.append(f"{key} = {mine * scale:.6g} {unit}".rstrip() + f" against {theirs * scale:.6g} {unit}".rstrip())
+    if not differ:
+        return ()
+    return (f"The constants of fluid {_fluid_name(fluid)!r} differ from those of the reference equation it is "
+            f"compared with (library_name={fluid.library_name!r}): {'; '.join(differ)}. The deviations mix the "
+            f"model's error with that difference; for the library's constants use "
+            f"get_fluid({fluid.library_name!r}), or set library_name=None for a fluid of your own.",)
+
+
+def _fluid_reference(fluid, pair, a, b, shape, **options):
+    """(values, completed, warnings) of the reference at the knowns, for any fluid: a
+    fluid without a (known) reference equation gives unavailable values, not an error."""
+    n = int(np.prod(shape))
+    reason = library_reason(fluid)
+    if reason:
+        return _unavailable_values(n, reason), n, ()
+    values, completed = evaluate_reference(fluid.library_name, pair, a, b, **options)
+    return values, completed, constant_warnings(fluid)
+
+
+def _as_fluid(fluid, where: str):
+    """A Fluid from a Fluid or a library fluid's name; TypeError for anything else."""
+    from .fluids import Fluid, get_fluid
+
+    if isinstance(fluid, str):
+        return get_fluid(fluid)
+    if not isinstance(fluid, Fluid):
+        raise TypeError(f"{where}(fluid, ...) needs a Fluid or a library fluid's name, e.g. get_fluid('propane') "
+                        f"or 'propane'; got {_given(fluid)}.")
+    return fluid
 
 
 def _reference_knowns(fluid, knowns):
@@ -427,7 +589,7 @@ class ReferenceSaturation:
         if np.ndim(self.T):
             return f"ReferenceSaturation({self.fluid.name!r}, {np.size(self.T)} points)"
         return (f"ReferenceSaturation({self.fluid.name!r}, T={self.T:.6g} K, P={self.P:.6g} Pa, "
-                f"v_liquid={self.v_liquid:.6g} m3/mol, v_vapor={self.v_vapor:.6g} m3/mol)")
+                f"v_liquid={self.v_liquid:.6g} m³/mol, v_vapor={self.v_vapor:.6g} m³/mol)")
 
     def _repr_html_(self):
         return f"<pre>{html.escape(repr(self))}</pre>"
@@ -454,6 +616,7 @@ def reference_saturation(fluid, T=None, P=None) -> ReferenceSaturation:
     ----------
     Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp).
     """
+    fluid = _as_fluid(fluid, "reference_saturation")
     if (T is None) == (P is None):
         raise InputError("reference_saturation() needs exactly one of T= or P=.")
     known = {"T": T} if T is not None else {"P": P}
@@ -495,8 +658,10 @@ class CrossCheck:
     reference_P_sat : saturation pressure at T [Pa], NaN at or above Tc
     reference_T_sat : saturation temperature at P [K], NaN at or above Pc
     reference_v_liquid, reference_v_vapor : saturated volumes at T [m^3/mol]
-    reference_quality : vapour mole fraction [-] where the reference is two-phase
+    reference_quality : vapor mole fraction [-] where the reference is two-phase
     completed : how many leading states were checked (less than the size if interrupted)
+    warnings : sentences about the whole check, e.g. the fluid's constants differ from those
+        of the reference equation (see :func:`constant_warnings`); () when there is nothing to say
     """
 
     state: object = field(repr=False)
@@ -519,6 +684,7 @@ class CrossCheck:
     reference_v_vapor: object = field(repr=False)
     reference_quality: object = field(repr=False)
     completed: int = field(repr=False, default=0)
+    warnings: tuple = field(repr=False, default=())
 
     #: Names of the per-state fields, in display order (for tables).
     FIELDS = ("available", "reason", "reference_v", "reference_Z", "reference_rho_mass", "reference_P",
@@ -528,63 +694,137 @@ class CrossCheck:
 
     def __repr__(self):
         s = self.state
+        name, model = _fluid_name(s.model.fluid), s.model.name
         if np.ndim(self.available):
             dev = np.asarray(self.deviation_v_percent, dtype=float)
             mean = np.nanmean(np.abs(dev)) if np.any(np.isfinite(dev)) else math.nan
-            return (f"CrossCheck({s.model.fluid.name!r}, {s.model.name}, {np.size(self.available)} states, "
+            text = (f"CrossCheck({name!r}, {model}, {np.size(self.available)} states, "
                     f"{int(np.sum(self.available))} available, mean |deviation v| = {mean:.3g} %)")
-        if not self.available:
-            return f"CrossCheck({s.model.fluid.name!r}, {s.model.name}, unavailable: {self.reason})"
-        main = (f"deviation P = {self.deviation_P_percent:+.3g} %" if math.isnan(self.deviation_v_percent)
-                else f"deviation v = {self.deviation_v_percent:+.3g} %")
-        return (f"CrossCheck({s.model.fluid.name!r}, {s.model.name}, {main}, "
-                f"phase {s.phase!r} vs reference {self.reference_phase!r})")
+        elif not self.available:
+            text = f"CrossCheck({name!r}, {model}, unavailable: {self.reason})"
+        else:
+            main = (f"deviation P = {self.deviation_P_percent:+.3g} %" if math.isnan(self.deviation_v_percent)
+                    else f"deviation v = {self.deviation_v_percent:+.3g} %")
+            text = f"CrossCheck({name!r}, {model}, {main}, phase {s.phase!r} vs reference {self.reference_phase!r})"
+        return text + _warning_text(self.warnings)
 
-    def rows(self) -> list[tuple[str, str, str, str]]:
-        """(quantity [unit], model, reference, deviation) rows of a scalar cross-check."""
+    def _table(self):
+        """[(row, large)]: the rows of :meth:`rows` and whether each deviation is large
+        (beyond :data:`LARGE_DEVIATION_PERCENT` or :data:`LARGE_DEVIATION_K`, or phases that differ)."""
         if np.ndim(self.available):
-            raise InputError("rows() shows one state; cross-check a scalar state or index the arrays.")
+            raise InputError("rows() shows one state; cross-check a scalar state or index the arrays "
+                             "(e.g. cross_check(solve(model, T=300.0, P=1e5)).rows()).")
         s = self.state
         M = s.model.fluid.molar_mass
+        nan = math.nan
+        P_sat, T_sat = _model_value(s, "P_sat"), _model_value(s, "T_sat")
+        v_liquid, v_vapor = _model_value(s, "v_liquid"), _model_value(s, "v_vapor")
 
         def fmt(x, scale=1.0, digits=6):
             return "-" if x is None or not np.isfinite(x) else f"{x * scale:.{digits}g}"
 
-        def dev(x, unit="%"):
-            return "-" if not np.isfinite(x) else f"{x:+.3g} {unit}"
+        def percent(x):
+            x = float(x)
+            return ("-" if not math.isfinite(x) else f"{x:+.3g} %"), math.isfinite(x) and abs(x) > LARGE_DEVIATION_PERCENT
 
-        dev_v, dev_rho = self.deviation_v_percent, self.deviation_rho_percent
-        rows = [
-            ("Phase", str(s.phase), self.reference_phase or "-", "agrees" if self.phase_agrees else "DIFFERS"),
-            ("Temperature [K]", fmt(s.T), fmt(self.reference_T), dev(self.deviation_T_K, "K")),
-            ("Pressure [bar]", fmt(s.P, 1e-5), fmt(self.reference_P, 1e-5), dev(self.deviation_P_percent)),
-            ("Molar volume [L/mol]", fmt(s.v, 1e3), fmt(self.reference_v, 1e3), dev(dev_v)),
-            ("Mass density [kg/m³]", fmt(s.rho_mass), fmt(self.reference_rho_mass), dev(dev_rho)),
-            ("Compressibility factor Z [-]", fmt(s.Z), fmt(self.reference_Z), dev(_percent(s.Z, self.reference_Z))),
-            ("Saturation pressure at T [bar]", fmt(s.P_sat, 1e-5), fmt(self.reference_P_sat, 1e-5),
-             dev(_percent(s.P_sat, self.reference_P_sat))),
+        def kelvin(x):
+            x = float(x)
+            return ("-" if not math.isfinite(x) else f"{x:+.3g} K"), math.isfinite(x) and abs(x) > LARGE_DEVIATION_K
+
+        if not self.available:
+            phase = (f"unavailable: {self.reason}", False)
+        elif self.phase_agrees:
+            phase = ("agrees", False)
+        else:
+            phase = ("DIFFERS", True)
+        table = [
+            ("Phase", str(s.phase), self.reference_phase or "-", phase),
+            ("Temperature [K]", fmt(s.T), fmt(self.reference_T), kelvin(self.deviation_T_K)),
+            ("Pressure [bar]", fmt(s.P, 1e-5), fmt(self.reference_P, 1e-5), percent(self.deviation_P_percent)),
+            ("Molar volume [L/mol]", fmt(s.v, 1e3), fmt(self.reference_v, 1e3), percent(self.deviation_v_percent)),
+            ("Mass density [kg/m³]", fmt(s.rho_mass), fmt(self.reference_rho_mass),
+             percent(self.deviation_rho_percent)),
+            ("Compressibility factor Z [-]", fmt(s.Z), fmt(self.reference_Z), percent(_percent(s.Z, self.reference_Z))),
+            ("Saturation pressure at T [bar]", fmt(P_sat, 1e-5), fmt(self.reference_P_sat, 1e-5),
+             percent(_percent(P_sat, self.reference_P_sat))),
         ]
         if s.phase == "two-phase" or self.reference_phase == "two-phase":
-            rows += [
-                ("Vapour quality [-]", fmt(s.quality, digits=4), fmt(self.reference_quality, digits=4), "-"),
-                ("Saturation temperature at P [K]", fmt(s.T_sat), fmt(self.reference_T_sat),
-                 dev(np.asarray(s.T_sat) - self.reference_T_sat, "K")),
-                ("Saturated liquid density [kg/m³]", fmt(M / s.v_liquid), fmt(M / self.reference_v_liquid),
-                 dev(_percent(self.reference_v_liquid, s.v_liquid))),
-                ("Saturated vapour density [kg/m³]", fmt(M / s.v_vapor), fmt(M / self.reference_v_vapor),
-                 dev(_percent(self.reference_v_vapor, s.v_vapor))),
+            table += [
+                ("Vapor quality [-]", fmt(s.quality, digits=4), fmt(self.reference_quality, digits=4), ("-", False)),
+                ("Saturation temperature at P [K]", fmt(T_sat), fmt(self.reference_T_sat),
+                 kelvin(T_sat - self.reference_T_sat if math.isfinite(T_sat) else nan)),
+                ("Saturated liquid density [kg/m³]", fmt(M / v_liquid), fmt(M / self.reference_v_liquid),
+                 percent(_percent(self.reference_v_liquid, v_liquid))),
+                ("Saturated vapor density [kg/m³]", fmt(M / v_vapor), fmt(M / self.reference_v_vapor),
+                 percent(_percent(self.reference_v_vapor, v_vapor))),
             ]
-        return rows
+        return [((q, m, r, d[0]), d[1]) for q, m, r, d in table]
+
+    def rows(self) -> list[tuple[str, str, str, str]]:
+        """(quantity [unit], model, reference, deviation) rows of a scalar cross-check.
+
+        Where the reference is unavailable the Phase row's last column says
+        "unavailable: <reason>" and the reference columns show "-".
+        """
+        return [row for row, _ in self._table()]
+
+    def large_deviations(self) -> list[bool]:
+        """One flag per row of :meth:`rows`: True where the deviation is beyond
+        :data:`LARGE_DEVIATION_PERCENT` (:data:`LARGE_DEVIATION_K` for temperatures) or the
+        phases differ, as the HTML table highlights them (style :data:`LARGE_DEVIATION_STYLE`,
+        legend :data:`LARGE_DEVIATION_LEGEND`)."""
+        return [large for _, large in self._table()]
 
     def _repr_html_(self):
         s = self.state
-        title = html.escape(f"{s.model.fluid.name} — {s.model.name} against the reference equation (CoolProp HEOS)")
+        title = html.escape(f"{_fluid_name(s.model.fluid)} — {s.model.name} against the reference equation "
+                            "(CoolProp HEOS)")
         caution = f"<p style='font-size:smaller'><b>Caution.</b> {html.escape(CAUTION)}</p>"
-        if np.ndim(self.available) or not self.available:
-            return f"<div><p><b>{title}</b></p><pre>{html.escape(repr(self))}</pre>{caution}</div>"
+        notes = "".join(f"<p><b>Warning.</b> {html.escape(w)}</p>" for w in self.warnings)
+        if np.ndim(self.available):
+            return f"<div><p><b>{title}</b></p><pre>{html.escape(repr(self))}</pre>{notes}{caution}</div>"
         head = "<tr><th>quantity</th><th>model</th><th>reference</th><th>deviation</th></tr>"
-        body = "".join("<tr>" + "".join(f"<td>{html.escape(c)}</td>" for c in row) + "</tr>" for row in self.rows())
-        return f"<div><table><caption>{title}</caption>{head}{body}</table>{caution}</div>"
+        body = []
+        for row, large in self._table():
+            cells = [f"<td>{html.escape(c)}</td>" for c in row[:3]]
+            cells.append(f"<td style='{LARGE_DEVIATION_STYLE}'>{html.escape(row[3])}</td>" if large
+                         else f"<td>{html.escape(row[3])}</td>")
+            body.append("<tr>" + "".join(cells) + "</tr>")
+        legend = (f"<p style='font-size:smaller'>{html.escape(LARGE_DEVIATION_LEGEND)}</p>"
+                  if self.available else
+                  f"<p><b>Reference unavailable.</b> {html.escape(str(self.reason))}</p>")
+        return (f"<div><table><caption>{title}</caption>{head}{''.join(body)}</table>{legend}{notes}"
+                f"{caution}</div>")
+
+
+#: Deviations beyond this many percent (either sign) are highlighted in a cross-check's table:
+#: well outside what a cubic equation usually gives for a vapor or a supercritical gas
+#: (common practice: a few percent) though not unusual for liquid density.
+LARGE_DEVIATION_PERCENT = 5.0
+#: Temperature deviations beyond this many kelvin are highlighted likewise.
+LARGE_DEVIATION_K = 2.0
+LARGE_DEVIATION_LEGEND = (f"Deviations beyond ±{LARGE_DEVIATION_PERCENT:g} % (±{LARGE_DEVIATION_K:g} K for "
+                          "temperatures), and a phase that differs, are shown in bold on a shaded background.")
+LARGE_DEVIATION_STYLE = "font-weight:bold; background-color:#f6d6a8; color:#5a2a00"
+
+
+def _warning_text(notes) -> str:
+    return "".join(f"\nWarning: {w}" for w in notes)
+
+
+def _model_value(state, name):
+    """A model state's property, or NaN where the model has none there (e.g. no saturation
+    pressure below the lowest temperature it can solve)."""
+    from .errors import ThermoRootsError
+
+    try:
+        value = getattr(state, name)
+    except ThermoRootsError:
+        return math.nan
+    try:
+        return float(value)
+    except (TypeError, ValueError):
+        return math.nan
 
 
 def _percent(model, reference):
@@ -643,6 +883,9 @@ def cross_check(state, *, progress=False, executor=None, chunk_size=None, on_int
     Pruss, A. (2002), J. Phys. Chem. Ref. Data 31, 387-535 (water): two of the reference
     equations behind it.
     """
+    _check_state(state)
+    _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size, on_interrupt=on_interrupt,
+                       with_saturation=with_saturation)
     pair = state_pair(state)
     T, P, v = (np.asarray(getattr(state, k), dtype=float) for k in ("T", "P", "v"))
     first, second = pair.split(",")
@@ -651,17 +894,26 @@ def cross_check(state, *, progress=False, executor=None, chunk_size=None, on_int
     if b is None:
         b = np.asarray(state.knowns["quality"], dtype=float) * np.ones_like(a)
     shape = np.shape(state.T)
-    fluid = state.model.fluid
-    if not getattr(fluid, "library_name", None):
-        values, completed = _unavailable_values(int(np.prod(shape)), _no_library_reason(fluid)), 0
-    else:
-        values, completed = evaluate_reference(fluid.library_name, pair, a, b, with_saturation=with_saturation,
-                                               progress=progress, executor=executor, chunk_size=chunk_size,
-                                               on_interrupt=on_interrupt)
-    return _combine(state, pair, values, completed)
+    values, completed, notes = _fluid_reference(state.model.fluid, pair, a, b, shape,
+                                                with_saturation=with_saturation, progress=progress,
+                                                executor=executor, chunk_size=chunk_size, on_interrupt=on_interrupt)
+    return _combine(state, pair, values, completed, notes)
 
 
-def _combine(state, pair, ref, completed):
+def _check_state(state):
+    """A TypeError unless ``state`` is a solved State (the message says what to pass)."""
+    from .inversion import State
+
+    if isinstance(state, State):
+        return
+    hint = (" A text is not a state: solve one first, or for the reference alone at given knowns use "
+            "reference_state(get_fluid('propane'), T=300.0, P=1e5).") if isinstance(state, str) else ""
+    raise TypeError(f"cross_check(state) needs a State from thermo_roots.solve(), e.g. "
+                    f"cross_check(solve(PengRobinson(get_fluid('propane')), T=300.0, P=1e5)); "
+                    f"got {_given(state)}.{hint}")
+
+
+def _combine(state, pair, ref, completed, notes=()):
     """Deviations of the model state from reference values (flat arrays in state order)."""
     shape = np.shape(state.T)
     flat = {k: np.asarray(getattr(state, k), dtype=float).ravel() for k in ("T", "P", "v")}
@@ -684,7 +936,7 @@ def _combine(state, pair, ref, completed):
         reference_P_sat=ref["P_sat"], reference_T_sat=ref["T_sat"], reference_v_liquid=ref["v_liquid"],
         reference_v_vapor=ref["v_vapor"], reference_quality=ref["quality"],
     )
-    return CrossCheck(state=state, completed=completed, **_shape_values(values, shape))
+    return CrossCheck(state=state, completed=completed, warnings=tuple(notes), **_shape_values(values, shape))
 
 
 # --------------------------------------------------------------------------- volume translation
@@ -732,6 +984,9 @@ def fit_volume_shift(model_class, fluid, Tr: float = 0.7) -> float:
         model_class = type(model_class)
     if not (isinstance(model_class, type) and issubclass(model_class, CubicModel)):
         raise InputError(f"fit_volume_shift needs a cubic model class such as PengRobinson, not {model_class!r}.")
+    fluid = _as_fluid(fluid, "fit_volume_shift")
+    if isinstance(Tr, (bool, np.bool_)) or not isinstance(Tr, (int, float, np.integer, np.floating)):
+        raise TypeError(f"Tr must be a number between 0 and 1 (a reduced temperature T/Tc); got {_given(Tr)}.")
     if not 0.0 < Tr < 1.0:
         raise DomainError(f"Tr = {Tr!r} must lie between 0 and 1 (a saturated liquid exists only below Tc).")
     T = Tr * fluid.Tc

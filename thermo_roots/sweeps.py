@@ -9,14 +9,18 @@ Every function returns a :class:`pandas.DataFrame`, one row per state. Conventio
 * ``frame.attrs`` also records ``fluid`` (name), ``fluid_constants`` (Tc [K], Pc [Pa],
   omega, molar_mass [kg/mol], library_name), ``model`` (name), ``model_short_name``,
   ``volume_shift`` [m^3/mol], ``table`` (what sweep), ``version`` (of thermo_roots),
-  ``caution`` and ``interrupted``.
+  ``caution`` and ``interrupted``; with the reference, ``reference_warnings`` when the
+  fluid's constants differ from its reference equation's (also issued as a warning).
+* Arguments are checked before any work: ``n`` a whole number of at least 2, ``log``
+  None, True or False, ``reference`` True or False, ``model`` a model built for a fluid.
 * Ranges: a list or array gives the values themselves (numbers in SI, or text with
   units); a tuple ``(start, stop)`` or :func:`between` gives ``n`` evenly spaced values
   (logarithmically for pressures and volumes, linearly for temperatures, unless
   ``log=`` says otherwise); a single number or text is one value.
 * ``reference=True`` adds the cross-check with the reference equation per state
   (see :func:`thermo_roots.reference.cross_check`): ``progress`` shows a bar,
-  ``executor`` spreads the work over processes, and an interruption (Ctrl-C, the
+  ``executor`` spreads the work over threads, processes or a cluster's workers (any
+  :class:`concurrent.futures.Executor`, e.g. a Dask client's ``get_executor()``), and an interruption (Ctrl-C, the
   notebook's stop button) returns the rows finished so far with
   ``attrs["interrupted"] = True`` and a warning.
 
@@ -39,8 +43,9 @@ import pandas as pd
 
 from .errors import DomainError, InputError
 from .inversion import CAUTION, saturation, solve
-from .models import IdealGas, R
-from .reference import CrossCheck, cross_check, reference_limits, reference_saturation
+from .models import CubicModel, IdealGas, R
+from .reference import (CrossCheck, _check_run_options, _given, cross_check, library_reason, reference_limits,
+                        reference_saturation, whole_number)
 from .roots import find_root
 from .units import to_si
 
@@ -79,9 +84,47 @@ def between(start, stop, n: int = DEFAULT_POINTS, log: bool | None = None) -> Sp
     log : bool, optional
         Logarithmic spacing; default: for pressures and volumes, not for temperatures.
     """
-    if int(n) < 2:
-        raise InputError(f"n = {n!r}: a range needs at least 2 points.")
-    return Span(start, stop, int(n), log)
+    return Span(start, stop, check_points(n), check_log(log))
+
+
+def check_points(n, name: str = "n") -> int:
+    """The number of points of a range as an int: a whole number of at least 2, else a
+    TypeError (not a number) or InputError (0, -1, 2.5, NaN) naming the argument."""
+    return whole_number(n, name, minimum=2, example=f"{name}={DEFAULT_POINTS}")
+
+
+def check_log(log, name: str = "log"):
+    """``log`` is None (the default spacing), True or False."""
+    if log is None or isinstance(log, (bool, np.bool_)):
+        return None if log is None else bool(log)
+    raise TypeError(f"{name} must be True (logarithmic spacing), False (linear) or None (logarithmic for "
+                    f"pressures and volumes, linear for temperatures); got {_given(log)}.")
+
+
+def check_model(model, where: str):
+    """A TypeError unless ``model`` is a model built for a fluid (the message says how)."""
+    if isinstance(model, (CubicModel, IdealGas)):
+        return
+    if isinstance(model, type) and issubclass(model, (CubicModel, IdealGas)):
+        hint = f" This is the class; build the model for a fluid: {model.__name__}(get_fluid('propane'))."
+    elif isinstance(model, str):
+        hint = " A text is not a model; build one, e.g. PengRobinson(get_fluid('propane'))."
+    else:
+        hint = ""
+    raise TypeError(f"{where}() needs a model such as PengRobinson(get_fluid('propane')) or "
+                    f"IdealGas(get_fluid('nitrogen')) as its first argument; got {_given(model)}.{hint}")
+
+
+def _check_sweep(model, where, *, n=DEFAULT_POINTS, log=None, reference=False, progress="auto", executor=None,
+                 chunk_size=None):
+    """Check the arguments every sweep shares, before any work is done."""
+    check_model(model, where)
+    check_points(n)
+    check_log(log)
+    if not isinstance(reference, (bool, np.bool_)):
+        raise TypeError(f"reference must be True (add the reference equation beside each state) or False; "
+                        f"got {_given(reference)}.")
+    _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size)
 
 
 def _values(spec, quantity, *, molar_mass, n=DEFAULT_POINTS, log=None):
@@ -91,15 +134,19 @@ def _values(spec, quantity, *, molar_mass, n=DEFAULT_POINTS, log=None):
             raise InputError(f"A range is a tuple (start, stop); got {spec!r}. For given values pass a list.")
         spec = Span(spec[0], spec[1], n, log)
     if isinstance(spec, Span):
+        count = check_points(spec.n)
         lo, hi = (float(to_si(x, quantity, molar_mass=molar_mass)) for x in (spec.start, spec.stop))
         use_log = (quantity in _LOG_QUANTITIES) if spec.log is None else spec.log
         if use_log:
             if lo <= 0 or hi <= 0:
                 raise DomainError(f"A logarithmic range of {quantity} needs positive ends; got {lo:.6g} to {hi:.6g}.")
-            return np.geomspace(lo, hi, spec.n)
-        return np.linspace(lo, hi, spec.n)
+            return np.geomspace(lo, hi, count)
+        return np.linspace(lo, hi, count)
     if isinstance(spec, (list, np.ndarray, pd.Series, pd.Index)):
         items = list(np.asarray(spec, dtype=object).ravel())
+        if not items:
+            raise InputError(f"{quantity} = {spec!r} holds no values; give at least one, or a range "
+                             f"({quantity}=(start, stop) with n points).")
         return np.array([float(to_si(x, quantity, molar_mass=molar_mass)) for x in items], dtype=float)
     return np.atleast_1d(np.asarray(to_si(spec, quantity, molar_mass=molar_mass), dtype=float)).ravel()
 
@@ -107,7 +154,7 @@ def _values(spec, quantity, *, molar_mass, n=DEFAULT_POINTS, log=None):
 def _default_T(fluid, low, high):
     """(low Tc, high Tc) [K], the low end raised to the reference's triple point if higher."""
     lo = low * fluid.Tc
-    if fluid.library_name:
+    if not library_reason(fluid):
         lo = max(lo, reference_limits(fluid)["T_min"])
     return lo, high * fluid.Tc
 
@@ -128,11 +175,11 @@ def _unit_of(column: str) -> str:
     if column.endswith("_K"):
         return "K"
     base = column.removeprefix("reference_")
-    for prefix, unit in (("v_", "m3/mol"), ("rho_mass", "kg/m3"), ("rho", "mol/m3"), ("Z", "-"),
+    for prefix, unit in (("v_", "m³/mol"), ("rho_mass", "kg/m³"), ("rho", "mol/m³"), ("Z", "-"),
                          ("quality", "-"), ("P_sat", "Pa"), ("T_sat", "K")):
         if base.startswith(prefix):
             return unit
-    return {"T": "K", "P": "Pa", "v": "m3/mol"}.get(base, "")
+    return {"T": "K", "P": "Pa", "v": "m³/mol"}.get(base, "")
 
 
 def _attrs(model, table: str, **extra) -> dict:
@@ -189,6 +236,12 @@ def state_frame(state, *, reference=False, progress="auto", executor=None, chunk
     pandas.DataFrame
         SI values; units in ``attrs["units"]``.
     """
+    from .inversion import State
+
+    if not isinstance(state, State):
+        raise TypeError(f"state_frame(state) needs a State from thermo_roots.solve(); got {_given(state)}.")
+    _check_sweep(state.model, "state_frame", reference=reference, progress=progress, executor=executor,
+                 chunk_size=chunk_size)
     flat = {k: np.atleast_1d(np.asarray(getattr(state, k))).ravel()
             for k in ("T", "P", "v", "rho", "rho_mass", "Z", "phase", "quality", "v_liquid", "v_vapor", "metastable")}
     roots = np.asarray(state.root_volumes, dtype=float).reshape(-1, 3)
@@ -204,6 +257,10 @@ def state_frame(state, *, reference=False, progress="auto", executor=None, chunk
                             on_interrupt="partial")
         for name in CrossCheck.FIELDS:
             frame[_REFERENCE_RENAME.get(name, name)] = np.atleast_1d(np.asarray(getattr(check, name))).ravel()
+        if check.warnings:
+            attrs["reference_warnings"] = list(check.warnings)
+            for note in check.warnings:
+                warnings.warn(note, UserWarning, stacklevel=3)
         if check.completed < len(frame):
             frame = frame.iloc[:check.completed].copy()
             attrs["interrupted"] = True
@@ -242,6 +299,8 @@ def isotherm(model, T, P=None, v=None, *, n=DEFAULT_POINTS, log=None, branch="st
     ----------
     Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models, 2nd ed., ch. 3.
     """
+    _check_sweep(model, "isotherm", n=n, log=log, reference=reference, progress=progress, executor=executor,
+                 chunk_size=chunk_size)
     if P is not None and v is not None:
         raise InputError("isotherm() takes P or v, not both.")
     T = _scalar(T, "T")
@@ -274,6 +333,8 @@ def isobar(model, P, T=None, *, n=DEFAULT_POINTS, log=None, branch="stable", ref
     pandas.DataFrame
         ``attrs["P"]`` the pressure [Pa].
     """
+    _check_sweep(model, "isobar", n=n, log=log, reference=reference, progress=progress, executor=executor,
+                 chunk_size=chunk_size)
     P = _scalar(P, "P")
     T = _values(_default_T(model.fluid, 0.5, 1.5) if T is None else T, "T", molar_mass=None, n=n, log=log)
     state = solve(model, T=T, P=P, branch=branch)
@@ -300,6 +361,8 @@ def state_grid(model, T, P, *, n=DEFAULT_POINTS, log=None, branch="stable", refe
     pandas.DataFrame
         ``attrs["grid_shape"]`` is (number of T, number of P).
     """
+    _check_sweep(model, "state_grid", n=n, log=log, reference=reference, progress=progress, executor=executor,
+                 chunk_size=chunk_size)
     Ts = _values(T, "T", molar_mass=None, n=n, log=log)
     Ps = _values(P, "P", molar_mass=None, n=n, log=log)
     TT, PP = np.meshgrid(Ts, Ps, indexing="ij")
@@ -313,7 +376,7 @@ def isochore(model, v=None, *, rho=None, rho_mass=None, T=None, n=DEFAULT_POINTS
     """A closed vessel heated up: states at fixed molar volume along temperature.
 
     Below Tc a vessel filled more densely than the critical density holds liquid and
-    vapour until the liquid has expanded to fill it (the *liquid-full* point), after which
+    vapor until the liquid has expanded to fill it (the *liquid-full* point), after which
     the pressure climbs steeply with temperature; one filled less densely dries out
     instead (the *vapor-full* point). That point is inserted as a row of its own
     (column ``fill_point`` True) and recorded in ``attrs["fill_point"]``:
@@ -342,6 +405,8 @@ def isochore(model, v=None, *, rho=None, rho_mass=None, T=None, n=DEFAULT_POINTS
     Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models, 2nd ed., ch. 3; the
     hydraulic overpressure of a liquid-full vessel is common practice in pressure-relief design.
     """
+    _check_sweep(model, "isochore", n=n, log=log, reference=reference, progress=progress, executor=executor,
+                 chunk_size=chunk_size)
     given = {k: x for k, x in (("v", v), ("rho", rho), ("rho_mass", rho_mass)) if x is not None}
     if len(given) != 1:
         raise InputError(f"isochore() takes exactly one of v, rho, rho_mass; got {', '.join(given) or 'none'}.")
@@ -361,7 +426,7 @@ def isochore(model, v=None, *, rho=None, rho_mass=None, T=None, n=DEFAULT_POINTS
     if reference:
         extra["reference_fill_point"] = reference_fill_point(model.fluid, v_fixed, T_range=(Ts.min(), Ts.max()))
     frame = state_frame(state, reference=reference, progress=progress, executor=executor, chunk_size=chunk_size,
-                        table=f"isochore at v = {v_fixed:.6g} m3/mol ({M / v_fixed:.6g} kg/m3)", extra_attrs=extra)
+                        table=f"isochore at v = {v_fixed:.6g} m³/mol ({M / v_fixed:.6g} kg/m³)", extra_attrs=extra)
     frame["fill_point"] = fill[:len(frame)]
     return _finish(frame, dict(frame.attrs))
 
@@ -402,7 +467,7 @@ def fill_point(model, v, T_range=None):
 def reference_fill_point(fluid, v, T_range=None):
     """The reference equation's liquid-full or vapor-full point of a vessel at v [m^3/mol]
     (as :func:`fill_point`); None where the reference is unavailable or not crossed."""
-    if not getattr(fluid, "library_name", None):
+    if library_reason(fluid):
         return None
     Tc = fluid.Tc
     lo, hi = T_range if T_range is not None else (0.3 * Tc, Tc)
@@ -443,6 +508,7 @@ def saturation_curve(model, T=None, *, n=DEFAULT_POINTS, log=None, reference=Fal
     ----------
     Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models, 2nd ed., ch. 11.
     """
+    _check_sweep(model, "saturation_curve", n=n, log=log, reference=reference)
     fluid = model.fluid
     if T is None:
         T = _default_T(fluid, 0.5, 1.0)
@@ -486,6 +552,8 @@ def to_csv(frame: pd.DataFrame, path) -> None:
         A table from this module.
     path : str or path-like
     """
+    if not isinstance(frame, pd.DataFrame):
+        raise TypeError(f"to_csv(frame, path) writes a table from a sweep (a pandas DataFrame); got {_given(frame)}.")
     a = frame.attrs
     fc = a.get("fluid_constants") or {}
     lines = ["thermo_roots state table"]
@@ -494,7 +562,7 @@ def to_csv(frame: pd.DataFrame, path) -> None:
                      f"Pc = {fc['Pc']:.8g} Pa, omega = {fc['omega']:.6g}, molar mass = {fc['molar_mass']:.8g} kg/mol")
     if "model" in a:
         lines.append(f"model: {a['model']} ({a.get('model_short_name', '')}), volume shift c = "
-                     f"{a.get('volume_shift', 0.0):.6g} m3/mol")
+                     f"{a.get('volume_shift', 0.0):.6g} m³/mol")
     lines.append(f"table: {a.get('table', '')}")
     lines.append(f"written: {datetime.datetime.now().astimezone().isoformat(timespec='seconds')} by thermo_roots "
                  f"{a.get('version', _version())}")
