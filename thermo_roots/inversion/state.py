@@ -497,16 +497,22 @@ def temperature_bracket(model, P, v):
 
     T_lo = P (v - b)/R, where P(T_lo, v) <= P because the attraction term is never
     negative. T_hi starts at (P + a(T_lo)/D(v)) (v - b)/R, where P(T_hi, v) >= P while a(T)
-    falls, and is doubled while P(T_hi) < P and P still rises with T. Where it stops with
-    P(T_hi) < P and P falling, the peak of the concave P(T) lies in [T_lo, T_hi] (see solve).
-
-    Returns
-    -------
-    T_lo, T_hi : ndarray [K]
-    found : ndarray of bool, True where P(T_hi) >= P (a bracket); elsewhere the peak must
-        be found first.
+    falls, and is doubled while P(T_hi) < P and P still rises with T; where P(T) peaks
+    first (see solve's Notes), T_hi is the peak. NaN where no temperature gives P at v.
     """
-    P, v = np.asarray(P, dtype=float), np.asarray(v, dtype=float)
+    shape = np.broadcast(np.asarray(P), np.asarray(v)).shape
+    P, v = (np.broadcast_to(np.asarray(x, dtype=float), shape).ravel() for x in (P, v))
+    T_lo, T_hi, found = _grow_temperature_bracket(model, P, v)
+    if not np.all(found):
+        T_peak, P_peak = _isochore_peak(model, T_lo[~found], T_hi[~found], P[~found], v[~found])
+        T_hi[~found] = np.where(P_peak >= P[~found], T_peak, np.nan)
+    return T_lo.reshape(shape), T_hi.reshape(shape)
+
+
+def _grow_temperature_bracket(model, P, v):
+    """(T_lo, T_hi, found): found where P(T_hi) >= P; elsewhere P(T) peaks inside [T_lo, T_hi]."""
+    P, v = np.atleast_1d(P).astype(float), np.atleast_1d(v).astype(float)
+    P, v = np.broadcast_arrays(P, v)
     T_lo = P * (v - model.v_min) / R
     a_lo, _ = model.attraction(T_lo)
     T_hi = (P + a_lo / model._denominator(v)) * (v - model.v_min) / R * (1.0 + 1e-12)
@@ -522,6 +528,22 @@ def temperature_bracket(model, P, v):
             T_hi = np.where(short, 2.0 * T_hi, T_hi)
             found[short] = model.pressure(T_hi[short], v[short]) >= P[short]
     return T_lo, T_hi, found
+
+
+def _isochore_peak(model, T_lo, T_hi, P, v):
+    """(T_peak, P_peak) of the concave P(T) at fixed v between T_lo and T_hi [K].
+
+    Where P already falls at T_lo, the peak is T_lo itself (no higher T reaches more).
+    """
+    with np.errstate(all="ignore"):
+        rising = model.dP_dT(T_lo, v) > 0.0
+    T_peak = np.array(T_lo, dtype=float)
+    if np.any(rising):
+        T_peak[rising] = _bracketed(_isochore_slope, T_lo[rising], T_hi[rising],
+                                    (v[rising], P[rising], model), False)[0]
+    with np.errstate(all="ignore"):
+        P_peak = np.where(np.isfinite(T_peak), model.pressure(np.where(np.isfinite(T_peak), T_peak, 1.0), v), -np.inf)
+    return T_peak, P_peak
 
 
 def volume_bracket(model, T, P):
@@ -580,29 +602,22 @@ def _temperature_at(model, P, v, problems=None, where=None):
     if problems is None:
         problems, where = Problems(P.size, P.shape, strict=False), np.arange(P.size)
     scalar = P.size == 1 and problems.shape == ()
-    T_lo, T_hi, found = temperature_bracket(model, P, v)
+    T_lo, T_hi, found = _grow_temperature_bracket(model, P, v)
     T = np.full(P.shape, np.nan)
     T_other = np.full(P.shape, np.nan)
     unreachable = np.zeros(P.shape, bool)
     peak = ~found
     if np.any(peak):   # P(T) at this v peaks below T_hi: find the peak, check it reaches P
         i = np.flatnonzero(peak)
-        with np.errstate(all="ignore"):
-            rising = model.dP_dT(T_lo[i], v[i]) > 0.0
-        T_peak = np.where(rising, T_lo[i], np.nan)
-        if np.any(rising):
-            j = i[rising]
-            T_peak[rising] = _bracketed(_isochore_slope, T_lo[j], T_hi[j], (v[j], P[j], model), False)[0]
-        with np.errstate(all="ignore"):
-            P_peak = np.where(np.isfinite(T_peak), model.pressure(np.where(np.isfinite(T_peak), T_peak, 1.0), v[i]), -np.inf)
+        T_peak, P_peak = _isochore_peak(model, T_lo[i], T_hi[i], P[i], v[i])
         short = ~(P_peak >= P[i])
         unreachable[i[short]] = True
         T_hi[i[~short]] = T_peak[~short]
         problems.flag_at(where[i[short]], [
             f"no temperature gives P = {P[k]:.6g} Pa at v = {v[k]:.6g} m³/mol in {model.name} for {model.fluid.name}: "
-            f"at this volume the model's pressure rises with T only to {pk:.6g} Pa"
-            + (f" (at T = {tk:.6g} K)" if np.isfinite(tk) else "") + ". Check the volume and pressure."
-            for k, pk, tk in zip(i[short], P_peak[short], T_peak[short])], kind=DomainError)
+            f"at this volume the model's pressure rises with T only to {pk:.6g} Pa (at T = {tk:.6g} K). "
+            "Check the volume and pressure." for k, pk, tk in zip(i[short], P_peak[short], T_peak[short])],
+            kind=DomainError)
     go = ~unreachable
     result = None
     if np.any(go):
