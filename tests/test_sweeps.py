@@ -30,7 +30,7 @@ def test_isotherm_rows_are_the_array_solve(pr_co2):
     # units as a person reads them, in Unicode (the project's spelling)
     assert frame.attrs["units"]["P"] == "Pa" and frame.attrs["units"]["rho_mass"] == "kg/m³"
     assert frame.attrs["units"]["v_root_2"] == "m³/mol" and frame.attrs["T"] == pytest.approx(280.15)
-    assert frame.attrs["fluid"] == "CarbonDioxide" and frame.attrs["model"] == "Peng-Robinson"
+    assert frame.attrs["fluid"] == "carbon dioxide" and frame.attrs["model"] == "Peng-Robinson"
     assert frame.attrs["version"] == tr.__version__ and frame.attrs["caution"] == tr.CAUTION
     assert frame.attrs["fluid_constants"]["Tc"] == pr_co2.fluid.Tc
     # three real roots somewhere below saturation, one well above (common practice)
