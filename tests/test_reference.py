@@ -247,9 +247,10 @@ def test_phase_row_says_unavailable_with_the_reason(propane):
 
 
 def test_state_at_very_low_temperature_still_displays(propane):
-    # 20 K: the model gives no saturation pressure there (issue 8, section 3: State.P_sat raised
-    # ConvergenceError out of rows()); the table shows "-" in its place
-    check = ref.cross_check(tr.solve(tr.PengRobinson(propane), T=20.0, P=1e5))
+    # 10 K: below Peng-Robinson's lowest saturation temperature for propane (12.8 K) the model
+    # gives no saturation pressure (State.P_sat raised ConvergenceError out of rows()); the
+    # table shows "-" in its place
+    check = ref.cross_check(tr.solve(tr.PengRobinson(propane), T=10.0, P=1e5))
     rows = {r[0]: r[1:] for r in check.rows()}
     assert rows["Saturation pressure at T [bar]"] == ("-", "-", "-")
     assert "triple point" in check._repr_html_()
