@@ -243,3 +243,25 @@ def test_a_two_phase_state_shows_its_quality_and_both_coexisting_roots(propane_p
     assert stable == ["liquid-like", "vapor-like"]   # both phases coexist on the saturation line
     single = tr.solve(propane_pr, T=300.0, P=5e5)
     assert sum(r.stable for r in single.roots) == 1
+
+
+def _solve_chunk(args):
+    model, T, P = args
+    state = tr.solve(model, T=T, P=P)
+    return state.v, state.phase.astype(str), state.reason.astype(str)
+
+
+def test_solves_from_threads_and_processes_equal_the_serial_solve(propane_pr):
+    # common practice: a shared model and its caches must not mix answers between callers
+    from concurrent.futures import ProcessPoolExecutor, ThreadPoolExecutor
+
+    rng = np.random.default_rng(11)
+    chunks = [(propane_pr, rng.uniform(5.0, 600.0, 4000), 10.0 ** rng.uniform(2, 7.5, 4000)) for _ in range(8)]
+    serial = [_solve_chunk(c) for c in chunks]
+    with ThreadPoolExecutor(8) as pool:
+        threaded = list(pool.map(_solve_chunk, chunks))
+    with ProcessPoolExecutor(2) as pool:
+        processed = list(pool.map(_solve_chunk, chunks[:2]))
+    for got, want in zip(threaded + processed, serial):
+        np.testing.assert_allclose(got[0], want[0], rtol=1e-13)
+        assert (got[1] == want[1]).all() and (got[2] == want[2]).all()
