@@ -265,3 +265,21 @@ def test_solves_from_threads_and_processes_equal_the_serial_solve(propane_pr):
     for got, want in zip(threaded + processed, serial):
         np.testing.assert_allclose(got[0], want[0], rtol=1e-13)
         assert (got[1] == want[1]).all() and (got[2] == want[2]).all()
+
+
+def test_a_convergence_error_carries_the_record_in_the_callers_shape(propane_pr, monkeypatch):
+    # force the (P, v) -> T finder to stop early: the error must point at the caller's index
+    import thermo_roots.inversion.state as state_module
+
+    real = state_module.find_root
+    monkeypatch.setattr(state_module, "find_root", lambda *a, **k: real(*a, **{**k, "maxiter": 1}))
+    P = np.array([[1e5, 3e6], [4e6, 5e6]])
+    with pytest.raises(tr.ConvergenceError, match=r"At index \(0, 1\)") as err:
+        tr.solve(propane_pr, P=P, v=5e-3, errors="raise")
+    record = err.value.result
+    assert np.shape(record.root) == (2, 2) and not record.converged[0, 1]
+    state = tr.solve(propane_pr, P=P, v=5e-3)
+    assert state.phase[0, 1] == "not solved" and "did not converge" in state.reason[0, 1]
+    with pytest.raises(tr.ConvergenceError) as err:
+        tr.solve(propane_pr, P=3e6, v=5e-3)
+    assert err.value.result.is_scalar

@@ -625,9 +625,11 @@ def _temperature_at(model, P, v, problems=None, where=None):
         T[go] = np.where(converged, root, np.nan)
         failed = np.flatnonzero(go)[~converged]
         status = np.atleast_1d(np.asarray(result.status, dtype=object))[~converged]
-        problems.flag_at(where[failed], [
-            f"the temperature at P = {P[k]:.6g} Pa, v = {v[k]:.6g} m³/mol did not converge ({st})."
-            for k, st in zip(failed, status)], kind=ConvergenceError, result=result)
+        if failed.size:   # the record attached to an error is in the caller's shape and indices
+            record = _shaped_convergence((result, where[np.flatnonzero(go)]), problems, problems.shape)
+            problems.flag_at(where[failed], [
+                f"the temperature at P = {P[k]:.6g} Pa, v = {v[k]:.6g} m³/mol did not converge ({st})."
+                for k, st in zip(failed, status)], kind=ConvergenceError, result=record)
         T_other[go] = _second_temperature(model, T[go], P[go], v[go])
     return T, T_other, result
 
