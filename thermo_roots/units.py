@@ -171,8 +171,13 @@ def check_atmosphere(atmosphere) -> float:
                          "e.g. atmosphere='101.325 kPa'.")
     lo, hi = ATMOSPHERE_RANGE
     if not lo <= si <= hi:
-        hint = (" Numbers are read in Pa: for bar write e.g. '1.01325 bar', for psi '14.7 psia'."
-                if si > 0 and not isinstance(atmosphere, str) else "")
+        hint = ""
+        if isinstance(atmosphere, str):
+            number = split_value(atmosphere, "atmosphere")[0]
+            if lo <= number * 1e5 <= hi or lo <= number * 6894.757 <= hi:
+                hint = f" If {number:g} was meant in bar or in psi, write '{number:g} bar' or '{number:g} psia'."
+        elif si > 0:
+            hint = " Numbers are read in Pa: for bar write e.g. '1.01325 bar', for psi '14.7 psia'."
         raise InputError(
             f"atmosphere = {_describe(atmosphere)} ({si:.6g} Pa) is not the pressure of the surrounding "
             f"air; allowed: an absolute pressure from {lo / 1e3:g} kPa to {hi / 1e3:g} kPa "
