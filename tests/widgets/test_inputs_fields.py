@@ -117,7 +117,7 @@ def test_quality_box_asks_for_a_number():
 
 
 @pytest.mark.parametrize("typed, fragment", [
-    ("8 barg", "is a gauge pressure"), ("abc", "Cannot read the atmosphere 'abc'"), ("1.01325", "write '1.01325 bar'"),
+    ("8 barg", "is a gauge pressure"), ("abc", "Cannot read atmosphere = 'abc'"), ("1.01325", "write '1.01325 bar'"),
     ("-1 bar", "surrounding air"),
 ])
 def test_the_atmosphere_is_checked_beside_its_own_field(typed, fragment):
@@ -164,3 +164,18 @@ def test_one_iteration_is_singular():
     state = SimpleNamespace(convergence=record, knowns=("T", "quality"), phase="two-phase")
     text = convergence_text(state)
     assert "1 iteration," in text and "3 evaluations" in text
+
+
+def test_custom_constants_take_a_decimal_comma():
+    import thermo_roots as tr
+
+    panel = StatePanel(fluid="custom", model="PR", T="20 degC", P="8 bar")
+    ff = panel.fluid_field
+    ff.Tc.set("369,89 K")
+    ff.Pc.set("42,51 bar")
+    ff.omega.value, ff.molar_mass.value = "0,1521", "44,097"
+    fluid = ff.fluid()
+    assert (fluid.Tc, fluid.Pc, fluid.omega, fluid.molar_mass) == pytest.approx((369.89, 42.51e5, 0.1521, 0.044097))
+    ff.omega.value = "0.15 bar"
+    with pytest.raises(tr.ThermoRootsError, match="plain numbers"):
+        ff.fluid()

@@ -66,6 +66,7 @@ class QuantityField:
         self.quantity = quantity
         self.reader = reader
         self.what = what or LABELS[quantity].lower()
+        self.name = what or quantity         # how messages name it, as the units layer does
         options = units if units is not None else UNITS[quantity]
         self.text = w.Text(layout=w.Layout(width="120px"), continuous_update=False)
         self.unit = w.Dropdown(options=list(options), layout=w.Layout(width="95px"))
@@ -156,15 +157,15 @@ class QuantityField:
         text = self.text.value.strip()
         what = self.what
         if not text:
-            raise self.fail(f"Enter a {what}.")
+            raise self.fail(f"Enter the {what}.")
         number, unit_text = self._split()
         if unit_text is None and not _STARTS_WITH_NUMBER.match(text):
             if self.unit.value is not None:
                 shown = dict((c, label) for label, c in self.unit.options)[self.unit.value]
                 in_unit = f" in {shown}, the unit chosen beside it" if shown and shown != "fraction" else ""
-                raise self.fail(f"Cannot read the {what} {text!r}: write a number{in_unit}, e.g. "
+                raise self.fail(f"Cannot read {self.name} = {text!r}: write a number{in_unit}, e.g. "
                                 f"{_EXAMPLE_NUMBER[self.quantity]}.")
-            raise self.fail(f"Cannot read the {what} {text!r}: write a number and a unit, e.g. "
+            raise self.fail(f"Cannot read {self.name} = {text!r}: write a number and a unit, e.g. "
                             f"{_EXAMPLE_NUMBER[self.quantity]} {UNITS[self.quantity][0][0]}.")
         if unit_text == "" and self.unit.value is None:
             raise self.fail(f"Choose a unit in the menu beside {number!r}, or write one after the number, "
@@ -212,6 +213,14 @@ def _unit_key(unit: str, quantity: str):
         return registry().Unit(spelled), gauge
     except Exception:  # an unreadable spelling: matches nothing
         return None
+
+
+def _plain_number(text: str) -> float:
+    """A number with no unit, a decimal comma allowed ("0,152"); ValueError otherwise."""
+    number, unit = split_value(text.strip())
+    if unit:
+        raise ValueError(f"{text!r} has a unit")
+    return number
 
 
 def _number_part(text: str, unit_text: str) -> str:
@@ -284,7 +293,7 @@ class FluidField:
                 raise FieldError(str(err)) from None
         Tc, Pc = self.Tc.to_si(), self.Pc.to_si()
         try:
-            omega, grams = float(self.omega.value), float(self.molar_mass.value)
+            omega, grams = _plain_number(self.omega.value), _plain_number(self.molar_mass.value)
         except ValueError:
             text = (f"Acentric factor {self.omega.value!r} and molar mass {self.molar_mass.value!r} "
                     "must be plain numbers, e.g. 0.152 and 44.1 (g/mol).")

@@ -35,21 +35,25 @@ def fmt(x, digits: int = 5) -> str:
     return f"{x:.{digits}g}"
 
 
-def table(rows, *, header=None, caption=None, highlight=None, nowrap=False, wrap_header=False) -> str:
+def table(rows, *, header=None, caption=None, highlight=None, nowrap=False, wrap_header=False,
+          wrap_columns=()) -> str:
     """An HTML table; ``rows`` of already formatted cells; ``highlight`` a row index to bold.
 
-    ``nowrap`` keeps each cell on one line; ``wrap_header`` still lets the column names wrap
-    at their spaces ("reference rho [kg/m³]" on two lines), which narrows a wide table.
+    ``nowrap`` keeps each cell on one line, except in the columns of ``wrap_columns`` (their
+    text wraps at spaces within a moderate width); ``wrap_header`` still lets the column
+    names wrap at their spaces ("reference rho [kg/m³]" on two lines). Both narrow a wide table.
     """
     cell = _CELL + (";white-space:nowrap" if nowrap else "")
+    wrapping = _CELL + ";min-width:9em;max-width:16em"
     head_cell = _CELL + ";vertical-align:bottom" if wrap_header else cell
     head = ""
     if header is not None:
         head = "<tr>" + "".join(f"<th style='{head_cell}'>{html.escape(h)}</th>" for h in header) + "</tr>"
     body = []
     for i, row in enumerate(rows):
-        style = cell + (";font-weight:bold;background:#eef5ee" if i == highlight else "")
-        cells = "".join(f"<td style='{style}'>{c}</td>" for c in row)
+        bold = ";font-weight:bold;background:#eef5ee" if i == highlight else ""
+        cells = "".join(f"<td style='{(wrapping if j in wrap_columns else cell) + bold}'>{c}</td>"
+                        for j, c in enumerate(row))
         body.append(f"<tr>{cells}</tr>")
     cap = f"<caption style='{_CAPTION}'>{html.escape(caption)}</caption>" if caption else ""
     return f"<table style='{_TABLE}'>{cap}{head}{''.join(body)}</table>"

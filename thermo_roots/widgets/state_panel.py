@@ -188,7 +188,8 @@ class StatePanel(w.VBox):
         rows = [[html.escape(fmt(x) if isinstance(x, float) else str(x)) for x in row]
                 for row in frame.itertuples(index=False)]
         self.table_html.value = block(scroll_box(table(rows, header=frame.columns, caption="Collected state points",
-                                                       nowrap=True, wrap_header=True)))
+                                                       nowrap=True, wrap_header=True,
+                                                       wrap_columns=(TABLE_COLUMNS.index("given"),))))
         self.download.value = csv_link(self.table_csv(), "state_points.csv")
         return self.table
 
