@@ -173,9 +173,13 @@ def test_custom_constants_take_a_decimal_comma():
     ff = panel.fluid_field
     ff.Tc.set("369,89 K")
     ff.Pc.set("42,51 bar")
-    ff.omega.value, ff.molar_mass.value = "0,1521", "44,097"
+    ff.omega.value, ff.molar_mass.value = "0,1521", "44,1"
     fluid = ff.fluid()
-    assert (fluid.Tc, fluid.Pc, fluid.omega, fluid.molar_mass) == pytest.approx((369.89, 42.51e5, 0.1521, 0.044097))
+    assert (fluid.Tc, fluid.Pc, fluid.omega, fluid.molar_mass) == pytest.approx((369.89, 42.51e5, 0.1521, 0.0441))
     ff.omega.value = "0.15 bar"
-    with pytest.raises(tr.ThermoRootsError, match="plain numbers"):
+    with pytest.raises(tr.ThermoRootsError, match="acentric factor '0.15 bar' must be a plain number"):
         ff.fluid()
+    ff.omega.value, ff.molar_mass.value = "0.152", "44,097"
+    with pytest.raises(tr.ThermoRootsError, match="44.097 .decimal comma. or 44097"):
+        ff.fluid()
+    assert "44097" in ff.custom_message.value

@@ -215,11 +215,16 @@ def _unit_key(unit: str, quantity: str):
         return None
 
 
-def _plain_number(text: str) -> float:
-    """A number with no unit, a decimal comma allowed ("0,152"); ValueError otherwise."""
-    number, unit = split_value(text.strip())
+def _plain_number(text: str, name: str, example: str) -> float:
+    """A number with no unit, a decimal comma allowed ("0,152"); FieldError otherwise."""
+    try:
+        number, unit = split_value(text.strip(), name)
+    except ThermoRootsError as err:
+        if _STARTS_WITH_NUMBER.match(text):
+            raise FieldError(str(err)) from None      # e.g. "44,097": decimal or thousands?
+        unit = "?"
     if unit:
-        raise ValueError(f"{text!r} has a unit")
+        raise FieldError(f"The {name} {text!r} must be a plain number, e.g. {example}.")
     return number
 
 
@@ -293,10 +298,10 @@ class FluidField:
                 raise FieldError(str(err)) from None
         Tc, Pc = self.Tc.to_si(), self.Pc.to_si()
         try:
-            omega, grams = _plain_number(self.omega.value), _plain_number(self.molar_mass.value)
-        except ValueError:
-            text = (f"Acentric factor {self.omega.value!r} and molar mass {self.molar_mass.value!r} "
-                    "must be plain numbers, e.g. 0.152 and 44.1 (g/mol).")
+            omega = _plain_number(self.omega.value, "acentric factor", "0.152")
+            grams = _plain_number(self.molar_mass.value, "molar mass", "44.1 (in g/mol)")
+        except ThermoRootsError as err:
+            text = str(err)
             self.custom_message.value = message_html(text)
             raise FieldError(text) from None
         try:
