@@ -154,7 +154,8 @@ def test_the_collected_table_scrolls_inside_the_output_area():
     panel.add_to_table()
     shown = panel.table_html.value
     assert "overflow-x:auto" in shown and "max-width:100%" in shown
-    assert "<th style='padding:2px 8px;border-bottom:1px solid #ddd;text-align:left;vertical-align:bottom'>" in shown
+    assert "<th style='padding:2px 5px;border-bottom:1px solid #ddd;text-align:left;vertical-align:bottom'>" in shown
+    assert panel.table_html.layout.overflow == "auto"       # the widget itself scrolls, inside the panel
     assert "T [°C]" in shown and "kg/m³" in shown and "degC" not in shown
 
 

@@ -36,16 +36,18 @@ def fmt(x, digits: int = 5) -> str:
 
 
 def table(rows, *, header=None, caption=None, highlight=None, nowrap=False, wrap_header=False,
-          wrap_columns=()) -> str:
+          wrap_columns=(), compact=False) -> str:
     """An HTML table; ``rows`` of already formatted cells; ``highlight`` a row index to bold.
 
     ``nowrap`` keeps each cell on one line, except in the columns of ``wrap_columns`` (their
     text wraps at spaces within a moderate width); ``wrap_header`` still lets the column
-    names wrap at their spaces ("reference rho [kg/m³]" on two lines). Both narrow a wide table.
+    names wrap at their spaces ("reference rho [kg/m³]" on two lines); ``compact`` narrows
+    the cell padding. All three narrow a wide table.
     """
-    cell = _CELL + (";white-space:nowrap" if nowrap else "")
-    wrapping = _CELL + ";min-width:9em;max-width:16em"
-    head_cell = _CELL + ";vertical-align:bottom" if wrap_header else cell
+    base = _CELL.replace("padding:2px 8px", "padding:2px 5px") if compact else _CELL
+    cell = base + (";white-space:nowrap" if nowrap else "")
+    wrapping = base + ";min-width:9em;max-width:16em"
+    head_cell = base + ";vertical-align:bottom" if wrap_header else cell
     head = ""
     if header is not None:
         head = "<tr>" + "".join(f"<th style='{head_cell}'>{html.escape(h)}</th>" for h in header) + "</tr>"

@@ -25,6 +25,8 @@ PAIRS = (
     ("pressure and vapor quality", ("P", "quality")),
 )
 _DEFAULTS = {"T": "20 degC", "P": "8 bar", "v": "0.5 L/mol", "rho": "500 kg/m^3", "quality": "0.5"}
+#: Significant digits shown per column of the collected table (the DataFrame keeps them all).
+_DIGITS = {"rho deviation [%]": 3}
 #: Columns of the collected table, in order.
 TABLE_COLUMNS = ("tag", "fluid", "model", "given", "phase", "T [°C]", "P [bar]", "v [L/mol]",
                  "rho [kg/m³]", "Z [-]", "quality [-]", "P_sat [bar]", "reference rho [kg/m³]",
@@ -92,7 +94,8 @@ class StatePanel(w.VBox):
         self.pair_message = w.HTML()
         self.status = w.HTML()
         self.output = w.HTML()
-        self.table_html = w.HTML()
+        # the collected table scrolls inside the panel's width rather than running past it
+        self.table_html = w.HTML(layout=w.Layout(overflow="auto", max_width="100%"))
         self.download = w.HTML()
         self.known_box = w.VBox()
         for widget, name in ((self.solve_button, "tr-solve"), (self.add_button, "tr-add"),
@@ -185,11 +188,13 @@ class StatePanel(w.VBox):
             return self.table
         self._rows.append((self.tag.value.strip(), self._given, self.result, self.check))
         frame = self.table
-        rows = [[html.escape(fmt(x) if isinstance(x, float) else str(x)) for x in row]
+        digits = [_DIGITS.get(c, 5) for c in frame.columns]
+        rows = [[html.escape(fmt(x, d) if isinstance(x, float) else str(x)) for x, d in zip(row, digits)]
                 for row in frame.itertuples(index=False)]
         self.table_html.value = block(scroll_box(table(rows, header=frame.columns, caption="Collected state points",
                                                        nowrap=True, wrap_header=True,
-                                                       wrap_columns=(TABLE_COLUMNS.index("given"),))))
+                                                       wrap_columns=(TABLE_COLUMNS.index("given"),),
+                                                       compact=True)))
         self.download.value = csv_link(self.table_csv(), "state_points.csv")
         return self.table
 
