@@ -71,7 +71,7 @@ def test_bad_input_keeps_the_previous_result_and_table():
     good = panel.solve()
     panel.add_to_table()
     html_before, table_before = panel.output.value, panel.table.copy()
-    for field, text, words in (("T", "warm", "Cannot read T"), ("T", "-300 degC", "above zero"),
+    for field, text, words in (("T", "warm", "write a number in °C"), ("T", "-300 degC", "above zero"),
                                ("P", "8 metres", "wrong kind")):
         panel.fields[field].text.value = text
         assert panel.solve() is None
@@ -79,7 +79,7 @@ def test_bad_input_keeps_the_previous_result_and_table():
         assert words in panel.fields[field].message.value       # beside the field
         assert panel.result is good and panel.output.value == html_before
         pd.testing.assert_frame_equal(panel.table, table_before)
-        assert panel.fields[field].text.value == text           # nothing typed is lost
+        assert text in (panel.fields[field].text.value, panel.fields[field].entered())   # nothing typed is lost
         panel.fields[field].text.value = {"T": "20 degC", "P": "8 bar"}[field]
     assert panel.solve() is not None and panel.error is None
     assert panel.fields["T"].message.value == ""
@@ -140,7 +140,7 @@ def test_table_exports_csv_that_reads_back_equal():
     pd.testing.assert_frame_equal(back, table, check_dtype=False, rtol=1e-12)
     link = re.search(r"base64,([A-Za-z0-9+/=]+)", panel.download.value).group(1)
     assert base64.b64decode(link).decode() == text
-    assert table["rho [kg/m3]"][1] == pytest.approx(400.0)
+    assert table["rho [kg/m³]"][1] == pytest.approx(400.0)
 
 
 def test_add_before_solve_says_so():
@@ -156,7 +156,7 @@ def test_two_phase_state_shows_quality_and_saturation_roots():
     assert state.P == pytest.approx(sat.P, rel=1e-12)
     # CoolProp (Gao et al. 2020 ammonia equation): PR saturation pressure within 3 % at 35 degC.
     assert state.P == pytest.approx(CP.PropsSI("P", "T", 308.15, "Q", 0, "Ammonia"), rel=0.03)
-    assert "Vapour quality" in panel.output.value and "at the saturation pressure" in panel.output.value
+    assert re.search("Vapou?r quality", panel.output.value) and "at the saturation pressure" in panel.output.value
     assert "Iterative (saturation)" in panel.output.value
 
 

@@ -8,12 +8,15 @@ classes, ``to_si``); the library decides what is valid and words the message.
 from __future__ import annotations
 
 import html
+import numbers
+import re
 
 import ipywidgets as w
+import numpy as np
 
 from .. import MODELS, Fluid, get_fluid, to_si
 from ..errors import ThermoRootsError
-from ..units import QUANTITIES
+from ..units import QUANTITIES, read_unit, registry, split_value
 
 #: Unit choices per known quantity: (label shown, unit text the units layer reads).
 UNITS = {
@@ -25,7 +28,7 @@ UNITS = {
     "quality": (("fraction", ""), ("%", "percent")),
 }
 #: What each field is called on screen.
-LABELS = {"T": "Temperature", "P": "Pressure", "v": "Volume", "rho": "Density", "quality": "Vapour quality"}
+LABELS = {"T": "Temperature", "P": "Pressure", "v": "Volume", "rho": "Density", "quality": "Vapor quality"}
 #: Short names of the fluid chooser's "my own constants" entry.
 CUSTOM = "custom"
 
@@ -45,12 +48,25 @@ def _label(text: str) -> w.HTML:
 class QuantityField:
     """A number and a unit for one known quantity, with a message line beside it.
 
-    The box takes a plain number (read in the chosen unit) or a number with its own unit
-    ("293.15 K", "8 bar(g)"), which then wins over the unit selector.
+    The box takes a plain number (read in the unit chosen in the menu) or a number with its
+    own unit ("293.15 K", "8 bar(g)", "14.7 psia"). A typed unit wins, visibly: when it is
+    one of the menu's units the number stays in the box and the menu moves to that unit;
+    when it is not (say "1 kgf/cm2g") the menu is left blank, so it never shows a unit that
+    is not the one used. A decimal comma ("1,5") is read as a decimal point.
+
+    Parameters
+    ----------
+    reader : callable, optional
+        ``reader(text)`` -> SI value, used instead of :func:`thermo_roots.to_si` (the
+        atmosphere field reads with :func:`thermo_roots.units.check_atmosphere`).
     """
 
-    def __init__(self, quantity: str, value="", *, label: str | None = None, units=None, key=None):
+    def __init__(self, quantity: str, value="", *, label: str | None = None, units=None, key=None,
+                 reader=None, what: str | None = None):
         self.quantity = quantity
+        self.reader = reader
+        self.what = what or LABELS[quantity].lower()
+        self.name = what or quantity         # how messages name it, as the units layer does
         options = units if units is not None else UNITS[quantity]
         self.text = w.Text(layout=w.Layout(width="120px"), continuous_update=False)
         self.unit = w.Dropdown(options=list(options), layout=w.Layout(width="95px"))
@@ -60,38 +76,73 @@ class QuantityField:
                           layout=w.Layout(align_items="center"))
         self.text.add_class(f"tr-value-{key or quantity}")     # handles for a browser test
         self.unit.add_class(f"tr-unit-{key or quantity}")
+        self._keys = {code: _unit_key(code, quantity) for _, code in self.unit.options}
+        self._moving = False
+        self.text.observe(self._typed, "value")
         self.set(value)
 
     def set(self, value) -> None:
-        """Fill the field from Python: a number (SI, or in the selected unit's terms when a
-        unit is selected by text) or a text such as "20 degC" or "8 barg"."""
-        if isinstance(value, (int, float)):
-            self._select(QUANTITIES[self.quantity][1])
-            self.text.value = f"{value:g}"
+        """Fill the field from Python: a number (SI; Python or numpy) or a text such as
+        "20 degC" or "8 barg" (its unit then chosen in the menu when the menu has it)."""
+        if isinstance(value, numbers.Real) and not isinstance(value, (bool, np.bool_)):
+            si = QUANTITIES[self.quantity][1]
+            if self._select(si):
+                self.text.value = f"{float(value):g}"
+            else:                   # the SI unit is not on offer here: say it in the box
+                self.text.value = f"{float(value):g} {si}".strip()
             return
-        text = str(value).strip()
-        number, _, unit = text.partition(" ")
-        if unit and self._select(unit.strip()):
-            self.text.value = number
-        else:
-            self.text.value = text
+        self.text.value = str(value).strip()
 
     def _select(self, unit: str) -> bool:
+        key = _unit_key(unit, self.quantity)
         for label, code in self.unit.options:
-            if unit.lower() in (label.lower(), code.lower()):
+            if unit.lower() in (label.lower(), code.lower()) or (key is not None and self._keys[code] == key):
                 self.unit.value = code
                 return True
         return False
 
-    def _with_unit(self, shown: bool) -> str:
+    def _typed(self, change) -> None:
+        """A unit typed after the number moves to the menu, or blanks it (see the class)."""
+        if self._moving:
+            return
+        text = change["new"].strip()
+        try:
+            _, unit_text = split_value(text, self.quantity)
+            to_si(f"1 {unit_text}", self.quantity, molar_mass=1.0)   # a unit of this kind at all?
+        except ThermoRootsError:
+            return          # not readable yet: left as typed, and explained when it is read
+        if not unit_text:
+            return
+        key = _unit_key(unit_text, self.quantity)
+        code = next((c for _, c in self.unit.options if key is not None and self._keys[c] == key), None)
+        self._moving = True
+        try:
+            if code is not None:
+                self.unit.value = code
+                self.text.value = _number_part(text, unit_text)
+            else:
+                self.unit.index = None
+        finally:
+            self._moving = False
+
+    def _split(self):
+        """(number text, unit text) of the box; the unit text is empty for a plain number."""
         text = self.text.value.strip()
         try:
-            float(text)
-        except ValueError:
-            return text      # a unit typed in the box wins
+            _, unit_text = split_value(text, self.quantity)
+        except ThermoRootsError:
+            return text, None
+        return _number_part(text, unit_text), unit_text
+
+    def _with_unit(self, shown: bool) -> str:
+        number, unit_text = self._split()
+        if unit_text is None or unit_text:
+            return self.text.value.strip()      # a unit typed in the box wins
         code = self.unit.value
+        if code is None:
+            return number
         unit = dict((c, label) for label, c in self.unit.options)[code] if shown and code else code
-        return f"{text} {unit}".strip()
+        return f"{number} {unit}".strip()
 
     def entered(self) -> str:
         """The value as text with its unit, as the units layer reads it ("20 degC")."""
@@ -104,13 +155,44 @@ class QuantityField:
     def to_si(self, *, molar_mass=None, atmosphere=None) -> float:
         """The value in SI; a message beside the field and the error re-raised if unreadable."""
         text = self.text.value.strip()
+        what = self.what
         if not text:
-            raise self.fail(f"Enter a {LABELS[self.quantity].lower()}.")
-        kwargs = {} if atmosphere is None else {"atmosphere": atmosphere}
+            raise self.fail(f"Enter the {what}.")
+        number, unit_text = self._split()
+        if unit_text is None and not _STARTS_WITH_NUMBER.match(text):
+            if self.unit.value is not None:
+                shown = dict((c, label) for label, c in self.unit.options)[self.unit.value]
+                in_unit = f" in {shown}, the unit chosen beside it" if shown and shown != "fraction" else ""
+                raise self.fail(f"Cannot read {self.name} = {text!r}: write a number{in_unit}, e.g. "
+                                f"{_EXAMPLE_NUMBER[self.quantity]}.")
+            raise self.fail(f"Cannot read {self.name} = {text!r}: write a number and a unit, e.g. "
+                            f"{_EXAMPLE_NUMBER[self.quantity]} {UNITS[self.quantity][0][0]}.")
+        if unit_text == "" and self.unit.value is None:
+            raise self.fail(f"Choose a unit in the menu beside {number!r}, or write one after the number, "
+                            f"e.g. {_EXAMPLE_NUMBER[self.quantity]} {UNITS[self.quantity][0][0]}.")
         try:
-            return to_si(self.entered(), self.quantity, molar_mass=molar_mass, **kwargs)
+            if self.reader is not None:
+                return self.reader(self.entered())
+            kwargs = {} if atmosphere is None else {"atmosphere": atmosphere}
+            si = to_si(self.entered(), self.quantity, molar_mass=molar_mass, **kwargs)
         except ThermoRootsError as err:
             raise self.fail(str(err)) from None
+        if si <= 0.0 and self.quantity != "quality":
+            raise self.fail(self._not_positive())
+        return si
+
+    def _not_positive(self) -> str:
+        """Why a value at or below zero cannot be, in the terms it was typed in."""
+        shown = self.shown()
+        if self.quantity == "T":
+            return (f"{self.what.capitalize()} {shown} is at or below absolute zero (0 K = -273.15 °C = "
+                    "-459.67 °F); it must be above zero absolute.")
+        if self.quantity == "P":
+            gauge = next((label for label, code in self.unit.options
+                          if self.unit.value and code == self.unit.value + "g"), None)
+            hint = f" For a gauge reading choose {gauge} in the menu." if gauge else ""
+            return f"{self.what.capitalize()} {shown} is not above zero: an absolute pressure must be.{hint}"
+        return f"{self.what.capitalize()} {shown} must be above zero."
 
     def fail(self, text: str) -> ThermoRootsError:
         self.message.value = message_html(text)
@@ -118,6 +200,38 @@ class QuantityField:
 
     def clear(self) -> None:
         self.message.value = ""
+
+
+_STARTS_WITH_NUMBER = re.compile(r"^\s*[-+\u2212]?[.,]?\d")
+_EXAMPLE_NUMBER = {"T": "20", "P": "8", "v": "0.5", "rho": "500", "quality": "0.3"}
+
+
+def _unit_key(unit: str, quantity: str):
+    """What a unit means for a quantity, to compare spellings ("bara" and "bar"), or None."""
+    try:
+        spelled, gauge = read_unit(unit, quantity)
+        return registry().Unit(spelled), gauge
+    except Exception:  # an unreadable spelling: matches nothing
+        return None
+
+
+def _plain_number(text: str, name: str, example: str) -> float:
+    """A number with no unit, a decimal comma allowed ("0,152"); FieldError otherwise."""
+    try:
+        number, unit = split_value(text.strip(), name)
+    except ThermoRootsError as err:
+        if _STARTS_WITH_NUMBER.match(text):
+            raise FieldError(str(err)) from None      # e.g. "44,097": decimal or thousands?
+        unit = "?"
+    if unit:
+        raise FieldError(f"The {name} {text!r} must be a plain number, e.g. {example}.")
+    return number
+
+
+def _number_part(text: str, unit_text: str) -> str:
+    """The number as typed ("1,5") in a text that ends with ``unit_text``."""
+    text = text.strip()
+    return text[: len(text) - len(unit_text)].strip() if unit_text else text
 
 
 class FieldError(ThermoRootsError):
@@ -184,10 +298,10 @@ class FluidField:
                 raise FieldError(str(err)) from None
         Tc, Pc = self.Tc.to_si(), self.Pc.to_si()
         try:
-            omega, grams = float(self.omega.value), float(self.molar_mass.value)
-        except ValueError:
-            text = (f"Acentric factor {self.omega.value!r} and molar mass {self.molar_mass.value!r} "
-                    "must be plain numbers, e.g. 0.152 and 44.1 (g/mol).")
+            omega = _plain_number(self.omega.value, "acentric factor", "0.152")
+            grams = _plain_number(self.molar_mass.value, "molar mass", "44.1 (in g/mol)")
+        except ThermoRootsError as err:
+            text = str(err)
             self.custom_message.value = message_html(text)
             raise FieldError(text) from None
         try:

@@ -35,16 +35,27 @@ def fmt(x, digits: int = 5) -> str:
     return f"{x:.{digits}g}"
 
 
-def table(rows, *, header=None, caption=None, highlight=None, nowrap=False) -> str:
-    """An HTML table; ``rows`` of already formatted cells; ``highlight`` a row index to bold."""
-    cell = _CELL + (";white-space:nowrap" if nowrap else "")
+def table(rows, *, header=None, caption=None, highlight=None, nowrap=False, wrap_header=False,
+          wrap_columns=(), compact=False) -> str:
+    """An HTML table; ``rows`` of already formatted cells; ``highlight`` a row index to bold.
+
+    ``nowrap`` keeps each cell on one line, except in the columns of ``wrap_columns`` (their
+    text wraps at spaces within a moderate width); ``wrap_header`` still lets the column
+    names wrap at their spaces ("reference rho [kg/m³]" on two lines); ``compact`` narrows
+    the cell padding. All three narrow a wide table.
+    """
+    base = _CELL.replace("padding:2px 8px", "padding:2px 5px") if compact else _CELL
+    cell = base + (";white-space:nowrap" if nowrap else "")
+    wrapping = base + ";min-width:9em;max-width:16em"
+    head_cell = base + ";vertical-align:bottom" if wrap_header else cell
     head = ""
     if header is not None:
-        head = "<tr>" + "".join(f"<th style='{cell}'>{html.escape(h)}</th>" for h in header) + "</tr>"
+        head = "<tr>" + "".join(f"<th style='{head_cell}'>{html.escape(h)}</th>" for h in header) + "</tr>"
     body = []
     for i, row in enumerate(rows):
-        style = cell + (";font-weight:bold;background:#eef5ee" if i == highlight else "")
-        cells = "".join(f"<td style='{style}'>{c}</td>" for c in row)
+        bold = ";font-weight:bold;background:#eef5ee" if i == highlight else ""
+        cells = "".join(f"<td style='{(wrapping if j in wrap_columns else cell) + bold}'>{c}</td>"
+                        for j, c in enumerate(row))
         body.append(f"<tr>{cells}</tr>")
     cap = f"<caption style='{_CAPTION}'>{html.escape(caption)}</caption>" if caption else ""
     return f"<table style='{_TABLE}'>{cap}{head}{''.join(body)}</table>"
@@ -63,6 +74,17 @@ def caution_html() -> str:
 def block(content: str) -> str:
     """Wrap panel HTML so it reads as a document, not at the widgets' one-line height."""
     return f"<div style='line-height:1.35;white-space:normal'>{content}</div>"
+
+
+def scroll_box(content: str) -> str:
+    """Content no wider than the output area: scrolls sideways there instead of being clipped."""
+    return (f"<div class='tr-scroll' style='max-width:100%;overflow-x:auto;box-sizing:border-box'>"
+            f"{content}</div>")
+
+
+def fluid_label(fluid) -> str:
+    """A fluid's name as engineers write it (``display_name`` where the fluid has one)."""
+    return str(getattr(fluid, "display_name", None) or fluid.name)
 
 
 def side_by_side(*blocks: str) -> str:
@@ -85,8 +107,13 @@ def convergence_text(state) -> str:
                     "(no iteration).")
         return "Closed form: the pressure follows from the equation of state at this temperature and volume."
     what = "saturation" if "quality" in knowns or state.phase == "two-phase" else "temperature at this P and v"
-    return (f"Iterative ({what}): {result.method}, {_item(result.iterations)} iterations, "
-            f"{_item(result.evaluations)} evaluations, {_item(result.status)}.")
+    return (f"Iterative ({what}): {result.method}, {_count(_item(result.iterations), 'iteration')}, "
+            f"{_count(_item(result.evaluations), 'evaluation')}, {_item(result.status)}.")
+
+
+def _count(n, word: str) -> str:
+    """ "1 iteration", "12 iterations"."""
+    return f"{n} {word}" if n == 1 else f"{n} {word}s"
 
 
 def error_html(text: str) -> str:

@@ -3,14 +3,16 @@
 from __future__ import annotations
 
 import html
+import numbers
 
 import ipywidgets as w
 
 from .. import solve
 from ..errors import ThermoRootsError
+from ..units import check_atmosphere
 from ._inputs import LABELS, UNITS, FieldError, FluidField, ModelField, QuantityField, message_html
-from ._render import (block, caution_html, convergence_text, csv_link, error_html, fmt, in_unit, label_rows,
-                      side_by_side, table)
+from ._render import (block, caution_html, convergence_text, csv_link, error_html, fluid_label, fmt, in_unit,
+                      label_rows, scroll_box, side_by_side, table)
 
 #: The pairs of knowns a person can choose, as (label, (first, second)).
 PAIRS = (
@@ -19,13 +21,15 @@ PAIRS = (
     ("pressure and volume", ("P", "v")),
     ("temperature and density", ("T", "rho")),
     ("pressure and density", ("P", "rho")),
-    ("temperature and vapour quality", ("T", "quality")),
-    ("pressure and vapour quality", ("P", "quality")),
+    ("temperature and vapor quality", ("T", "quality")),
+    ("pressure and vapor quality", ("P", "quality")),
 )
 _DEFAULTS = {"T": "20 degC", "P": "8 bar", "v": "0.5 L/mol", "rho": "500 kg/m^3", "quality": "0.5"}
+#: Significant digits shown per column of the collected table (the DataFrame keeps them all).
+_DIGITS = {"rho deviation [%]": 3}
 #: Columns of the collected table, in order.
-TABLE_COLUMNS = ("tag", "fluid", "model", "given", "phase", "T [degC]", "P [bar]", "v [L/mol]",
-                 "rho [kg/m3]", "Z [-]", "quality [-]", "P_sat [bar]", "reference rho [kg/m3]",
+TABLE_COLUMNS = ("tag", "fluid", "model", "given", "phase", "T [°C]", "P [bar]", "v [L/mol]",
+                 "rho [kg/m³]", "Z [-]", "quality [-]", "P_sat [bar]", "reference rho [kg/m³]",
                  "rho deviation [%]", "reference phase")
 
 
@@ -79,17 +83,19 @@ class StatePanel(w.VBox):
         for name, value in knowns.items():
             field = self.fields["rho" if name == "rho_mass" else name]
             field.set(value)
-            if name == "rho_mass" and isinstance(value, (int, float)):
+            if name == "rho_mass" and isinstance(value, numbers.Real):
                 field.unit.value = "kg/m^3"
         self.atmosphere = QuantityField("P", atmosphere, label="Atmosphere", key="atmosphere",
-                                        units=[u for u in UNITS["P"] if not u[1].endswith("g")])
+                                        units=[u for u in UNITS["P"] if not u[1].endswith("g")],
+                                        reader=check_atmosphere, what="atmosphere")
         self.tag = w.Text(value=tag, placeholder="e.g. V-212", layout=w.Layout(width="120px"))
         self.solve_button = w.Button(description="Solve state", button_style="primary", icon="check")
         self.add_button = w.Button(description="Add to table", icon="plus")
         self.pair_message = w.HTML()
         self.status = w.HTML()
         self.output = w.HTML()
-        self.table_html = w.HTML()
+        # the collected table scrolls inside the panel's width rather than running past it
+        self.table_html = w.HTML(layout=w.Layout(overflow="auto", max_width="100%"))
         self.download = w.HTML()
         self.known_box = w.VBox()
         for widget, name in ((self.solve_button, "tr-solve"), (self.add_button, "tr-add"),
@@ -182,10 +188,13 @@ class StatePanel(w.VBox):
             return self.table
         self._rows.append((self.tag.value.strip(), self._given, self.result, self.check))
         frame = self.table
-        rows = [[html.escape(fmt(x) if isinstance(x, float) else str(x)) for x in row]
+        digits = [_DIGITS.get(c, 5) for c in frame.columns]
+        rows = [[html.escape(fmt(x, d) if isinstance(x, float) else str(x)) for x, d in zip(row, digits)]
                 for row in frame.itertuples(index=False)]
-        self.table_html.value = block(table(rows, header=frame.columns, caption="Collected state points",
-                                            nowrap=True))
+        self.table_html.value = block(scroll_box(table(rows, header=frame.columns, caption="Collected state points",
+                                                       nowrap=True, wrap_header=True,
+                                                       wrap_columns=(TABLE_COLUMNS.index("given"),),
+                                                       compact=True)))
         self.download.value = csv_link(self.table_csv(), "state_points.csv")
         return self.table
 
@@ -202,7 +211,7 @@ class StatePanel(w.VBox):
 
     # -- display
     def _render(self, state, check) -> str:
-        fluid, model = state.model.fluid.name, state.model.name
+        fluid, model = fluid_label(state.model.fluid), state.model.name
         tag = self.tag.value.strip()
         given = html.escape(self._given)
         head = (f"<div style='font-size:1.05em;margin:8px 0 4px 0'><b>{html.escape(tag + ': ' if tag else '')}"
@@ -235,13 +244,13 @@ def _check_table(check) -> str:
 def _table_row(tag, given, state, check) -> dict:
     ok = check is not None and check.available
     return {
-        "tag": tag, "fluid": state.model.fluid.name, "model": state.model.name, "given": given,
+        "tag": tag, "fluid": fluid_label(state.model.fluid), "model": state.model.name, "given": given,
         "phase": str(state.phase),
-        "T [degC]": in_unit(state.T, "T", "degC"), "P [bar]": in_unit(state.P, "P", "bar"),
-        "v [L/mol]": in_unit(state.v, "v", "L/mol"), "rho [kg/m3]": float(state.rho_mass),
+        "T [°C]": in_unit(state.T, "T", "degC"), "P [bar]": in_unit(state.P, "P", "bar"),
+        "v [L/mol]": in_unit(state.v, "v", "L/mol"), "rho [kg/m³]": float(state.rho_mass),
         "Z [-]": float(state.Z), "quality [-]": float(state.quality),
         "P_sat [bar]": in_unit(state.P_sat, "P", "bar"),
-        "reference rho [kg/m3]": float(check.reference_rho_mass) if ok else float("nan"),
+        "reference rho [kg/m³]": float(check.reference_rho_mass) if ok else float("nan"),
         "rho deviation [%]": float(check.deviation_rho_percent) if ok else float("nan"),
         "reference phase": str(check.reference_phase) if ok else "",
     }
