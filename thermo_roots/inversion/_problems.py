@@ -24,21 +24,14 @@ def check_errors_option(errors) -> None:
 
 
 def si_array(to_si, value, quantity, **options):
-    """:func:`to_si` for one known, letting NaN and inf elements of a numeric array through.
+    """:func:`to_si` for one known, letting NaN, inf and masked elements of an array through.
 
-    Those elements are then reported one by one instead of failing the whole array. A
-    scalar, text or a pint quantity goes through ``to_si`` unchanged (which refuses a
-    non-finite scalar with its own message).
+    Those elements come back as NaN and are then reported one by one instead of failing the
+    whole array. A scalar (or text) goes through ``to_si`` strictly, which refuses a
+    non-finite value with its own message.
     """
-    if isinstance(value, (list, tuple)) or (type(value) is np.ndarray and value.ndim):
-        array = np.asarray(value)
-        if array.dtype.kind == "f" and array.ndim:
-            bad = ~np.isfinite(array)
-            if bad.any():
-                si = np.array(to_si(np.where(bad, 1.0, array), quantity, **options), dtype=float)
-                si[np.broadcast_to(bad, si.shape)] = array[bad]
-                return si
-    return to_si(value, quantity, **options)
+    array_like = not isinstance(value, str) and np.ndim(value) > 0
+    return to_si(value, quantity, nonfinite="nan" if array_like else "raise", **options)
 
 
 class Problems:

@@ -351,7 +351,7 @@ def _check_knowns(model, flat, given, problems):
         return f"{x:.6g} {_unit(name)}" + (f" (given as {text!r})" if text else "")
 
     for name, x in flat.items():
-        problems.flag(~np.isfinite(x), lambda i, n=name: f"{n} = {value(n, i)} is not a finite number.",
+        problems.flag(~np.isfinite(x), lambda i, n=name: f"{n} = {value(n, i)} is not a finite number (NaN, inf or a masked element).",
                       kind=InputError)
     for name in ("T", "P", "v", "rho", "rho_mass"):
         if name in flat:
