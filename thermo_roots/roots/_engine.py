@@ -157,14 +157,16 @@ def real_values(value, func, x) -> np.ndarray:
 
 
 def _refuse(name, value, x):
-    what = "None" if value is None else f"{value!r} ({type(value).__name__})"
-    if len(what) > 120:
-        what = what[:117] + "..."
-    hint = ""
-    if np.iscomplexobj(value):
-        hint = " If the imaginary part is meant to be zero, return the real part (.real)."
-    elif value is None:
-        hint = " Check that it ends with a return statement."
+    if value is None:
+        what, hint = "None", " Check that it ends with a return statement."
+    else:
+        text = repr(value)
+        what = (text if len(text) <= 100 else text[:97] + "...") + f" ({type(value).__name__}"
+        what += f" of {np.asarray(value).dtype})" if isinstance(value, np.ndarray) else ")"
+        hint = ""
+        if np.iscomplexobj(value) or isinstance(value, complex):
+            what = "complex numbers: " + what
+            hint = " If the imaginary part is meant to be zero, return the real part (.real)."
     raise TypeError(
         f"{name} must return real numbers (float or int, one per x); at x = {_show(x)} it returned {what}.{hint}"
     )
