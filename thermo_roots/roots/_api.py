@@ -75,12 +75,12 @@ def find_root(f, bracket=None, method=DEFAULT_METHOD, x0=None, fprime=None, args
     -----
     Statuses (see :class:`Status`): "converged"; "iteration limit" (``root`` is the
     best point so far); "diverged" (an open method escaped, see
-    :mod:`thermo_roots.roots._open`, or f was not finite at an iterate); "left the
+    :mod:`thermo_roots.roots._open`, or f was NaN at an iterate); "left the
     domain"; "no sign change" (a bracketed method whose f(a), f(b) are not of opposite
-    signs, NaN included); "sign change at a pole" (the bracket shrank onto a point where
+    signs, NaN included); "pole, no root" (the bracket shrank onto a point where
     |f| grows instead of falling: the smaller |f| at the final bracket exceeds the larger
-    |f| at the starting ends); "cycling" (an open method revisited a point without
-    converging); "non-finite start" (an element of an array problem with a NaN or
+    |f| at the starting ends, or f is infinite inside the bracket); "cycling" (an open method revisited a point without
+    converging); "no finite start" (an element of an array problem with a NaN or
     infinite bracket end or x0; f is not called for it). An exact zero of f at a
     bracket end is a converged root. ``root`` is NaN for every status except
     "converged" and "iteration limit".

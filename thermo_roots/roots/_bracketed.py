@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from thermo_roots.roots._engine import CONVERGED, DIVERGED, NO_SIGN_CHANGE, POLE, as_codes, between, pole_like
+from thermo_roots.roots._engine import CONVERGED, DIVERGED, NO_SIGN_CHANGE, POLE, as_codes, between, mark_poles
 
 
 def evaluate_ends(work) -> np.ndarray:
@@ -87,10 +87,9 @@ class Bracketed:
     def propose(self, work, opts):
         v = work.v
         t = self.fraction(v)
-        # where the bracket is wider than the largest float, interpolation is not to be trusted
-        t[~np.isfinite(t) | ~np.isfinite(v["xo"] - v["x"])] = 0.5
+        t[~np.isfinite(t)] = 0.5
         np.clip(t, v["margin"], 1.0 - v["margin"], out=t)
-        v["xn"] = between(v["x"], t, v["xo"])
+        v["xn"] = between(v["x"], t, v["xo"], bisect_wide=True)
         return None
 
     def accept(self, work, fz, opts):
@@ -100,11 +99,13 @@ class Bracketed:
         v["xo"], v["fo"] = np.where(flip, v["x"], v["xo"]), np.where(flip, v["fx"], v["fo"])
         v["x"], v["fx"] = v.pop("xn"), fz
         codes = bracket_test(v, opts)
-        pole = (codes == CONVERGED) & pole_like(np.minimum(np.abs(fz), np.abs(v["fo"])), v["f0"])
-        bad = np.isnan(fz)
-        codes[bad] = DIVERGED  # f gave no usable value inside the bracket
-        pole |= np.isinf(fz)  # infinite between two finite values of opposite sign
-        codes[pole] = POLE
+        pole = mark_poles(codes, fz, v["fo"], v["f0"])
+        bad = ~np.isfinite(fz)
+        if bad.any():
+            infinite = np.isinf(fz)  # infinite between two finite values of opposite sign: a pole
+            codes[bad] = DIVERGED  # NaN: f gave no usable value inside the bracket
+            codes[infinite] = POLE
+            pole |= infinite
 
         def roots(done):
             best = best_end(v, done)

@@ -177,29 +177,37 @@ def _show(x) -> str:
     return repr(float(x.flat[0])) if x.size == 1 else f"an array of {x.size} values"
 
 
-def between(x: np.ndarray, t: np.ndarray, y: np.ndarray) -> np.ndarray:
+def between(x: np.ndarray, t: np.ndarray, y: np.ndarray, bisect_wide: bool = False) -> np.ndarray:
     """x + t (y - x), without overflow where y - x exceeds the largest float.
 
     Where y - x is finite this is exactly the usual formula (so iterates, and
     evaluation counts, are unchanged); elsewhere (1 - t) x + t y, whose terms stay
-    within the range of x and y.
+    within the range of x and y, with t = 1/2 there when ``bisect_wide`` (an
+    interpolation across such a span is not to be trusted). x and y are finite.
     """
     d = y - x
-    z = x + t * d
+    if d.size == 0 or (np.isfinite(d.max()) and np.isfinite(d.min())):  # two reductions, no temporaries
+        return x + t * d
     wide = ~np.isfinite(d)
-    if wide.any():
-        z = np.where(wide, (1.0 - t) * x + t * y, z)
-    return z
+    t = np.where(wide, 0.5, t) if bisect_wide else t
+    return np.where(wide, (1.0 - t) * x + t * y, x + t * d)
 
 
-def pole_like(f_best: np.ndarray, f_start: np.ndarray) -> np.ndarray:
-    """Where a shrunken bracket looks like a pole rather than a root.
+def mark_poles(codes: np.ndarray, f_final: np.ndarray, f_other: np.ndarray, f_start: np.ndarray) -> np.ndarray:
+    """Turn CONVERGED into POLE where the shrunken bracket looks like a pole; the mask.
 
     Near a simple root |f| at the bracket ends falls like the width; near a pole
     it grows like 1/width. Taken as a pole: the smaller |f| at the final bracket
-    exceeds the larger |f| at the starting ends (``f_start``).
+    (``f_final``, ``f_other``) exceeds the larger |f| at the starting ends
+    (``f_start``). Only the problems converging now are looked at.
     """
-    return np.abs(f_best) > f_start
+    pole = np.zeros(codes.shape, dtype=bool)
+    done = np.flatnonzero(codes == CONVERGED)
+    if done.size:
+        smaller = np.minimum(np.abs(f_final[done]), np.abs(f_other[done]))
+        pole[done] = smaller > f_start[done]
+        codes[pole] = POLE
+    return pole
 
 
 def as_codes(done: np.ndarray) -> np.ndarray:

@@ -23,7 +23,7 @@ import numpy as np
 
 from thermo_roots.roots._bracketed import evaluate_ends
 from thermo_roots.roots._engine import (
-    ACTIVE, CONVERGED, CYCLING, DIVERGED, LEFT_DOMAIN, POLE, as_codes, between, pole_like,
+    ACTIVE, CONVERGED, CYCLING, DIVERGED, LEFT_DOMAIN, POLE, as_codes, between, mark_poles,
 )
 
 GROWTH_LIMIT = 4  # consecutive growing steps taken as divergence (common practice)
@@ -108,17 +108,20 @@ class Open:
         # secant step tiny far from any root): probe one tolerance beyond it first.
         v["verify"] = short_step & v["br"] & ~done & ~v["verify"]
         codes = as_codes(done).copy()
-        pole = width_ok & pole_like(np.minimum(np.abs(v["fa"]), np.abs(v["fb"])), v["f0"])
+        pole = mark_poles(as_codes(width_ok).copy(), v["fa"], v["fb"], v["f0"]) if width_ok.any() else width_ok
         codes[pole] = POLE
-        cycling = ~done & ~v["br"] & (np.abs(z - v["anchor"]) <= opts.tol(v["anchor"]))
-        codes[cycling] = CYCLING
+        free = ~done & ~v["br"]
+        cycling = free
+        if free.any():  # with a bracket there is no cycle: the bracket shrinks every step
+            cycling = free & (np.abs(z - v["anchor"]) <= opts.tol(v["anchor"]))
+            codes[cycling] = CYCLING
         n = work.iteration
         if n & (n - 1) == 0:  # a power of two: this point becomes the one compared with
             v["anchor"] = z
         bad = ~np.isfinite(fz)
-        codes[bad] = DIVERGED
-        inf_inside = v["br"] & np.isinf(fz)  # infinite between two finite values of opposite sign
-        codes[inf_inside] = POLE
+        if bad.any():
+            codes[bad] = DIVERGED
+            codes[v["br"] & np.isinf(fz)] = POLE  # infinite between two finite values of opposite sign
         root = np.where(width_ok, self._best_end(v)[1], z) if width_ok.any() else z
         return codes, np.where(bad | pole | cycling, np.nan, root)
 

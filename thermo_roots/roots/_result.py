@@ -20,17 +20,22 @@ class Status(str, Enum):
 
     * "converged": a root within the tolerance (or f exactly 0, or ``|f| <= ftol``).
     * "iteration limit": maxiter reached; ``root`` is the best point so far.
-    * "diverged": an open method escaped, or f was not finite at an iterate.
+    * "diverged": an open method escaped, or f was NaN at an iterate (or infinite,
+      without a bracket).
     * "left the domain": an open method's next point lay outside ``domain``.
     * "no sign change": f(a) and f(b) are not of opposite signs (NaN included).
-    * "sign change at a pole": the bracket shrank onto a point where f changes sign
+    * "pole, no root": the bracket shrank onto a point where f changes sign
       but ``|f|`` grows (at the final bracket it exceeds ``|f|`` at both starting
-      ends): a pole or a jump of f, not a root.
+      ends), or f is infinite at a point inside a bracket with a sign change: a pole
+      (or a jump of f), not a root. ``root`` is NaN; the trace shows where.
     * "cycling": an open method came back to a point it had already visited (within
       the tolerance) without converging, e.g. Newton's 0, 1, 0, 1, ... on
       x**3 - 2x + 2; more iterations would not help.
-    * "non-finite start": in an array problem, this element's bracket end or x0 was
+    * "no finite start": in an array problem, this element's bracket end or x0 was
       NaN or infinite (f is not called for it; a scalar problem raises InputError).
+
+    Every text is at most 15 characters, so a status array is ``<U15`` (60 bytes a
+    problem), as callers that build status arrays of their own assume.
     """
 
     CONVERGED = "converged"
@@ -39,9 +44,9 @@ class Status(str, Enum):
     LEFT_DOMAIN = "left the domain"
     NO_SIGN_CHANGE = "no sign change"
     # Added later; appended so the integer codes of the older statuses stay the same.
-    POLE = "sign change at a pole"
+    POLE = "pole, no root"
     CYCLING = "cycling"
-    NOT_FINITE = "non-finite start"
+    NOT_FINITE = "no finite start"
 
     def __str__(self) -> str:
         return self.value
