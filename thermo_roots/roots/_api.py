@@ -79,8 +79,8 @@ def find_root(f, bracket=None, method=DEFAULT_METHOD, x0=None, fprime=None, args
     domain"; "no sign change" (a bracketed method whose f(a), f(b) are not of opposite
     signs, NaN included); "pole, no root" (the bracket shrank onto a point where
     |f| grows instead of falling: the smaller |f| at the final bracket exceeds the larger
-    |f| at the starting ends, or f is infinite inside the bracket); "cycling" (an open method revisited a point without
-    converging); "no finite start" (an element of an array problem with a NaN or
+    |f| at the starting ends, or f is infinite inside the bracket); "cycling" (an open
+    method revisited a point without converging); "no finite start" (an element of an array problem with a NaN or
     infinite bracket end or x0; f is not called for it). An exact zero of f at a
     bracket end is a converged root. ``root`` is NaN for every status except
     "converged" and "iteration limit".
@@ -158,8 +158,7 @@ def _options(xtol, rtol, ftol, maxiter) -> Options:
         raise InputError("xtol and rtol are both 0; give at least one of them a positive value.")
     if not (_real(maxiter) and _whole(maxiter) and maxiter >= 1):
         raise InputError(f"maxiter must be a whole number >= 1 (an int such as 100, or 1e4); got "
-                         f"{_short(maxiter)} ({type(maxiter).__name__}). The default is 100; "
-                         "bisection needs about 60 iterations for the full float precision.")
+                         f"{_short(maxiter)} ({type(maxiter).__name__}). The default is 100.")
     # Below 2 eps the width test could never be met: adjacent floats differ by up to eps |x|.
     return Options(float(xtol), max(float(rtol), 2 * _EPS), float(ftol), int(maxiter))
 
