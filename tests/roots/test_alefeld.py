@@ -93,17 +93,37 @@ def test_roots_agree_with_brentq(runs):
 
 
 def test_vectorized_families_match_scalar_solves(runs):
-    """Each function's parameter sets solved as one array problem give the same answers."""
+    """Each function's parameter sets solved as one array problem give the same answers.
+
+    Roots agree within the solver's tolerance and the evaluation counts within a small
+    slack, not exactly: numpy's vectorized transcendental functions (and ``**``) may
+    differ from the scalar ones in the last bit on some CPUs (AVX-512: problem 12.04,
+    ``x**(1/n)``, takes 11 evaluations vectorized and 12 scalar), which can move a
+    bracket end by one float and the stop by one iteration. A broken array path
+    (arguments cut out of step with x, a wrong count per problem) misses these bounds
+    by far; tests/roots/test_vectorized.py checks exact agreement where only
+    correctly rounded arithmetic is involved.
+    """
     by_function = {}
     for p, ours, *_ in runs:
         by_function.setdefault(p.f, []).append((p, ours))
+    total_together = total_singles = 0
     for f, group in by_function.items():
         a = np.array([p.a for p, _ in group])
         b = np.array([p.b for p, _ in group])
         arity = len(group[0][0].args)
         args = tuple(np.array([p.args[k] for p, _ in group], dtype=float) for k in range(arity))
         together = find_root(f, (a, b), args=args, xtol=XTOL, rtol=RTOL)
-        singles = [r for _, r in group]
-        np.testing.assert_allclose(together.root, [r.root for r in singles], rtol=1e-12, atol=1e-300)
-        assert list(together.status) == [str(r.status) for r in singles]
-        assert list(together.evaluations) == [r.evaluations for r in singles]
+        for k, (p, single) in enumerate(group):
+            assert together.status[k] == str(single.status), p.name
+            tol = 2 * (XTOL + RTOL * abs(single.root))
+            close = abs(together.root[k] - single.root) <= tol
+            assert close or p.f(together.root[k], *p.args) == 0, (p.name, together.root[k], single.root)
+            assert abs(int(together.evaluations[k]) - single.evaluations) <= SLACK, p.name
+            assert abs(int(together.iterations[k]) - single.iterations) <= SLACK, p.name
+        total_together += int(together.evaluations.sum())
+        total_singles += sum(r.evaluations for _, r in group)
+    assert abs(total_together - total_singles) <= 0.01 * total_singles
+
+
+SLACK = 3  # evaluations or iterations one problem may differ by between the scalar and array paths

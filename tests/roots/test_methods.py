@@ -158,7 +158,10 @@ def test_default_method_is_the_hybrid():
 def test_status_texts():
     # Readable values promised by the API.
     assert [s.value for s in Status] == [
-        "converged", "iteration limit", "diverged", "left the domain", "no sign change"]
+        "converged", "iteration limit", "diverged", "left the domain", "no sign change",
+        "pole, no root", "cycling", "no finite start"]
+    # status arrays stay <U15 (inversion/saturation.py builds one of that width)
+    assert max(len(s.value) for s in Status) <= 15
     assert Status.CONVERGED == "converged"
 
 
@@ -180,10 +183,15 @@ def test_require_converged_raises_with_the_result():
     assert find_root(cubic, (2, 3)).require_converged().converged
 
 
-@pytest.mark.parametrize("bracket", [(np.nan, 1.0), (0.0, np.inf), (np.array([0.0, np.nan]), 1.0)])
-def test_non_finite_bracket_is_an_input_error(bracket):
-    with pytest.raises(InputError, match="finite"):
+@pytest.mark.parametrize("bracket", [(np.nan, 1.0), (0.0, np.inf), (-np.inf, 3.0)])
+def test_non_finite_bracket_of_a_scalar_problem_is_an_input_error(bracket):
+    with pytest.raises(InputError, match="bracket must be finite"):
         find_root(cubic, bracket)
+
+
+def test_non_finite_x0_of_a_scalar_problem_is_an_input_error():
+    with pytest.raises(InputError, match="x0 must be finite"):
+        find_root(cubic, x0=np.nan, method="secant")
 
 
 def test_unknown_method_lists_the_allowed_names():

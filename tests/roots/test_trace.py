@@ -40,7 +40,7 @@ def test_open_trace_without_bracket_has_nan_ends():
 
 def test_array_trace_expands_with_nan_for_stopped_elements():
     c = np.array([1.0, 4.0, -1.0])
-    r = find_root(lambda x, c: x**2 - c, (0.0, 3.0), args=(c,))
+    r = find_root(lambda x, c: x**2 - c, (0.0, 3.0), args=(c,), trace=True)
     x = r.trace.x
     assert x.shape == (len(r.trace), 3)
     assert np.isnan(x[1:, 2]).all()  # no sign change: only the starting record
@@ -53,6 +53,15 @@ def test_array_trace_expands_with_nan_for_stopped_elements():
 
 def test_trace_off():
     assert find_root(cubic, (2.0, 3.0), trace=False).trace is None
+
+
+def test_default_traces_a_scalar_problem_but_not_an_array_problem():
+    # An array trace costs about 40 bytes per element and iteration (1.5 GB for 10**6
+    # bisections), so arrays keep theirs only when asked.
+    assert len(find_root(cubic, (2.0, 3.0)).trace) > 1
+    c = np.array([4.0, 9.0])
+    assert find_root(lambda x, c: x**2 - c, (0.0, 5.0), args=(c,)).trace is None
+    assert len(find_root(lambda x, c: x**2 - c, (0.0, 5.0), args=(c,), trace=True).trace) > 1
 
 
 @settings(max_examples=60, deadline=None)

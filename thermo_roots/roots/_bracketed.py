@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from thermo_roots.roots._engine import CONVERGED, DIVERGED, NO_SIGN_CHANGE, as_codes
+from thermo_roots.roots._engine import CONVERGED, DIVERGED, NO_SIGN_CHANGE, POLE, as_codes, between, mark_poles
 
 
 def evaluate_ends(work) -> np.ndarray:
@@ -21,6 +21,7 @@ def evaluate_ends(work) -> np.ndarray:
     v = work.v
     v["fa"] = work.evaluate(v["a"])
     v["fb"] = work.evaluate(v["b"])
+    v["f0"] = np.maximum(np.abs(v["fa"]), np.abs(v["fb"]))  # for the pole test at the end
     return ((v["fa"] < 0) & (v["fb"] > 0)) | ((v["fa"] > 0) & (v["fb"] < 0))
 
 
@@ -88,7 +89,7 @@ class Bracketed:
         t = self.fraction(v)
         t[~np.isfinite(t)] = 0.5
         np.clip(t, v["margin"], 1.0 - v["margin"], out=t)
-        v["xn"] = v["x"] + t * (v["xo"] - v["x"])
+        v["xn"] = between(v["x"], t, v["xo"], bisect_wide=True)
         return None
 
     def accept(self, work, fz, opts):
@@ -98,12 +99,17 @@ class Bracketed:
         v["xo"], v["fo"] = np.where(flip, v["x"], v["xo"]), np.where(flip, v["fx"], v["fo"])
         v["x"], v["fx"] = v.pop("xn"), fz
         codes = bracket_test(v, opts)
+        pole = mark_poles(codes, fz, v["fo"], v["f0"])
         bad = ~np.isfinite(fz)
-        codes[bad] = DIVERGED  # f gave no usable value inside the bracket
+        if bad.any():
+            infinite = np.isinf(fz)  # infinite between two finite values of opposite sign: a pole
+            codes[bad] = DIVERGED  # NaN: f gave no usable value inside the bracket
+            codes[infinite] = POLE
+            pole |= infinite
 
         def roots(done):
             best = best_end(v, done)
-            best[bad[done]] = np.nan
+            best[(bad | pole)[done]] = np.nan
             return best
 
         return codes, roots
@@ -150,7 +156,8 @@ class Illinois(Bracketed):
         v["go"] = v["fo"]  # the (possibly halved) f value used for the other end
 
     def fraction(self, v):
-        return v["fx"] / (v["fx"] - v["go"])
+        d = v["fx"] - v["go"]
+        return np.where(np.isfinite(d), v["fx"] / d, np.nan)  # an overflowed difference: bisect
 
     def remember(self, v, fz, flip):
         v["go"] = np.where(flip, v["fx"], 0.5 * v["go"])

@@ -23,6 +23,9 @@ ITERATION_LIMIT = CODE[Status.ITERATION_LIMIT]
 DIVERGED = CODE[Status.DIVERGED]
 LEFT_DOMAIN = CODE[Status.LEFT_DOMAIN]
 NO_SIGN_CHANGE = CODE[Status.NO_SIGN_CHANGE]
+POLE = CODE[Status.POLE]
+CYCLING = CODE[Status.CYCLING]
+NOT_FINITE = CODE[Status.NOT_FINITE]
 
 
 @dataclass(frozen=True)
@@ -68,29 +71,37 @@ class Work:
         self.idx = np.arange(len(next(iter(state.values()))))
         self.args, self.packed, self.scalar = args, packed, scalar
         self.calls = 0
+        self.iteration = 0  # the iteration in progress, shared by every active problem
 
     @property
     def size(self) -> int:
         return self.idx.size
 
-    def call(self, func, x: np.ndarray) -> np.ndarray:
-        """func at x with the matching args; a scalar problem passes a float."""
-        value = func(x[0] if self.scalar else x, *self.args)
-        value = np.asarray(value, dtype=float)
+    def call(self, func, x: np.ndarray, one_per_x: bool = False) -> np.ndarray:
+        """func at x with the matching args; a scalar problem passes a float.
+
+        ``one_per_x`` (used for f) requires one value per element of x: a single
+        value for many x is refused instead of broadcast. A derivative may return one
+        value for all (a constant slope).
+        """
+        value = real_values(func(x[0] if self.scalar else x, *self.args), func, x)
         if value.shape == x.shape:
             return value
-        try:
-            return np.broadcast_to(value, x.shape)
-        except ValueError:
+        if value.size == x.size:
+            return value.reshape(x.shape)
+        name = _name(func)
+        if one_per_x or value.size != 1:
             raise InputError(
-                f"{getattr(func, '__name__', 'f')} returned shape {value.shape} for {x.shape} inputs; "
-                "it must work elementwise and return one value per input."
-            ) from None
+                f"{name} returned {value.size} value(s), shape {value.shape}, for {x.size} x value(s); "
+                f"{name} must return one value per x: work elementwise on the array it is given "
+                "(numpy functions do), not return a single number for all of them."
+            )
+        return np.broadcast_to(value, x.shape)
 
     def evaluate(self, x: np.ndarray) -> np.ndarray:
         """f at x for every active problem."""
         self.calls += 1
-        return self.call(self.f, x)
+        return self.call(self.f, x, one_per_x=True)
 
     def retire(self, codes, roots, iterations: int, out: Outputs) -> None:
         """Move the problems whose code is not ACTIVE into ``out``; pack the rest.
@@ -114,6 +125,89 @@ class Work:
         self.idx = self.idx.take(keep)
         self.v = {name: values.take(keep) for name, values in self.v.items()}
         self.args = [a.take(keep) if p else a for a, p in zip(self.args, self.packed)]
+
+
+def _name(func) -> str:
+    name = getattr(func, "__name__", None)
+    return name if isinstance(name, str) and name.isidentifier() else "f"  # "<lambda>" reads as f
+
+
+def real_values(value, func, x) -> np.ndarray:
+    """``value`` as a float array, or a TypeError naming what ``func`` returned.
+
+    Refused: None, complex numbers (even with a zero imaginary part), booleans and
+    strings. Anything else numpy reads as real numbers (ints, floats, Fractions) is
+    accepted.
+    """
+    name = _name(func)
+    arr = np.asarray(value)
+    kind = arr.dtype.kind
+    if kind in "fiu":
+        return arr.astype(float, copy=False)
+    if kind == "O":
+        refused = (complex, np.complexfloating, str, bytes, bool, np.bool_)
+        bad = [v for v in arr.ravel() if v is None or isinstance(v, refused)][:1]
+        if bad:
+            return _refuse(name, bad[0], x)
+        try:
+            return arr.astype(float)
+        except (TypeError, ValueError):
+            return _refuse(name, value, x)
+    return _refuse(name, value, x)
+
+
+def _refuse(name, value, x):
+    if value is None:
+        what, hint = "None", " Check that it ends with a return statement."
+    else:
+        text = repr(value)
+        what = (text if len(text) <= 100 else text[:97] + "...") + f" ({type(value).__name__}"
+        what += f" of {np.asarray(value).dtype})" if isinstance(value, np.ndarray) else ")"
+        hint = ""
+        if np.iscomplexobj(value) or isinstance(value, complex):
+            what = "complex numbers: " + what
+            hint = " If the imaginary part is meant to be zero, return the real part (.real)."
+    raise TypeError(
+        f"{name} must return real numbers (float or int, one per x); at x = {_show(x)} it returned {what}.{hint}"
+    )
+
+
+def _show(x) -> str:
+    x = np.asarray(x)
+    return repr(float(x.flat[0])) if x.size == 1 else f"an array of {x.size} values"
+
+
+def between(x: np.ndarray, t: np.ndarray, y: np.ndarray, bisect_wide: bool = False) -> np.ndarray:
+    """x + t (y - x), without overflow where y - x exceeds the largest float.
+
+    Where y - x is finite this is exactly the usual formula (so iterates, and
+    evaluation counts, are unchanged); elsewhere (1 - t) x + t y, whose terms stay
+    within the range of x and y, with t = 1/2 there when ``bisect_wide`` (an
+    interpolation across such a span is not to be trusted). x and y are finite.
+    """
+    d = y - x
+    if d.size == 0 or (np.isfinite(d.max()) and np.isfinite(d.min())):  # two reductions, no temporaries
+        return x + t * d
+    wide = ~np.isfinite(d)
+    t = np.where(wide, 0.5, t) if bisect_wide else t
+    return np.where(wide, (1.0 - t) * x + t * y, x + t * d)
+
+
+def mark_poles(codes: np.ndarray, f_final: np.ndarray, f_other: np.ndarray, f_start: np.ndarray) -> np.ndarray:
+    """Turn CONVERGED into POLE where the shrunken bracket looks like a pole; the mask.
+
+    Near a simple root |f| at the bracket ends falls like the width; near a pole
+    it grows like 1/width. Taken as a pole: the smaller |f| at the final bracket
+    (``f_final``, ``f_other``) exceeds the larger |f| at the starting ends
+    (``f_start``). Only the problems converging now are looked at.
+    """
+    pole = np.zeros(codes.shape, dtype=bool)
+    done = np.flatnonzero(codes == CONVERGED)
+    if done.size:
+        smaller = np.minimum(np.abs(f_final[done]), np.abs(f_other[done]))
+        pole[done] = smaller > f_start[done]
+        codes[pole] = POLE
+    return pole
 
 
 def as_codes(done: np.ndarray) -> np.ndarray:
@@ -149,6 +243,8 @@ def drive(method, work: Work, opts: Options, out: Outputs, tracer: Tracer) -> No
     retiring problems (see :meth:`Work.retire`). Arithmetic warnings inside the methods are
     silenced: IEEE results (inf, NaN) are checked explicitly; f's own warnings are not.
     """
+    if not work.size:  # every problem retired before the start (non-finite inputs)
+        return
     with np.errstate(**_QUIET):
         codes, roots = method.start(work, opts)
     tracer.record(0, work, method)
@@ -156,6 +252,7 @@ def drive(method, work: Work, opts: Options, out: Outputs, tracer: Tracer) -> No
     iteration = 0
     while work.size and iteration < opts.maxiter:
         iteration += 1
+        work.iteration = iteration
         with np.errstate(**_QUIET):
             work.retire(method.propose(work, opts), np.nan, iteration - 1, out)
         if not work.size:

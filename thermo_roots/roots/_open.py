@@ -6,7 +6,11 @@ Without a bracket (or with one where f does not change sign) an open method stop
   the new point or f there is not finite, or the step has grown GROWTH_LIMIT
   iterations in a row;
 * "left the domain" when the new point lies outside ``domain=(lo, hi)`` (closed);
-  f is never called there.
+  f is never called there;
+* "cycling" when the new point is within the tolerance of an earlier one without
+  the step being short (Brent's cycle detection: the point of the last iteration
+  that was a power of two is kept and compared, so a cycle of any period is found
+  within about twice its period once the iterates have settled on it).
 
 With a bracket whose ends have f of opposite sign, a step that fails any of these
 checks or lands outside the bracket is replaced by a bisection step, and the bracket
@@ -18,7 +22,9 @@ from __future__ import annotations
 import numpy as np
 
 from thermo_roots.roots._bracketed import evaluate_ends
-from thermo_roots.roots._engine import ACTIVE, CONVERGED, DIVERGED, LEFT_DOMAIN, as_codes
+from thermo_roots.roots._engine import (
+    ACTIVE, CONVERGED, CYCLING, DIVERGED, LEFT_DOMAIN, POLE, as_codes, between, mark_poles,
+)
 
 GROWTH_LIMIT = 4  # consecutive growing steps taken as divergence (common practice)
 
@@ -51,9 +57,11 @@ class Open:
         else:
             v["br"] = np.zeros(n, dtype=bool)
             v["a"] = v["b"] = v["fa"] = v["fb"] = np.full(n, np.nan)
+            v["f0"] = np.full(n, np.inf)
         self.first_points(work, opts)
         v["step"], v["grow"] = np.full(n, np.inf), np.zeros(n, dtype=np.int64)
         v["verify"] = np.zeros(n, dtype=bool)
+        v["anchor"] = v["x"]  # for the cycle test
         return self._start_codes(v, opts)
 
     def _start_codes(self, v, opts):
@@ -75,7 +83,7 @@ class Open:
         # A final step within tol may round to or just past a bracket end: let it through.
         in_bracket = ((z > v["a"]) & (z < v["b"])) | (np.abs(z - v["x"]) <= opts.tol(v["x"]))
         bisect = v["br"] & ~(formed & in_domain & in_bracket)
-        z = np.where(bisect, v["a"] + 0.5 * (v["b"] - v["a"]), z)
+        z = np.where(bisect, between(v["a"], 0.5, v["b"]), z)
         z = np.where(v["verify"], self._verification_point(v, opts), z)
         step = np.abs(z - v["x"])
         v["grow"] = np.where(step > v["step"], v["grow"] + 1, 0)
@@ -99,11 +107,23 @@ class Open:
         # With a bracket a short step is no proof (a huge f at one end makes the first
         # secant step tiny far from any root): probe one tolerance beyond it first.
         v["verify"] = short_step & v["br"] & ~done & ~v["verify"]
-        codes = as_codes(done)
+        codes = as_codes(done).copy()
+        pole = mark_poles(as_codes(width_ok).copy(), v["fa"], v["fb"], v["f0"]) if width_ok.any() else width_ok
+        codes[pole] = POLE
+        free = ~done & ~v["br"]
+        cycling = free
+        if free.any():  # with a bracket there is no cycle: the bracket shrinks every step
+            cycling = free & (np.abs(z - v["anchor"]) <= opts.tol(v["anchor"]))
+            codes[cycling] = CYCLING
+        n = work.iteration
+        if n & (n - 1) == 0:  # a power of two: this point becomes the one compared with
+            v["anchor"] = z
         bad = ~np.isfinite(fz)
-        codes[bad] = DIVERGED
+        if bad.any():
+            codes[bad] = DIVERGED
+            codes[v["br"] & np.isinf(fz)] = POLE  # infinite between two finite values of opposite sign
         root = np.where(width_ok, self._best_end(v)[1], z) if width_ok.any() else z
-        return codes, np.where(bad, np.nan, root)
+        return codes, np.where(bad | pole | cycling, np.nan, root)
 
     @staticmethod
     def _verification_point(v, opts):

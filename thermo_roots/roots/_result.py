@@ -17,6 +17,25 @@ class Status(str, Enum):
     A ``str`` enum: each member compares equal to its readable text, so
     ``result.status == "converged"`` works for scalars and, element by element,
     for the string arrays returned by vectorized solves.
+
+    * "converged": a root within the tolerance (or f exactly 0, or ``|f| <= ftol``).
+    * "iteration limit": maxiter reached; ``root`` is the best point so far.
+    * "diverged": an open method escaped, or f was NaN at an iterate (or infinite,
+      without a bracket).
+    * "left the domain": an open method's next point lay outside ``domain``.
+    * "no sign change": f(a) and f(b) are not of opposite signs (NaN included).
+    * "pole, no root": the bracket shrank onto a point where f changes sign
+      but ``|f|`` grows (at the final bracket it exceeds ``|f|`` at both starting
+      ends), or f is infinite at a point inside a bracket with a sign change: a pole
+      (or a jump of f), not a root. ``root`` is NaN; the trace shows where.
+    * "cycling": an open method came back to a point it had already visited (within
+      the tolerance) without converging, e.g. Newton's 0, 1, 0, 1, ... on
+      x**3 - 2x + 2; more iterations would not help.
+    * "no finite start": in an array problem, this element's bracket end or x0 was
+      NaN or infinite (f is not called for it; a scalar problem raises InputError).
+
+    Every text is at most 15 characters, so a status array is ``<U15`` (60 bytes a
+    problem), as callers that build status arrays of their own assume.
     """
 
     CONVERGED = "converged"
@@ -24,6 +43,10 @@ class Status(str, Enum):
     DIVERGED = "diverged"
     LEFT_DOMAIN = "left the domain"
     NO_SIGN_CHANGE = "no sign change"
+    # Added later; appended so the integer codes of the older statuses stay the same.
+    POLE = "pole, no root"
+    CYCLING = "cycling"
+    NOT_FINITE = "no finite start"
 
     def __str__(self) -> str:
         return self.value
@@ -61,6 +84,11 @@ class TraceStep:
     fx: float
     a: float
     b: float
+
+
+def _count(n: int, word: str) -> str:
+    """'1 iteration', '2 iterations'."""
+    return f"{n} {word}" if n == 1 else f"{n} {word}s"
 
 
 def _float(values, i):
@@ -196,6 +224,21 @@ class RootResult:
             "look at .status and .trace, widen the bracket or raise maxiter.",
             result=self,
         )
+
+    def summary(self) -> str:
+        """One line for a person: method, status, iterations and evaluations, root.
+
+        >>> from thermo_roots.roots import find_root
+        >>> find_root(lambda x: x - 1.0, bracket=(1.0, 2.0)).summary()
+        'chandrupatla: converged after 0 iterations (2 evaluations), root 1.0'
+        """
+        if self.is_scalar:
+            return (f"{self.method}: {self.status} after {_count(self.iterations, 'iteration')} "
+                    f"({_count(self.evaluations, 'evaluation')}), root {self.root!r}")
+        size = int(np.size(self.root))
+        most = int(np.max(self.iterations, initial=0))
+        return (f"{self.method}, {_count(size, 'problem')}: {self._summary()}; "
+                f"at most {_count(most, 'iteration')}, {_count(int(np.sum(self.evaluations)), 'evaluation')} in all")
 
     def _summary(self) -> str:
         if self.is_scalar:
