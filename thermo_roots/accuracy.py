@@ -106,12 +106,15 @@ class AccuracyMap:
         wrong phase counts as outside).
     models : tuple of str
         The model labels, in the order given.
+    model_objects : tuple
+        The models themselves, in the same order (plots draw their saturation curves).
     """
 
     fluid: Fluid
     points: pd.DataFrame = field(repr=False)
     summary: pd.DataFrame = field(repr=False)
     models: tuple = ()
+    model_objects: tuple = field(default=(), repr=False, compare=False)
 
     @classmethod
     def combine(cls, parts) -> "AccuracyMap":
@@ -129,7 +132,7 @@ class AccuracyMap:
                 reasons[reason] = reasons.get(reason, 0) + count
         points.attrs["excluded_reasons"] = reasons
         return cls(fluid=first.fluid, points=points, summary=_summarise(points, list(first.models)),
-                   models=first.models)
+                   models=first.models, model_objects=first.model_objects)
 
     def best_by_region(self) -> pd.DataFrame:
         """The model of lowest mean |deviation| in each region (index: region)."""
@@ -210,7 +213,8 @@ def accuracy_map(fluid, models=("PR", "SRK"), T=None, P=None, *, n=25, log=None,
         }))
     points = pd.concat(frames, ignore_index=True)[list(POINT_COLUMNS)]
     points.attrs.update(_attrs(fluid, labels, Ts, Ps, int((~keep).sum()), ref))
-    return AccuracyMap(fluid=fluid, points=points, summary=_summarise(points, labels), models=tuple(labels))
+    return AccuracyMap(fluid=fluid, points=points, summary=_summarise(points, labels), models=tuple(labels),
+                       model_objects=tuple(instances))
 
 
 def _attrs(fluid, labels, Ts, Ps, excluded, ref):

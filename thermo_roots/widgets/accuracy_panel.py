@@ -62,7 +62,7 @@ class AccuracyPanel(w.VBox):
         self.progress = w.IntProgress(value=0, min=0, max=1, description="", layout=w.Layout(width="300px"))
         self.progress_note = w.HTML()
         self.status, self.summary = w.HTML(), w.HTML()
-        self.plot = FigureImage(figsize=(8.5, 5.6))
+        self.plot = FigureImage(figsize=(11.9, 5.8))   # two maps side by side
         self.compute_button.on_click(lambda _: self._start())
         self.cancel_button.on_click(lambda _: self.cancel())
         controls = w.VBox([
@@ -155,14 +155,14 @@ class AccuracyPanel(w.VBox):
 
     # -- display
     def _draw(self):
-        from ..plots import plot_accuracy_map
+        from ..plots import plot_accuracy_maps
 
         amap = self.result
         fig = self.plot.clear()
-        fig.set_size_inches(8.5, 5.6 * len(amap.models))   # one full-width map per model
-        axes = fig.subplots(len(amap.models), 1, squeeze=False).ravel()
-        for ax, label in zip(axes, amap.models):
-            plot_accuracy_map(amap, model=label, ax=ax)
+        cols = min(2, len(amap.models))           # side by side, on one colour scale
+        rows = -(-len(amap.models) // cols)
+        fig.set_size_inches(5.3 * cols + 1.3, 4.9 * rows + 0.9)
+        plot_accuracy_maps(amap, figure=fig, ncols=cols)
         self.plot.publish()
         summary = amap.summary
         rows = [(str(r.model), str(r.region), str(r.points), str(r.phase_disagreements),

@@ -15,6 +15,7 @@ from ..errors import ThermoRootsError
 from ..roots import DEFAULT_METHOD, METHODS
 from ._inputs import FieldError, FluidField, ModelField, QuantityField, _label
 from ._render import FigureImage, block, caution_html, error_html, fmt, in_unit, table
+from ..plots import plain_log_ticks
 
 #: What can be traced: (label, unknown, the two knowns).
 PROBLEMS = (
@@ -189,6 +190,8 @@ class RootTracePanel(w.VBox):
             ax.plot(xs[~off], fs[~off], "o", color="#1a5fb4", ms=4, zorder=3)
             ax.plot(xs[off], fs[off], "^", color="#1a5fb4", ms=5, zorder=3)
             ax.set_xscale(p.xscale)
+            if p.xscale == "log":
+                plain_log_ticks(ax.xaxis)
             ax.set_ylim(bottom, top)
             _number_iterates(ax, xs, fs)
             its = "iteration" if result.iterations == 1 else "iterations"
