@@ -139,11 +139,11 @@ def _quality_top(quality):
     return min(1.0, 1.15 * top) if top > 0 else 1.0
 
 
-def _caution(ax):
+def _caution(ax, y=-0.16):
     # wrap to the axes' width: about 3.5 pt per character at 6.5 pt type
     width_pt = ax.get_position().width * ax.figure.get_figwidth() * 72.0
     ax.annotate("\n".join(textwrap.wrap("Caution: " + CAUTION, max(40, int(width_pt / 3.5)))),
-                xy=(0.0, -0.16), xycoords="axes fraction",
+                xy=(0.0, y), xycoords="axes fraction",
                 ha="left", va="top", fontsize=6.5, color="0.25", annotation_clip=False)
 
 
@@ -733,8 +733,10 @@ def plot_isochore(frame, ax=None):
     ax = _new_axes(ax, size=(8.0, 5.6))
     st = model_style(0)
     label = a.get("model_short_name") or a.get("model", "model")
+    shift = ""
     if a.get("volume_shift"):
-        label += f" + c = {a['volume_shift'] * 1e6:.4g} cm³/mol"
+        label += " (translated)"
+        shift = f"\n(volume shift c = {a['volume_shift'] * 1e6:.4g} cm³/mol)"
     T = frame["T"].to_numpy()
     ax.plot(T, frame["P"] * _BAR, color=st["color"], linestyle=st["linestyle"], linewidth=st["linewidth"],
             marker=st["marker"], markersize=4, markerfacecolor="white", label=f"pressure, {label}", gid="model")
@@ -744,12 +746,12 @@ def plot_isochore(frame, ax=None):
                 gid="reference", **STYLE["reference"])
     point = a.get("fill_point")
     if point:
-        ax.plot([point["T"]], [point["P"] * _BAR], label=f"{point['kind']}, {label}: {point['T']:.2f} K, "
+        ax.plot([point["T"]], [point["P"] * _BAR], label=f"{point['kind']}, {label}: {_temperature_text(point['T'])}, "
                 f"{point['P'] * _BAR:.4g} bar", gid="fill-point", **STYLE["fill_point"])
     ref_point = a.get("reference_fill_point")
     if ref_point:
         ax.plot([ref_point["T"]], [ref_point["P"] * _BAR], label=f"{ref_point['kind']}, reference: "
-                f"{ref_point['T']:.2f} K, {ref_point['P'] * _BAR:.4g} bar", gid="reference-fill-point",
+                f"{_temperature_text(ref_point['T'])}, {ref_point['P'] * _BAR:.4g} bar", gid="reference-fill-point",
                 **STYLE["reference_fill_point"])
     quality = frame["quality"].to_numpy(dtype=float).copy()
     if point:  # at the liquid-full point the last vapor is gone (quality 0); at the vapor-full one, 1
@@ -763,10 +765,13 @@ def plot_isochore(frame, ax=None):
     _celsius_axis(ax)
     ax.grid(True, color="0.92")
     fill = a.get("rho_mass")
-    ax.set_title(f"{a.get('fluid', '')} — {label}: closed vessel at {fill:.4g} kg/m³ heated"
-                 if fill else f"{a.get('fluid', '')} — {label}: closed vessel heated")
+    ax.set_title(f"{a.get('fluid', '')} — {label}: closed vessel at {fill:.4g} kg/m³ heated{shift}"
+                 if fill else f"{a.get('fluid', '')} — {label}: closed vessel heated{shift}")
     handles, names = quality_axes.get_legend_handles_labels()
-    # lower right: below the pressure curves, which rise to the right, and clear of the quality
-    _deduplicated_legend(ax, extra=list(zip(handles, names)), loc="lower right", fontsize=8, framealpha=0.9)
-    _caution(ax)
+    # under the axes, clear of every curve; the caution goes under the legend
+    legend = _deduplicated_legend(ax, extra=list(zip(handles, names)), loc="upper center",
+                                  bbox_to_anchor=(0.5, -0.1), ncol=2, fontsize=8, frameon=False)
+    rows = -(-len(legend.get_texts()) // 2)
+    height_pt = ax.get_position().height * ax.figure.get_figheight() * 72.0
+    _caution(ax, y=-0.13 - rows * 16.0 / height_pt)
     return ax
