@@ -770,8 +770,8 @@ def plot_isochore(frame, ax=None):
     handles, names = quality_axes.get_legend_handles_labels()
     # under the axes, clear of every curve; the caution goes under the legend
     legend = _deduplicated_legend(ax, extra=list(zip(handles, names)), loc="upper center",
-                                  bbox_to_anchor=(0.5, -0.1), ncol=2, fontsize=8, frameon=False)
+                                  bbox_to_anchor=(0.5, -0.12), ncol=2, fontsize=8, frameon=False)
     rows = -(-len(legend.get_texts()) // 2)
     height_pt = ax.get_position().height * ax.figure.get_figheight() * 72.0
-    _caution(ax, y=-0.13 - rows * 16.0 / height_pt)
+    _caution(ax, y=-0.15 - rows * 16.0 / height_pt)
     return ax

@@ -197,7 +197,7 @@ class RootTracePanel(w.VBox):
             its = "iteration" if result.iterations == 1 else "iterations"
             ax.set_title(f"{name}: {result.status}, {result.iterations} {its} — {p.describe(result)}",
                          fontsize=9, loc="left")
-            ax.set_ylabel("P_model/P - 1", fontsize=8)
+            ax.set_ylabel("residual P_model/P − 1", fontsize=8)
             ax.tick_params(labelsize=8, labelbottom=True)
         for ax in axes[n:]:
             ax.set_axis_off()
