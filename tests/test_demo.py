@@ -109,13 +109,26 @@ def test_lab_command_adds_allow_root_only_for_root(monkeypatch):
     assert demo.FIRST_NOTEBOOK in command
     monkeypatch.setattr(os, "geteuid", lambda: 1000)
     assert "--allow-root" not in demo.lab_command()
+    assert demo.lab_command(extra=("--ip=0.0.0.0",))[-1] == "--ip=0.0.0.0"
+
+
+def test_options_after_a_double_dash_go_to_jupyterlab(tmp_path, monkeypatch, capsys):
+    source = _shipped(tmp_path)
+    started = []
+    monkeypatch.setattr(demo, "shipped_notebooks", lambda: source)
+    monkeypatch.setattr(demo, "start_lab", lambda folder, extra=(): started.append(list(extra)) or 0)
+    assert demo.main(["--lab", "--", "--ip=0.0.0.0", "--port=8890"]) == 0
+    assert started == [["--ip=0.0.0.0", "--port=8890"]]
+    with pytest.raises(SystemExit):
+        demo.main(["--", "--ip=0.0.0.0"])          # without --lab there is no JupyterLab to give them to
+    assert "--lab" in capsys.readouterr().err
 
 
 def test_main_with_lab_prints_the_tour_then_starts_lab_in_the_working_copy(tmp_path, monkeypatch, capsys):
     source = _shipped(tmp_path)
     started = []
     monkeypatch.setattr(demo, "shipped_notebooks", lambda: source)
-    monkeypatch.setattr(demo, "start_lab", lambda folder: started.append(folder) or 0)
+    monkeypatch.setattr(demo, "start_lab", lambda folder, extra=(): started.append(folder) or 0)
     assert demo.main(["--lab"]) == 0
     out = capsys.readouterr().out
     assert out.index("CAUTION") < out.index("working copies")

@@ -211,22 +211,24 @@ def running_as_root() -> bool:
     return hasattr(os, "geteuid") and os.geteuid() == 0
 
 
-def lab_command(notebook: str = FIRST_NOTEBOOK) -> list[str]:
-    """The JupyterLab command line; as root (e.g. in a container) JupyterLab needs --allow-root."""
-    return [sys.executable, "-m", "jupyterlab", notebook] + (["--allow-root"] if running_as_root() else [])
+def lab_command(notebook: str = FIRST_NOTEBOOK, extra=()) -> list[str]:
+    """The JupyterLab command line; as root (e.g. in a container) JupyterLab needs --allow-root.
+    ``extra`` options go to JupyterLab as given (e.g. ``--ip=0.0.0.0`` to reach a container)."""
+    root = ["--allow-root"] if running_as_root() and "--allow-root" not in extra else []
+    return [sys.executable, "-m", "jupyterlab", notebook, *root, *extra]
 
 
-def start_lab(folder: Path) -> int:
+def start_lab(folder: Path, extra=()) -> int:
     """Start JupyterLab in ``folder`` and wait until it is stopped (Ctrl-C)."""
-    command = lab_command()
-    print("Starting JupyterLab: " + " ".join(command[1:]) + f"   (in {folder}; Ctrl-C stops it)")
+    command = lab_command(extra=tuple(extra))
+    print("Starting JupyterLab: python " + " ".join(command[1:]) + f"   (in {folder}; Ctrl-C stops it)")
     try:
         return subprocess.call(command, cwd=folder)
     except KeyboardInterrupt:
         return 0
 
 
-def _open_lab() -> int:
+def _open_lab(extra=()) -> int:
     try:
         folder, copied, kept = working_copy()
     except (InputError, OSError) as err:
@@ -238,7 +240,7 @@ def _open_lab() -> int:
     if kept:
         print("  kept your copies of: " + ", ".join(kept)
               + f" (delete one from {folder.name}/ to get the shipped version back)")
-    return start_lab(folder)
+    return start_lab(folder, extra)
 
 
 def _root_note(state, root) -> str:
@@ -264,8 +266,13 @@ def main(argv=None) -> int:
                         help="equation of state (default PR, Peng-Robinson)")
     parser.add_argument("--lab", action="store_true",
                         help=f"after the tour, start JupyterLab on working copies of the notebooks "
-                             f"(in {WORK_FOLDER}/, copied once, never overwritten)")
-    args = parser.parse_args(argv)
+                             f"(in {WORK_FOLDER}/, copied once, never overwritten); options after "
+                             f"-- go to JupyterLab, e.g. -- --ip=0.0.0.0")
+    argv = list(sys.argv[1:] if argv is None else argv)
+    extra = argv[argv.index("--") + 1:] if "--" in argv else []
+    args = parser.parse_args(argv[:argv.index("--")] if "--" in argv else argv)
+    if extra and not args.lab:
+        parser.error("options after -- are for JupyterLab: give them with --lab")
     print(SITE)
     print("=" * len(SITE))
     for tag, fluid_name, knowns in DUTIES:
@@ -277,7 +284,7 @@ def main(argv=None) -> int:
     print("CAUTION: " + CAUTION)
     if args.lab:
         print()
-        return _open_lab()
+        return _open_lab(extra)
     return 0
 
 
