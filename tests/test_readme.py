@@ -3,6 +3,8 @@
 import pathlib
 import re
 
+import pytest
+
 import thermo_roots as tr
 
 ROOT = pathlib.Path(__file__).resolve().parents[1]
@@ -23,7 +25,23 @@ def test_quick_start_has_exactly_two_commands_and_ci_runs_the_second_verbatim():
     assert len(commands) == 2
     ci = (ROOT / ".ci" / "run").read_text(encoding="utf-8")
     assert commands[1] in ci.splitlines()
-    assert "pytest" in commands[1] and "jupyter lab" in commands[0]
+    assert "pytest" in commands[1] and commands[0].endswith("thermo-roots-demo --lab")
+
+
+def test_quick_start_main_command_is_the_demo_entry_point_with_lab(capsys):
+    """The first command's last step is the installed script; its --lab option exists."""
+    from thermo_roots import demo
+
+    quick = README.split("## Quick start", 1)[1].split("\n## ", 1)[0]
+    first = re.findall(r"```bash\n(.*?)\n```", quick, flags=re.S)[0]
+    script = first.rsplit("&&", 1)[1].split()
+    assert script[0].endswith("thermo-roots-demo")
+    pyproject = (ROOT / "pyproject.toml").read_text(encoding="utf-8")
+    assert 'thermo-roots-demo = "thermo_roots.demo:main"' in pyproject
+    assert demo.WORK_FOLDER in quick
+    with pytest.raises(SystemExit):
+        demo.main(["--help"])
+    assert "--lab" in capsys.readouterr().out
 
 
 def test_readme_states_the_cautions():

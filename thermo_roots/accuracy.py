@@ -114,12 +114,15 @@ class AccuracyMap:
         |deviation| is at most 1 % and 5 %; a point with the wrong phase counts as outside).
     models : tuple of str
         The model labels, in the order given.
+    model_objects : tuple
+        The models themselves, in the same order (plots draw their saturation curves).
     """
 
     fluid: Fluid
     points: pd.DataFrame = field(repr=False)
     summary: pd.DataFrame = field(repr=False)
     models: tuple = ()
+    model_objects: tuple = field(default=(), repr=False, compare=False)
 
     @classmethod
     def combine(cls, parts) -> "AccuracyMap":
@@ -137,7 +140,7 @@ class AccuracyMap:
                 reasons[reason] = reasons.get(reason, 0) + count
         points.attrs["excluded_reasons"] = reasons
         return cls(fluid=first.fluid, points=points, summary=_summarise(points, list(first.models)),
-                   models=first.models)
+                   models=first.models, model_objects=first.model_objects)
 
     def best_by_region(self) -> pd.DataFrame:
         """The model of lowest mean |deviation| in each region (index: region; columns model,
@@ -229,7 +232,8 @@ def accuracy_map(fluid, models=("PR", "SRK"), T=None, P=None, *, n=25, log=None,
     points.attrs["reference_warnings"] = list(notes)
     for note in notes:
         warnings.warn(note, UserWarning, stacklevel=2)
-    return AccuracyMap(fluid=fluid, points=points, summary=_summarise(points, labels), models=tuple(labels))
+    return AccuracyMap(fluid=fluid, points=points, summary=_summarise(points, labels), models=tuple(labels),
+                       model_objects=tuple(instances))
 
 
 def _attrs(fluid, labels, Ts, Ps, excluded, ref):

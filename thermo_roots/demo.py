@@ -1,37 +1,131 @@
 """A terminal tour: solve the state points of an invented site and print them with their
-roots and their distance from the reference equation.
+roots and their distance from the reference equation; with ``--lab``, then open the
+notebooks in JupyterLab from a working copy.
 
 Run as ``thermo-roots-demo`` (installed with the package) or ``python -m thermo_roots.demo``.
-The site, its company and its equipment tags are invented for illustration.
+The site, its company and its equipment tags are invented for illustration. The site's
+equipment data live here, in :data:`EQUIPMENT`, and nowhere else: the tour and the
+notebooks read them from this module.
 """
 
 from __future__ import annotations
 
 import argparse
+import os
+import shutil
+import subprocess
 import sys
+from dataclasses import dataclass, field
+from pathlib import Path
 
 import numpy as np
 
 from . import CAUTION, MODELS, get_fluid, solve
-from .errors import ThermoRootsError
-from .reference import cross_check
+from .errors import InputError, ThermoRootsError
+from .units import to_si
 
 #: Invented scenario: Harrowgate Cold Chain Ltd, Brannock Point terminal.
 SITE = "Harrowgate Cold Chain Ltd, Brannock Point terminal (invented for illustration)"
-DUTIES = (
-    ("V-212 propane accumulator", "propane", dict(T="20 degC", P="7 barg")),
-    ("TK-401 CO2 buffer tank", "CO2", dict(T="-20 degC", P="18 barg")),
-    ("E-105 ammonia condenser outlet", "ammonia", dict(T="35 degC", quality=0.0)),
-    ("PV-330 sample cylinder, 0.5 L with 0.2 kg CO2", "CO2", dict(T="40 degC", rho_mass="400 kg/m^3")),
-)
+
+
+@dataclass(frozen=True)
+class Equipment:
+    """One item of the invented site: what it holds and the state it runs at.
+
+    Parameters
+    ----------
+    tag, service : str
+        Equipment tag ("V-212") and what it is ("propane accumulator").
+    fluid : str
+        Library name of the content (:func:`thermo_roots.get_fluid`).
+    duty : dict
+        The two knowns of its operating point, as text with units (``solve`` keywords).
+    volume, charge : str, optional
+        Internal volume and mass charged, for a closed vessel ("0.5 L", "0.30 kg").
+    rated_pressure : str, optional
+        The pressure the vessel is rated for (invented), gauge or absolute as written.
+    highest_temperature : str, optional
+        The warmest the vessel can get in service (invented).
+    """
+
+    tag: str
+    service: str
+    fluid: str
+    duty: dict = field(default_factory=dict)
+    volume: str | None = None
+    charge: str | None = None
+    rated_pressure: str | None = None
+    highest_temperature: str | None = None
+
+    @property
+    def title(self) -> str:
+        return f"{self.tag} {self.service}"
+
+    @property
+    def fill_density(self) -> float:
+        """Charged mass over internal volume [kg/m^3] (closed vessels only)."""
+        if self.volume is None or self.charge is None:
+            raise InputError(f"{self.tag} is not a closed vessel: it has no volume and charge.")
+        return _in_si(self.charge, "kg") / _in_si(self.volume, "m**3")
+
+    def knowns(self) -> dict:
+        """The ``solve`` keywords of the operating point."""
+        return dict(self.duty)
+
+
+def _in_si(text: str, unit: str) -> float:
+    from .units import registry
+
+    return float(registry()(text).to(unit).magnitude)
+
+
+#: The invented site's equipment, by tag: the one source for the tour and the notebooks.
+EQUIPMENT = {
+    "V-212": Equipment("V-212", "propane accumulator", "propane", dict(T="20 degC", P="7 barg")),
+    "TK-401": Equipment("TK-401", "CO2 buffer tank", "CO2", dict(T="-20 degC", P="18 barg")),
+    "E-105": Equipment("E-105", "ammonia condenser outlet", "ammonia", dict(T="35 degC", quality=0.0)),
+    "PV-330": Equipment("PV-330", "CO2 sample cylinder", "CO2", dict(T="20 degC"),
+                        volume="0.5 L", charge="0.30 kg", rated_pressure="100 barg",
+                        highest_temperature="50 degC"),
+}
+
+
+def _duty(item: Equipment) -> tuple[str, str, dict]:
+    knowns = item.knowns()
+    title = item.title
+    if item.volume is not None:
+        knowns["rho_mass"] = item.fill_density
+        title += f", {item.volume} with {item.charge}"
+    return title, item.fluid, knowns
+
+
+#: (title, fluid, knowns) of every item, in the order the tour prints them.
+DUTIES = tuple(_duty(item) for item in EQUIPMENT.values())
+
+_SHOWN_UNITS = {"degC": "°C", "kg/m^3": "kg/m³", "m^3": "m³"}
+
+
+def _shown(value) -> str:
+    if isinstance(value, str):
+        for raw, nice in _SHOWN_UNITS.items():
+            value = value.replace(raw, nice)
+        return value
+    return f"{value:.4g}"
+
+
+def _given(knowns: dict) -> str:
+    units = {"rho_mass": " kg/m³"}
+    return ", ".join(f"{k} = {_shown(v)}{units.get(k, '') if not isinstance(v, str) else ''}"
+                     for k, v in knowns.items())
 
 
 def describe(tag: str, fluid_name: str, knowns: dict, model_name: str) -> str:
     """Text block for one duty: knowns, state, roots and the reference cross-check."""
+    from .reference import cross_check
+
     model = MODELS[model_name](get_fluid(fluid_name))
     state = solve(model, **knowns)
-    given = ", ".join(f"{k} = {v}" for k, v in knowns.items())
-    lines = [f"{tag} — {model.fluid.name}, {model.name}", f"  given: {given}"]
+    lines = [f"{tag} — {model.fluid.name}, {model.name}", f"  given: {_given(knowns)}"]
     lines += [f"  {label:<34} {value}" for label, value in state.summary()]
     for root in state.roots:
         lines.append(f"  root v = {root.v * 1e3:10.5g} L/mol   Z = {root.Z:8.5f}   {root.kind}"
@@ -43,14 +137,117 @@ def describe(tag: str, fluid_name: str, knowns: dict, model_name: str) -> str:
         lines.append(f"  model deviates from it: {_deviations(check)}")
     else:
         lines.append(f"  reference unavailable: {check.reason}")
+    item = EQUIPMENT.get(tag.split(" ", 1)[0])
+    if item is not None and item.rated_pressure and "rho_mass" in knowns:
+        lines.append("  " + rated_pressure_text(item, model))
     return "\n".join(lines)
+
+
+def rated_pressure_temperature(item: Equipment, model) -> tuple[float, float]:
+    """Temperature [K] at which the closed vessel's content reaches the rated pressure on heating,
+    by the model and by the reference equation (NaN where the reference is unavailable).
+
+    The content's density stays the fill density, so this is the (P, rho) -> T inversion
+    of the model at the rated pressure.
+    """
+    from .reference import reference_state
+
+    state = solve(model, P=item.rated_pressure, rho_mass=item.fill_density)
+    ref = reference_state(model.fluid, P=state.P, v=model.fluid.molar_mass / item.fill_density,
+                          with_saturation=False)
+    return float(state.T), float(ref.T) if bool(ref.available) else float("nan")
+
+
+def rated_pressure_text(item: Equipment, model) -> str:
+    """One line: where the rated pressure is reached, against the warmest service temperature."""
+    T, T_ref = rated_pressure_temperature(item, model)
+    text = f"rated {_shown(item.rated_pressure)} is reached at {T - 273.15:.1f} °C on heating ({model.short_name}"
+    text += f"; reference equation {T_ref - 273.15:.1f} °C)" if np.isfinite(T_ref) else ")"
+    if item.highest_temperature:
+        T_max = float(to_si(item.highest_temperature, "T"))
+        verdict = "BELOW" if T < T_max else "above"
+        text += f", {verdict} the warmest it can see ({_shown(item.highest_temperature)})"
+    return text
+
+
+# --------------------------------------------------------------------------- JupyterLab
+
+#: The folder, beside the shipped notebooks, that JupyterLab opens: your copies, ignored by git.
+WORK_FOLDER = "my-notebooks"
+FIRST_NOTEBOOK = "01_state_point.ipynb"
+
+
+def shipped_notebooks() -> Path:
+    """The checkout's ``notebooks/`` folder (the package's parent, or the current folder)."""
+    for base in (Path(__file__).resolve().parents[1], Path.cwd()):
+        folder = base / "notebooks"
+        if folder.is_dir() and any(folder.glob("*.ipynb")):
+            return folder
+    raise InputError("No notebooks/ folder found beside the package or in the current folder; "
+                     "run thermo-roots-demo --lab from a clone of the repository.")
+
+
+def working_copy(source: Path | None = None, target: Path | None = None) -> tuple[Path, list[str], list[str]]:
+    """Copy the shipped notebooks into the working folder, never overwriting a copy there.
+
+    Returns (the working folder, the notebooks copied now, the notebooks kept as they were).
+    Running and editing the copies leaves the tracked notebooks untouched.
+    """
+    source = source or shipped_notebooks()
+    target = target or source.parent / WORK_FOLDER
+    target.mkdir(parents=True, exist_ok=True)
+    copied, kept = [], []
+    for notebook in sorted(source.glob("*.ipynb")):
+        mine = target / notebook.name
+        if mine.exists():
+            kept.append(notebook.name)
+        else:
+            shutil.copy2(notebook, mine)
+            copied.append(notebook.name)
+    return target, copied, kept
+
+
+def running_as_root() -> bool:
+    return hasattr(os, "geteuid") and os.geteuid() == 0
+
+
+def lab_command(notebook: str = FIRST_NOTEBOOK, extra=()) -> list[str]:
+    """The JupyterLab command line; as root (e.g. in a container) JupyterLab needs --allow-root.
+    ``extra`` options go to JupyterLab as given (e.g. ``--ip=0.0.0.0`` to reach a container)."""
+    root = ["--allow-root"] if running_as_root() and "--allow-root" not in extra else []
+    return [sys.executable, "-m", "jupyterlab", notebook, *root, *extra]
+
+
+def start_lab(folder: Path, extra=()) -> int:
+    """Start JupyterLab in ``folder`` and wait until it is stopped (Ctrl-C)."""
+    command = lab_command(extra=tuple(extra))
+    print("Starting JupyterLab: python " + " ".join(command[1:]) + f"   (in {folder}; Ctrl-C stops it)")
+    try:
+        return subprocess.call(command, cwd=folder)
+    except KeyboardInterrupt:
+        return 0
+
+
+def _open_lab(extra=()) -> int:
+    try:
+        folder, copied, kept = working_copy()
+    except (InputError, OSError) as err:
+        print(f"Cannot open the notebooks: {err}")
+        return 1
+    print(f"Notebooks: working copies in {folder} (git ignores this folder; the tracked notebooks stay clean).")
+    if copied:
+        print("  copied: " + ", ".join(copied))
+    if kept:
+        print("  kept your copies of: " + ", ".join(kept)
+              + f" (delete one from {folder.name}/ to get the shipped version back)")
+    return start_lab(folder, extra)
 
 
 def _root_note(state, root) -> str:
     if len(state.roots) < 2 or root.kind == "unstable":
         return ""
     if state.phase == "two-phase":
-        return "  <- saturated liquid" if root.kind == "liquid-like" else "  <- saturated vapour"
+        return "  <- saturated liquid" if root.kind == "liquid-like" else "  <- saturated vapor"
     return "  <- lowest Gibbs energy (the state)" if root.stable else "  (metastable here)"
 
 
@@ -63,10 +260,19 @@ def _deviations(check) -> str:
 
 
 def main(argv=None) -> int:
-    parser = argparse.ArgumentParser(description="Solve and print the demo site's state points.")
+    parser = argparse.ArgumentParser(description="Solve and print the demo site's state points; "
+                                                 "with --lab, then open the notebooks in JupyterLab.")
     parser.add_argument("--model", default="PR", choices=sorted(MODELS),
                         help="equation of state (default PR, Peng-Robinson)")
-    args = parser.parse_args(argv)
+    parser.add_argument("--lab", action="store_true",
+                        help=f"after the tour, start JupyterLab on working copies of the notebooks "
+                             f"(in {WORK_FOLDER}/, copied once, never overwritten); options after "
+                             f"-- go to JupyterLab, e.g. -- --ip=0.0.0.0")
+    argv = list(sys.argv[1:] if argv is None else argv)
+    extra = argv[argv.index("--") + 1:] if "--" in argv else []
+    args = parser.parse_args(argv[:argv.index("--")] if "--" in argv else argv)
+    if extra and not args.lab:
+        parser.error("options after -- are for JupyterLab: give them with --lab")
     print(SITE)
     print("=" * len(SITE))
     for tag, fluid_name, knowns in DUTIES:
@@ -76,6 +282,9 @@ def main(argv=None) -> int:
             print(f"{tag}: {err}")
         print()
     print("CAUTION: " + CAUTION)
+    if args.lab:
+        print()
+        return _open_lab(extra)
     return 0
 
 

@@ -58,6 +58,7 @@ STYLE = {
     "quality": dict(color="0.35", linestyle=(0, (1, 1)), linewidth=1.8, marker="."),
     "phase_differs": dict(marker="x", color="black", markersize=4, linestyle="none", markeredgewidth=0.8),
     "colormap": "RdBu_r",
+    "temperature_colormap": "plasma",   # isotherms of one model: cold dark blue to hot orange
     "no_data": "0.88",
     "deviation_levels": (-20.0, -10.0, -5.0, -2.0, -1.0, 1.0, 2.0, 5.0, 10.0, 20.0),
 }
@@ -98,10 +99,10 @@ def _labels(models):
     return [model_label(m) for m in models]
 
 
-def _prepare(model, ax):
+def _prepare(model, ax, size=(8.0, 5.2)):
     """(models, fluid, labels, axes) for a plot of one or several models."""
     models, fluid = _as_models(model)
-    return models, fluid, _labels(models), _new_axes(ax)
+    return models, fluid, _labels(models), _new_axes(ax, size)
 
 
 def _celsius_axis(ax, which="x"):
@@ -129,19 +130,39 @@ def _note(ax, text):
             wrap=True)
 
 
-def _caution(ax):
+def _quality_top(quality):
+    """Top of a quality axis: the data's maximum with 15 % headroom (a 0.005 quality is not a
+    flat line), at most 1; 1 when there is no two-phase point at all."""
+    q = np.asarray(quality, dtype=float)
+    q = q[np.isfinite(q)]
+    top = float(q.max()) if q.size else 0.0
+    return min(1.0, 1.15 * top) if top > 0 else 1.0
+
+
+def _caution(ax, y=-0.16):
     # wrap to the axes' width: about 3.5 pt per character at 6.5 pt type
     width_pt = ax.get_position().width * ax.figure.get_figwidth() * 72.0
     ax.annotate("\n".join(textwrap.wrap("Caution: " + CAUTION, max(40, int(width_pt / 3.5)))),
-                xy=(0.0, -0.16), xycoords="axes fraction",
+                xy=(0.0, y), xycoords="axes fraction",
                 ha="left", va="top", fontsize=6.5, color="0.25", annotation_clip=False)
 
 
-def _plain_log_ticks(axis):
-    """Plain numbers (0.5, 1, 2, 5, 10 ...) on a log axis instead of powers of ten."""
-    axis.set_major_formatter(ticker.FuncFormatter(lambda y, _: f"{y:g}"))
-    axis.set_minor_locator(ticker.LogLocator(subs=(2.0, 5.0)))
-    axis.set_minor_formatter(ticker.FuncFormatter(lambda y, _: f"{y:g}"))
+def plain_log_ticks(axis):
+    """Plain numbers (0.5, 1, 2, 5, 10 ...) on a log axis instead of powers of ten: labels at
+    1, 2 and 5 times each power of ten, unlabelled minor ticks between, so no two overlap."""
+    def label(y, _):
+        lo, hi = sorted(axis.get_view_interval())
+        if not (y > 0 and lo > 0):
+            return ""
+        mantissa = y / 10.0 ** np.floor(np.log10(y) + 1e-9)
+        if np.log10(hi / lo) > 4.0 and abs(mantissa - 1.0) > 1e-6:
+            return ""        # over more than four decades only the powers of ten are labelled
+        return f"{y:g}"
+
+    axis.set_major_locator(ticker.LogLocator(subs=(1.0, 2.0, 5.0)))
+    axis.set_major_formatter(ticker.FuncFormatter(label))
+    axis.set_minor_locator(ticker.LogLocator(subs=(3.0, 4.0, 6.0, 7.0, 8.0, 9.0)))
+    axis.set_minor_formatter(ticker.NullFormatter())
 
 
 def _outlined(**style):
@@ -191,8 +212,9 @@ def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=N
     Draws each model's isotherm (the cubic itself, loop included), its saturation dome,
     the equal-area (Maxwell) construction shaded between the loop and the saturation
     pressure, the reference equation's isotherm, and at ``P_marker`` every real root
-    marked by kind: liquid-like (open circle), unstable (grey cross), vapour-like (open
-    square).
+    marked by kind: liquid-like (open circle), unstable (grey cross), vapor-like (open
+    square). The legend sits right of the axes: one entry per model, then one per kind
+    of mark; the pressure axis reaches down to the bottom of the equal-area lobe.
 
     Parameters
     ----------
@@ -207,7 +229,7 @@ def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=N
     ax : matplotlib Axes, optional
     v_range : (float, float), optional
         Molar volume range [m^3/mol]; default from just above the co-volume to well past
-        the saturated vapour.
+        the saturated vapor.
     n : int
         Points along the curve.
 
@@ -219,7 +241,7 @@ def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=N
     ----------
     Maxwell, J. C. (1875), Nature 11, 357-359.
     """
-    models, fluid, labels, ax = _prepare(model, ax)
+    models, fluid, labels, ax = _prepare(model, ax, size=(10.0, 5.4))   # room for the legend on the right
     T = float(to_si(T, "T"))
     cubic = [m for m in models if not isinstance(m, IdealGas)]
     subcritical = T < fluid.Tc and bool(cubic)
@@ -235,14 +257,13 @@ def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=N
         v_range = (v_lo, v_hi)
     v = np.geomspace(v_range[0], v_range[1], n)
     P_top = max(1.6 * fluid.Pc, 1.3 * float(to_si(P_marker, "P")) if P_marker is not None else 0.0)
-    P_bottom = 0.0
+    P_bottom = 0.0      # lowest pressure to show: the bottom of every equal-area lobe
     for i, (m, label) in enumerate(zip(models, labels)):
         style = model_style(i)
         with np.errstate(invalid="ignore", divide="ignore"):
             P = np.where(v > m.v_min, m.pressure(T, v), np.nan)
         ax.plot(v * _LITRE, P * _BAR, color=style["color"], linestyle=style["linestyle"],
                 linewidth=style["linewidth"], label=f"{label} isotherm", gid=f"isotherm:{label}")
-        P_bottom = min(P_bottom, np.nanmin(P))
         if isinstance(m, IdealGas):
             continue
         _draw_dome(ax, m, label, style)
@@ -251,6 +272,7 @@ def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=N
             inside = (v >= s.v_liquid) & (v <= s.v_vapor)
             vv = np.concatenate([[s.v_liquid], v[inside], [s.v_vapor]])
             PP = np.concatenate([[s.P], m.pressure(T, v[inside]), [s.P]])
+            P_bottom = min(P_bottom, float(np.min(PP)))
             if i == 0:
                 ax.fill_between(vv * _LITRE, PP * _BAR, s.P * _BAR, label=f"equal areas (Maxwell), {label}",
                                 gid="equal-area", **STYLE["equal_area"])
@@ -268,16 +290,36 @@ def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=N
     if P_marker is not None:
         _draw_roots(ax, models, labels, T, float(to_si(P_marker, "P")))
     ax.set_xscale("log")
+    plain_log_ticks(ax.xaxis)
     ax.set_xlim(v_range[0] * _LITRE, v_range[1] * _LITRE)
-    ax.set_ylim(max(P_bottom * _BAR * 1.05, -0.6 * fluid.Pc * _BAR), P_top * _BAR)
+    # the floor shows the whole lower lobe of the equal-area construction, however deep
+    ax.set_ylim(min(P_bottom * 1.06, -0.05 * P_top) * _BAR, P_top * _BAR)
     ax.axhline(0.0, color="0.7", linewidth=0.6, zorder=0)
     ax.set_xlabel("Molar volume v [L/mol] (log scale)")
     ax.set_ylabel("Pressure P [bar]")
     ax.set_title(f"{fluid.name} — isotherm at {_temperature_text(T)}\n{', '.join(labels)}"
                  + (" vs reference" if reference and _has_reference(fluid) else ""))
     ax.grid(True, which="major", color="0.9")
-    _deduplicated_legend(ax, loc="upper right", fontsize=8, framealpha=0.9)
+    _isotherm_legend(ax, labels)
     return ax
+
+
+def _isotherm_legend(ax, labels):
+    """One legend outside the data, right of the axes: the models first (one entry each: its
+    isotherm's colour and line; its dome is dotted in the same colour), then what the plot
+    marks, once each whatever the number of models."""
+    handles, names = ax.get_legend_handles_labels()
+    by_name = {}
+    for h, name in zip(handles, names):
+        by_name.setdefault(name, h)
+    isotherms = [f"{label} isotherm" for label in labels]
+    entries = [(by_name[name], name) for name in isotherms if name in by_name]
+    if any(name.endswith(" saturation dome") for name in by_name):
+        entries.append((Line2D([], [], color="0.35", **STYLE["dome"]), "saturation dome (dotted, model's colour)"))
+    entries += [(h, name) for name, h in by_name.items()
+                if name not in isotherms and not name.endswith(" saturation dome") and not name.startswith("_")]
+    return ax.legend([h for h, _ in entries], [n for _, n in entries], loc="upper left",
+                     bbox_to_anchor=(1.02, 1.0), borderaxespad=0.0, fontsize=8, frameon=False)
 
 
 def _draw_dome(ax, model, label, style):
@@ -292,7 +334,7 @@ def _draw_dome(ax, model, label, style):
 def _draw_roots(ax, models, labels, T, P):
     ax.axhline(P * _BAR, label=f"P = {P * _BAR:.4g} bar", **STYLE["marker_pressure"])
     names = {"liquid-like": "liquid-like root", "unstable": "unstable root (dP/dv > 0)",
-             "vapor-like": "vapour-like root"}
+             "vapor-like": "vapor-like root"}
     for i, (m, label) in enumerate(zip(models, labels)):
         colour = model_style(i)["color"]
         for root in solve(m, T=T, P=P).roots:
@@ -343,7 +385,7 @@ def plot_saturation_curve(model, ax=None, *, T=None, reference=True, n=80):
                 **STYLE["reference"])
     ax.plot([fluid.Tc], [fluid.Pc * _BAR], label="critical point", **STYLE["critical_point"])
     ax.set_yscale("log")
-    _plain_log_ticks(ax.yaxis)
+    plain_log_ticks(ax.yaxis)
     ax.set_xlabel("Temperature T [K]")
     ax.set_ylabel("Saturation pressure P [bar] (log scale)")
     _celsius_axis(ax)
@@ -360,7 +402,10 @@ def plot_compressibility(model, T, P=None, ax=None, *, reference=True, n=150):
     """Compressibility factor Z against pressure on one or more isotherms.
 
     A jump in Z on a subcritical isotherm is the phase change at the saturation pressure;
-    the curve is broken there rather than joined.
+    the curve is broken there rather than joined. Each isotherm is labelled at the end of
+    its curve, in its colour: with one model every temperature has its own colour (the
+    reference, black, beside it); with several models the colours tell the models apart.
+    The ideal-gas line Z = 1 is drawn over the grid.
 
     Parameters
     ----------
@@ -382,41 +427,65 @@ def plot_compressibility(model, T, P=None, ax=None, *, reference=True, n=150):
     temps = [float(to_si(t, "T")) for t in (T if isinstance(T, (list, tuple, np.ndarray)) else [T])]
     lo, hi = (fluid.Pc / 100.0, 3.0 * fluid.Pc) if P is None else (float(to_si(P[0], "P")), float(to_si(P[1], "P")))
     Ps = np.linspace(lo, hi, n)
+    by_temperature = len(models) == 1
+    colours = _temperature_colours(len(temps)) if by_temperature else None
     ends = []
-    for t in temps:
+    for k, t in enumerate(temps):
         for i, (m, label) in enumerate(zip(models, labels)):
             st = model_style(i)
+            colour = colours[k] if by_temperature else st["color"]
             state = solve(m, T=np.full(Ps.shape, t), P=Ps)
-            ax.plot(Ps * _BAR, _broken(state.Z, state.phase), color=st["color"], linestyle=st["linestyle"],
+            Z = _broken(state.Z, state.phase)
+            ax.plot(Ps * _BAR, Z, color=colour, linestyle=st["linestyle"],
                     linewidth=st["linewidth"], marker=st["marker"], markevery=max(1, n // 10),
-                    markerfacecolor="white", markersize=5, label=label, gid=f"model:{label}")
-            ends.append((t, _last_finite(state.Z)))
+                    markerfacecolor="white", markersize=5, label=label, gid=f"model:{label}:{t:g}")
+            if i == 0:
+                ends.append((t, _last_finite(Ps, Z), colour))
         if reference and _has_reference(fluid):
             ref = reference_state(fluid, T=np.full(Ps.shape, t), P=Ps, with_saturation=False)
             Z = np.where(ref.available, ref.Z, np.nan)
             ax.plot(Ps * _BAR, _broken(Z, ref.phase), label="reference equation (CoolProp)", gid="reference",
-                    **STYLE["reference"])
-    ax.axhline(1.0, color="0.7", linewidth=0.6, zorder=0, label="ideal gas (Z = 1)")
-    by_t = {}
-    for t, z in ends:  # one label per isotherm, at the mean end of its model curves
-        by_t.setdefault(t, []).append(z)
-    ts = list(by_t)
-    y = _spread([float(np.mean(by_t[t])) for t in ts], 0.045 * (ax.get_ylim()[1] - ax.get_ylim()[0]))
-    for t, yy in zip(ts, y):
-        ax.annotate(f"{t:.1f} K ({t - _ZERO_CELSIUS:.1f} °C)", xy=(Ps[-1] * _BAR, yy), xytext=(4, 0),
-                    textcoords="offset points", fontsize=8, va="center")
+                    **dict(STYLE["reference"], linewidth=1.2))
+    ax.axhline(1.0, color="0.25", linestyle=(0, (5, 3)), linewidth=0.9, zorder=2.2, label="ideal gas (Z = 1)",
+               gid="ideal-gas")
+    ax.grid(True, color="0.92")
+    ax.set_axisbelow(True)
+    ax.set_xlim(0.0, hi * _BAR * 1.22)
+    ax.autoscale_view(scalex=False)
+    low, high = ax.get_ylim()
+    ys = _spread([z for _, (_, z), _ in ends], 0.035 * (high - low))   # apart just enough to read
+    for (t, (p_end, _), colour), y in zip(ends, ys):
+        ax.annotate(f"{t:.1f} K ({t - _ZERO_CELSIUS:.1f} °C)", xy=(p_end * _BAR, y), xytext=(4, 0),
+                    textcoords="offset points", fontsize=8, va="center", color=colour if by_temperature else "0.15",
+                    gid=f"isotherm-label:{t:g}")
     ax.set_xlabel("Pressure P [bar]")
     ax.set_ylabel("Compressibility factor Z = Pv/(RT) [-]")
-    ax.set_xlim(0.0, hi * _BAR * 1.2)
     ax.set_title(f"{fluid.name} — compressibility on isotherms, {', '.join(labels)}"
                  + (" vs reference" if reference and _has_reference(fluid) else ""))
-    ax.grid(True, color="0.92")
-    _deduplicated_legend(ax, loc="lower right", fontsize=8)
+    extra = []
+    if by_temperature and len(temps) > 1:   # the model's line style, in neutral grey: colours are temperatures
+        st = model_style(0)
+        extra.append((Line2D([], [], color="0.3", linestyle=st["linestyle"], marker=st["marker"],
+                             markerfacecolor="white", markersize=5), f"{labels[0]} (colour: temperature)"))
+        for line in ax.get_lines():
+            if line.get_label() == labels[0]:
+                line.set_label("_" + labels[0])
+    _deduplicated_legend(ax, extra=extra, loc="upper center", bbox_to_anchor=(0.5, -0.11), ncol=3, fontsize=8,
+                         frameon=False)
     return ax
 
 
+def _temperature_colours(n):
+    """n distinct colours from cold (blue) to hot (red), dark enough for white paper."""
+    from matplotlib import colormaps
+
+    if n == 1:
+        return [STYLE["models"][0]["color"]]
+    return [mcolors.to_hex(c) for c in colormaps[STYLE["temperature_colormap"]](np.linspace(0.0, 0.82, n))]
+
+
 def _broken(y, phase):
-    """y with NaN inserted where the phase switches between liquid and vapour (no joining line)."""
+    """y with NaN inserted where the phase switches between liquid and vapor (no joining line)."""
     y = np.asarray(y, dtype=float).copy()
     phase = np.asarray(phase, dtype=object)
     switch = np.flatnonzero((phase[1:] != phase[:-1]) & np.isin(phase[1:], ["liquid", "vapor"])
@@ -425,15 +494,17 @@ def _broken(y, phase):
     return y
 
 
-def _last_finite(y):
+def _last_finite(x, y):
+    """(x, y) of the last point where y is finite (the end of a drawn curve)."""
     y = np.asarray(y, dtype=float)
-    finite = y[np.isfinite(y)]
-    return float(finite[-1]) if finite.size else 1.0
+    finite = np.flatnonzero(np.isfinite(y))
+    return (float(x[finite[-1]]), float(y[finite[-1]])) if finite.size else (float(x[-1]), 1.0)
 
 
 # --------------------------------------------------------------------------- accuracy map
 
-def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours=True):
+def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours=True, norm=None,
+                      colorbar=True, title=None, legend=True):
     """Heat map of the molar-volume deviation from the reference over temperature and pressure.
 
     Diverging colours centred at zero (red: the model's volume too large, density too low;
@@ -451,6 +522,13 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
         Colour limits ±limit [%]; default the 95th percentile of |deviation|, at least 1 %.
     contours : bool
         Draw the labelled contour lines.
+    norm : matplotlib.colors.Normalize, optional
+        A colour scale shared with other maps (``limit`` is then ignored); see
+        :func:`plot_accuracy_maps`.
+    colorbar, legend : bool
+        Draw this map's own colour bar and legend.
+    title : str, optional
+        Replaces the default title.
 
     Returns
     -------
@@ -458,33 +536,20 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
         The colour bar is ``ax.collections[0].colorbar``.
     """
     amap = accuracy_map
-    labels = list(amap.models)
-    if model is None:
-        label = labels[0]
-    elif isinstance(model, (int, np.integer)):
-        label = labels[model]
-    elif model in labels:
-        label = model
-    else:
-        raise InputError(f"No model {model!r} in this accuracy map; it has {', '.join(labels)}.")
-    index = labels.index(label)
+    label, index = _map_model(amap, model)
     ax = _new_axes(ax, size=(8.0, 5.6))
-    pts = amap.points[amap.points["model"] == label]
     Ts, Ps = np.asarray(amap.points.attrs["T_grid"]), np.asarray(amap.points.attrs["P_grid"])
-    grid = pts.pivot_table(index="P", columns="T", values="deviation_percent").reindex(index=Ps, columns=Ts)
-    dev = grid.to_numpy()
+    pts, dev = _deviation_grid(amap, label)
     log_P = Ps.size > 1 and Ps.min() > 0 and Ps.max() / Ps.min() > 20
-    if limit is None:
-        finite = np.abs(dev[np.isfinite(dev)])
-        limit = max(1.0, float(np.percentile(finite, 95))) if finite.size else 1.0
-    norm = mcolors.TwoSlopeNorm(vcenter=0.0, vmin=-limit, vmax=limit)
+    if norm is None:
+        norm = _deviation_norm([dev], limit)
     ax.set_facecolor(STYLE["no_data"])
     mesh = ax.pcolormesh(_edges(Ts, False), _edges(Ps, log_P) * _BAR, np.ma.masked_invalid(dev),
-                         cmap=STYLE["colormap"], norm=norm, shading="flat")
-    bar = ax.figure.colorbar(mesh, ax=ax, extend="both")
-    bar.set_label("Molar volume deviation from reference [%]\n(+ : model volume too large, density too low)")
+                         cmap=STYLE["colormap"], norm=norm, shading="flat", gid=f"deviation:{label}")
+    if colorbar:
+        _deviation_colorbar(ax.figure, mesh, ax)
     if contours and Ts.size > 2 and Ps.size > 2:
-        # contour the vapour side and the dense side apart: across the saturation line the
+        # contour the vapor side and the dense side apart: across the saturation line the
         # deviation jumps, and one contour of both would stack every level along it
         phase = pts.pivot_table(index="P", columns="T", values="phase_reference", aggfunc="first")
         phase = phase.reindex(index=Ps, columns=Ts).to_numpy()
@@ -505,18 +570,117 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
     _saturation_overlay(ax, amap, index, label, Ts)
     extra.append((Patch(facecolor=STYLE["no_data"], edgecolor="0.6"),
                   "no single-phase reference value"))
+    ax._thermo_roots_extra = extra     # the figure legend of plot_accuracy_maps collects these
     if log_P:
         ax.set_yscale("log")
-        _plain_log_ticks(ax.yaxis)
+        plain_log_ticks(ax.yaxis)
     ax.set_xlim(_edges(Ts, False)[[0, -1]])
     ax.set_ylim(_edges(Ps, log_P)[[0, -1]] * _BAR)
     ax.set_xlabel("Temperature T [K]")
     ax.set_ylabel("Pressure P [bar]" + (" (log scale)" if log_P else ""))
     _celsius_axis(ax)
-    ax.set_title(f"{amap.fluid.name} — {label}: deviation of molar volume from the reference equation")
-    _deduplicated_legend(ax, extra=extra, loc="upper center", bbox_to_anchor=(0.5, -0.11), ncol=3, fontsize=7.5,
-                         frameon=False)
+    ax.set_title(title if title is not None else
+                 f"{amap.fluid.name} — {label}: deviation of molar volume from the reference equation")
+    if legend:
+        _deduplicated_legend(ax, extra=extra, loc="upper center", bbox_to_anchor=(0.5, -0.11), ncol=3,
+                             fontsize=7.5, frameon=False)
     return ax
+
+
+def plot_accuracy_maps(accuracy_map, models=None, *, figure=None, limit=None, contours=True, ncols=2):
+    """Several models' accuracy maps side by side on ONE colour scale with one colour bar.
+
+    The same colour means the same deviation in every map, so the maps can be compared at a
+    glance; each map is titled by its model only, the fluid and the quantity go in the
+    figure's title, and one legend under the maps explains the lines and marks.
+
+    Parameters
+    ----------
+    accuracy_map : AccuracyMap
+    models : sequence of str or int, optional
+        Which models (labels or positions); default all, in the map's order.
+    figure : matplotlib Figure, optional
+        Drawn into (cleared first); default a new figure sized for the maps.
+    limit : float, optional
+        Colour limits ±limit [%]; default the 95th percentile of |deviation| over all the
+        maps shown, at least 1 %.
+    contours : bool
+    ncols : int
+        Maps per row.
+
+    Returns
+    -------
+    list of matplotlib.axes.Axes
+        One per model; they share ``mesh.norm`` (``ax.collections[0].norm``).
+    """
+    amap = accuracy_map
+    chosen = [_map_model(amap, m)[0] for m in (models if models is not None else amap.models)]
+    if not chosen:
+        raise InputError("Give at least one model to map.")
+    cols = max(1, min(int(ncols), len(chosen)))
+    rows = -(-len(chosen) // cols)
+    if figure is None:
+        import matplotlib.pyplot as plt
+
+        figure = plt.figure(figsize=(5.3 * cols + 1.3, 4.9 * rows + 0.9), layout="constrained")
+    else:
+        figure.clear()
+    axes = list(np.ravel(figure.subplots(rows, cols, squeeze=False)))
+    for ax in axes[len(chosen):]:
+        ax.set_axis_off()
+    norm = _deviation_norm([_deviation_grid(amap, label)[1] for label in chosen], limit)
+    for ax, label in zip(axes, chosen):
+        plot_accuracy_map(amap, label, ax=ax, contours=contours, norm=norm, colorbar=False, legend=False,
+                          title=label)
+    used = axes[:len(chosen)]
+    _deviation_colorbar(figure, used[0].collections[0], used)
+    figure.suptitle(f"{amap.fluid.name} — deviation of the models' molar volume from the reference equation")
+    entries = {}
+    for ax in used:
+        handles, names = ax.get_legend_handles_labels()
+        for h, name in list(zip(handles, names)) + list(getattr(ax, "_thermo_roots_extra", [])):
+            if name and not name.startswith("_"):
+                entries.setdefault(name, h)
+    figure.legend(list(entries.values()), list(entries), loc="outside lower center", ncol=min(4, len(entries)),
+                  fontsize=7.5, frameon=False)
+    return used
+
+
+def _map_model(amap, model):
+    """(label, position) of a model of the map, from its label or position (default the first)."""
+    labels = list(amap.models)
+    if model is None:
+        label = labels[0]
+    elif isinstance(model, (int, np.integer)) and not isinstance(model, bool) and -len(labels) <= model < len(labels):
+        label = labels[model]
+    elif isinstance(model, str) and model in labels:
+        label = model
+    else:
+        raise InputError(f"No model {model!r} in this accuracy map; it has {', '.join(labels)} "
+                         f"(give one of these labels or a position 0 to {len(labels) - 1}).")
+    return label, labels.index(label)
+
+
+def _deviation_grid(amap, label):
+    """(the model's points, its deviation [%] on the map's (P, T) grid, NaN where none)."""
+    pts = amap.points[amap.points["model"] == label]
+    Ts, Ps = np.asarray(amap.points.attrs["T_grid"]), np.asarray(amap.points.attrs["P_grid"])
+    grid = pts.pivot_table(index="P", columns="T", values="deviation_percent").reindex(index=Ps, columns=Ts)
+    return pts, grid.to_numpy()
+
+
+def _deviation_norm(grids, limit=None):
+    """Diverging colour scale centred at 0, ±limit [%] (default the 95th percentile of |dev|)."""
+    if limit is None:
+        finite = np.abs(np.concatenate([g[np.isfinite(g)] for g in grids]))
+        limit = max(1.0, float(np.percentile(finite, 95))) if finite.size else 1.0
+    return mcolors.TwoSlopeNorm(vcenter=0.0, vmin=-limit, vmax=limit)
+
+
+def _deviation_colorbar(figure, mesh, axes):
+    bar = figure.colorbar(mesh, ax=axes, extend="both")
+    bar.set_label("Molar volume deviation from reference [%]\n(+ : model volume too large, density too low)")
+    return bar
 
 
 def _saturation_overlay(ax, amap, index, label, Ts):
@@ -526,24 +690,26 @@ def _saturation_overlay(ax, amap, index, label, Ts):
         return
     ref = reference_saturation(fluid, T=Tsat)
     ax.plot(Tsat, np.asarray(ref.P) * _BAR, label="saturation, reference", **_outlined(**STYLE["reference"]))
-    from .accuracy import resolve_models
-
-    short = label.split(" ")[0].split("#")[0]
-    try:
-        m = resolve_models(fluid, [short])[0]
-    except InputError:
-        return
-    if not isinstance(m, IdealGas):
+    m = _map_model_object(amap, index, label)
+    if m is not None and not isinstance(m, IdealGas):
         st = model_style(index)
-        ax.plot(Tsat, saturation(m, T=Tsat).P * _BAR, label=f"saturation, {short}",
+        ax.plot(Tsat, saturation(m, T=Tsat).P * _BAR, label=f"saturation, {label}", gid=f"saturation:{label}",
                 **_outlined(color=st["color"], linestyle=st["linestyle"], linewidth=1.6))
     ax.plot([fluid.Tc], [fluid.Pc * _BAR], label="critical point", **STYLE["critical_point"])
+
+
+def _map_model_object(amap, index, label):
+    """The model object the map was computed with, or None for a map that does not carry its
+    models: then no model saturation curve is drawn rather than one rebuilt from a label,
+    which would be another model's for a custom cubic."""
+    objects = getattr(amap, "model_objects", ())
+    return objects[index] if len(objects) == len(amap.models) else None
 
 
 # --------------------------------------------------------------------------- closed vessel
 
 def plot_isochore(frame, ax=None):
-    """A closed vessel heated up: pressure and vapour quality against temperature.
+    """A closed vessel heated up: pressure and vapor quality against temperature.
 
     Takes the table of :func:`thermo_roots.sweeps.isochore`. Marks the model's
     liquid-full (or vapor-full) point and, where the table has reference columns, the
@@ -567,8 +733,10 @@ def plot_isochore(frame, ax=None):
     ax = _new_axes(ax, size=(8.0, 5.6))
     st = model_style(0)
     label = a.get("model_short_name") or a.get("model", "model")
+    shift = ""
     if a.get("volume_shift"):
-        label += f" + c={a['volume_shift'] * 1e6:.4g} cm3/mol"
+        label += " (translated)"
+        shift = f"\n(volume shift c = {a['volume_shift'] * 1e6:.4g} cm³/mol)"
     T = frame["T"].to_numpy()
     ax.plot(T, frame["P"] * _BAR, color=st["color"], linestyle=st["linestyle"], linewidth=st["linewidth"],
             marker=st["marker"], markersize=4, markerfacecolor="white", label=f"pressure, {label}", gid="model")
@@ -578,29 +746,32 @@ def plot_isochore(frame, ax=None):
                 gid="reference", **STYLE["reference"])
     point = a.get("fill_point")
     if point:
-        ax.plot([point["T"]], [point["P"] * _BAR], label=f"{point['kind']}, {label}: {point['T']:.2f} K, "
+        ax.plot([point["T"]], [point["P"] * _BAR], label=f"{point['kind']}, {label}: {_temperature_text(point['T'])}, "
                 f"{point['P'] * _BAR:.4g} bar", gid="fill-point", **STYLE["fill_point"])
     ref_point = a.get("reference_fill_point")
     if ref_point:
         ax.plot([ref_point["T"]], [ref_point["P"] * _BAR], label=f"{ref_point['kind']}, reference: "
-                f"{ref_point['T']:.2f} K, {ref_point['P'] * _BAR:.4g} bar", gid="reference-fill-point",
+                f"{_temperature_text(ref_point['T'])}, {ref_point['P'] * _BAR:.4g} bar", gid="reference-fill-point",
                 **STYLE["reference_fill_point"])
     quality = frame["quality"].to_numpy(dtype=float).copy()
-    if point:  # at the liquid-full point the last vapour is gone (quality 0); at the vapor-full one, 1
+    if point:  # at the liquid-full point the last vapor is gone (quality 0); at the vapor-full one, 1
         quality[frame["fill_point"].to_numpy(dtype=bool)] = 0.0 if point["kind"] == "liquid-full" else 1.0
     quality_axes = ax.twinx()
-    quality_axes.plot(T, quality, label=f"vapour quality, {label}", gid="quality", **STYLE["quality"])
-    quality_axes.set_ylim(0.0, max(0.1, float(np.nanmax(frame["quality"])) * 1.15)
-                          if np.any(np.isfinite(frame["quality"])) else 1.0)
-    quality_axes.set_ylabel("Vapour quality [-] (dotted)")
+    quality_axes.plot(T, quality, label=f"vapor quality, {label}", gid="quality", **STYLE["quality"])
+    quality_axes.set_ylim(0.0, _quality_top(quality))
+    quality_axes.set_ylabel("Vapor quality (mass fraction of vapor) [-], dotted")
     ax.set_xlabel("Temperature T [K]")
     ax.set_ylabel("Pressure P [bar]")
     _celsius_axis(ax)
     ax.grid(True, color="0.92")
     fill = a.get("rho_mass")
-    ax.set_title(f"{a.get('fluid', '')} — {label}: closed vessel at {fill:.4g} kg/m³ heated"
-                 if fill else f"{a.get('fluid', '')} — {label}: closed vessel heated")
+    ax.set_title(f"{a.get('fluid', '')} — {label}: closed vessel at {fill:.4g} kg/m³ heated{shift}"
+                 if fill else f"{a.get('fluid', '')} — {label}: closed vessel heated{shift}")
     handles, names = quality_axes.get_legend_handles_labels()
-    _deduplicated_legend(ax, extra=list(zip(handles, names)), loc="upper left", fontsize=8, framealpha=0.9)
-    _caution(ax)
+    # under the axes, clear of every curve; the caution goes under the legend
+    legend = _deduplicated_legend(ax, extra=list(zip(handles, names)), loc="upper center",
+                                  bbox_to_anchor=(0.5, -0.12), ncol=2, fontsize=8, frameon=False)
+    rows = -(-len(legend.get_texts()) // 2)
+    height_pt = ax.get_position().height * ax.figure.get_figheight() * 72.0
+    _caution(ax, y=-0.15 - rows * 16.0 / height_pt)
     return ax

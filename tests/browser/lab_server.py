@@ -16,6 +16,8 @@ import urllib.error
 import urllib.request
 from pathlib import Path
 
+REPO = Path(__file__).resolve().parents[2]
+
 #: Settings that keep a first open quiet: no news or update prompts.
 SETTINGS = {
     "@jupyterlab/apputils-extension:notification": {"fetchNews": "false", "checkForUpdates": False},
@@ -46,7 +48,9 @@ def lab_server(notebooks: Path, workdir: Path, *, start_timeout: float = 60.0):
                JUPYTER_CONFIG_DIR=str(workdir / "jupyter-config"),
                JUPYTER_RUNTIME_DIR=str(workdir / "jupyter-runtime"),
                IPYTHONDIR=str(workdir / "ipython"),
-               MPLBACKEND="module://matplotlib_inline.backend_inline")
+               MPLBACKEND="module://matplotlib_inline.backend_inline",
+               # the kernels import this checkout's package, whatever the environment's install points to
+               PYTHONPATH=os.pathsep.join([str(REPO)] + [p for p in [os.environ.get("PYTHONPATH")] if p]))
     port, token = free_port(), secrets.token_hex(16)
     log = open(workdir / "jupyterlab.log", "wb")
     proc = subprocess.Popen(

@@ -49,3 +49,12 @@ def test_bad_range_keeps_the_previous_map():
     panel.T_to.set("90 degC")
     panel.P_from.set("1 metre")
     assert panel.solve() is first and "wrong kind" in panel.P_from.message.value
+
+
+def test_maps_of_the_models_share_one_colour_scale():
+    panel = AccuracyPanel(fluid="propane", models=("PR", "SRK"), **KW)
+    panel.solve()
+    meshes = [ax.collections[0] for ax in panel.plot.figure.axes if ax.collections and ax.get_title() in ("PR", "SRK")]
+    assert len(meshes) == 2
+    assert (meshes[0].norm.vmin, meshes[0].norm.vmax) == (meshes[1].norm.vmin, meshes[1].norm.vmax)
+    assert sum(m.colorbar is not None for m in meshes) == 1

@@ -81,3 +81,24 @@ def test_bad_input_keeps_the_previous_trace(traced):
     for box in panel.method_boxes.values():
         box.value = False
     assert panel.solve() is None and "Tick at least one" in panel.error
+
+
+def _overlapping_tick_labels(ax):
+    renderer = ax.figure.canvas.get_renderer()
+    boxes = [t.get_window_extent(renderer) for t in ax.get_xticklabels(which="both")
+             if t.get_visible() and t.get_text()]
+    return [(a, b) for i, a in enumerate(boxes) for b in boxes[i + 1:] if a.overlaps(b)]
+
+
+def test_log_axis_tick_labels_do_not_overlap():
+    # CO2 at 0 degC and 30 bar: three roots, the residual drawn over a decade and more of volume
+    panel = RootTracePanel(fluid="CO2", model="PR", T="0 degC", P="30 bar")
+    panel.solve()
+    fig = panel.plot.figure
+    fig.canvas.draw()
+    axes = [ax for ax in fig.axes if ax.get_visible() and ax.axison]
+    assert axes and all(ax.get_xscale() == "log" for ax in axes)
+    for ax in axes:
+        labelled = [t for t in ax.get_xticklabels(which="both") if t.get_text()]
+        assert len(labelled) >= 2                     # the axis is readable at all
+        assert not _overlapping_tick_labels(ax), [t.get_text() for t in labelled]

@@ -62,7 +62,7 @@ class AccuracyPanel(w.VBox):
         self.progress = w.IntProgress(value=0, min=0, max=1, description="", layout=w.Layout(width="300px"))
         self.progress_note = w.HTML()
         self.status, self.summary = w.HTML(), w.HTML()
-        self.plot = FigureImage(figsize=(8.5, 5.6))
+        self.plot = FigureImage(figsize=(11.9, 5.8))   # two maps side by side
         self.compute_button.on_click(lambda _: self._start())
         self.cancel_button.on_click(lambda _: self.cancel())
         controls = w.VBox([
@@ -155,19 +155,19 @@ class AccuracyPanel(w.VBox):
 
     # -- display
     def _draw(self):
-        from ..plots import plot_accuracy_map
+        from ..plots import plot_accuracy_maps
 
         amap = self.result
         fig = self.plot.clear()
-        fig.set_size_inches(8.5, 5.6 * len(amap.models))   # one full-width map per model
-        axes = fig.subplots(len(amap.models), 1, squeeze=False).ravel()
-        for ax, label in zip(axes, amap.models):
-            plot_accuracy_map(amap, model=label, ax=ax)
+        cols = min(2, len(amap.models))           # side by side, on one colour scale
+        rows = -(-len(amap.models) // cols)
+        fig.set_size_inches(5.3 * cols + 1.3, 4.9 * rows + 0.9)
+        plot_accuracy_maps(amap, figure=fig, ncols=cols)
         self.plot.publish()
         summary = amap.summary
         rows = [(str(r.model), str(r.region), str(r.points), str(r.phase_disagreements),
-                 fmt(r.mean_abs_percent, 3), fmt(r.max_abs_percent, 3), _share(r.within_1_percent),
-                 _share(r.within_5_percent)) for r in summary.itertuples()]
+                 fmt(r.mean_abs_percent, 3), fmt(r.max_abs_percent, 3), _share(r.percent_within_1),
+                 _share(r.percent_within_5)) for r in summary.itertuples()]
         best = amap.best_by_region()
         best_rows = [(str(region), str(r.model), fmt(r.mean_abs_percent, 3)) for region, r in best.iterrows()]
         self.summary.value = block(
@@ -179,4 +179,4 @@ class AccuracyPanel(w.VBox):
 
 
 def _share(x) -> str:
-    return "-" if not math.isfinite(x) else f"{100 * x:.0f} %"
+    return "-" if not math.isfinite(x) else f"{x:.0f} %"

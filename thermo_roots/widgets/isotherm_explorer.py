@@ -58,7 +58,7 @@ class IsothermExplorer(w.VBox):
         self.reference = w.Checkbox(value=reference, description="reference isotherm", indent=False)
         self.temperature_note, self.fluid_note = w.HTML(), w.HTML()
         self.status, self.roots = w.HTML(), w.HTML()
-        self.plot = FigureImage(figsize=(8, 5))
+        self.plot = FigureImage(figsize=(10.5, 5.4))   # the legend sits right of the axes
         self.figure, self.image = self.plot.figure, self.plot.image
         self._fluid, self._quiet = None, True
         self._set_ranges(T, P)

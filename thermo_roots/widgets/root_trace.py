@@ -15,6 +15,7 @@ from ..errors import ThermoRootsError
 from ..roots import DEFAULT_METHOD, METHODS
 from ._inputs import FieldError, FluidField, ModelField, QuantityField, _label
 from ._render import FigureImage, block, caution_html, error_html, fmt, in_unit, table
+from ..plots import plain_log_ticks
 
 #: What can be traced: (label, unknown, the two knowns).
 PROBLEMS = (
@@ -189,12 +190,14 @@ class RootTracePanel(w.VBox):
             ax.plot(xs[~off], fs[~off], "o", color="#1a5fb4", ms=4, zorder=3)
             ax.plot(xs[off], fs[off], "^", color="#1a5fb4", ms=5, zorder=3)
             ax.set_xscale(p.xscale)
+            if p.xscale == "log":
+                plain_log_ticks(ax.xaxis)
             ax.set_ylim(bottom, top)
             _number_iterates(ax, xs, fs)
             its = "iteration" if result.iterations == 1 else "iterations"
             ax.set_title(f"{name}: {result.status}, {result.iterations} {its} — {p.describe(result)}",
                          fontsize=9, loc="left")
-            ax.set_ylabel("P_model/P - 1", fontsize=8)
+            ax.set_ylabel("residual P_model/P − 1", fontsize=8)
             ax.tick_params(labelsize=8, labelbottom=True)
         for ax in axes[n:]:
             ax.set_axis_off()
