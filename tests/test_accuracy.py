@@ -76,7 +76,7 @@ def test_labels_tell_translated_models_apart():
     labels = acc.accuracy_map(f, [tr.PengRobinson, tr.PengRobinson(f, volume_shift="peneloux"),
                                   tr.PengRobinson(f, volume_shift=c), "pr"],
                               T=[300.0], P=[1e6], progress=False).models
-    assert labels[0] == "PR" and labels[1] == "PR + Peneloux" and labels[2].startswith("PR + c=")
+    assert labels[0] == "PR" and labels[1] == "PR + Péneloux" and labels[2].startswith("PR + c=")
     assert labels[3] == "PR #2" and len(set(labels)) == 4
 
 
@@ -128,12 +128,12 @@ def test_fitted_translation_closes_most_of_the_liquid_gap(maps, name, model):
 @pytest.mark.parametrize("name", ["propane", "n-butane", "CO2", "R134a"])
 def test_peneloux_correlation_helps_srk_for_nonpolar_fluids(maps, name):
     # Peneloux, Rauzy & Freze (1982) built the correlation for SRK and non-polar fluids
-    assert _mean(maps[name], "SRK + Peneloux") < 0.5 * _mean(maps[name], "SRK")
+    assert _mean(maps[name], "SRK + Péneloux") < 0.5 * _mean(maps[name], "SRK")
 
 
 @pytest.mark.parametrize("name", ["propane", "n-butane", "CO2"])
 def test_peneloux_correlation_helps_pr_for_hydrocarbons_and_co2(maps, name):
-    assert _mean(maps[name], "PR + Peneloux") < 0.8 * _mean(maps[name], "PR")
+    assert _mean(maps[name], "PR + Péneloux") < 0.8 * _mean(maps[name], "PR")
 
 
 def test_summary_shares_and_disagreements_are_consistent(maps):

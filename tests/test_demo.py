@@ -138,7 +138,7 @@ def test_main_with_lab_prints_the_tour_then_starts_lab_in_the_working_copy(tmp_p
 
 @pytest.mark.skipif(shutil.which("git") is None or not (ROOT / ".git").exists(), reason="not a git checkout")
 def test_git_ignores_the_virtual_environment_and_the_working_copies():
-    for path in (".venv/bin/python", f"{demo.WORK_FOLDER}/{demo.FIRST_NOTEBOOK}"):
+    for path in (".venv/pyvenv.cfg", f"{demo.WORK_FOLDER}/{demo.FIRST_NOTEBOOK}"):
         result = subprocess.run(["git", "check-ignore", "-q", path], cwd=ROOT)
         assert result.returncode == 0, f"git does not ignore {path}"
     result = subprocess.run(["git", "check-ignore", "-q", f"notebooks/{demo.FIRST_NOTEBOOK}"], cwd=ROOT)

@@ -40,8 +40,8 @@ _POINT_UNITS = {"model": "", "T": "K", "P": "Pa", "v_model": "m3/mol", "v_refere
 
 
 def model_label(model) -> str:
-    """A short label that tells translated models apart: "PR", "PR + Peneloux",
-    "SRK + c=3.1 cm3/mol"."""
+    """A short label that tells translated models apart: "PR", "PR + Péneloux",
+    "SRK + c=3.1 cm³/mol"."""
     label = model.short_name or model.name
     c = float(getattr(model, "c", 0.0))
     if not c:
@@ -51,8 +51,8 @@ def model_label(model) -> str:
     except InputError:
         standard = math.nan
     if math.isclose(c, standard, rel_tol=1e-12):
-        return f"{label} + Peneloux"
-    return f"{label} + c={c * 1e6:.4g} cm3/mol"
+        return f"{label} + Péneloux"
+    return f"{label} + c={c * 1e6:.4g} cm³/mol"
 
 
 def resolve_models(fluid, models) -> list:
