@@ -5,7 +5,8 @@ Layers (each imports only from those above it): roots, fluids, models, units, in
 reference, sweeps and accuracy, plots, widgets.
 """
 
-from .errors import ConvergenceError, DomainError, InputError, ThermoRootsError, UnknownFluidError
+from .errors import (ConvergenceError, DomainError, InputError, ThermoRootsError, UnknownFluidError,
+                     WrongTypeError)
 from .roots import find_root
 from .fluids import Fluid, fluid_names, get_fluid
 from .models import (MODELS, R, CubicFamily, CubicModel, IdealGas, PengRobinson, PengRobinson78,
@@ -40,7 +41,7 @@ __version__ = "0.1.0"
 __all__ = [
     "CAUTION", "ConvergenceError", "CubicFamily", "CubicModel", "DomainError", "Fluid", "IdealGas",
     "InputError", "MODELS", "PengRobinson", "PengRobinson78", "R", "RedlichKwong", "Root", "Saturation",
-    "SoaveRedlichKwong", "State", "ThermoRootsError", "UnknownFluidError", "VanDerWaals", "find_root",
+    "SoaveRedlichKwong", "State", "ThermoRootsError", "UnknownFluidError", "VanDerWaals", "WrongTypeError", "find_root",
     "fluid_names", "get_fluid", "saturation", "solve", "to_si", "volume_roots", "__version__",
     "AccuracyMap", "CrossCheck", "ReferenceSaturation", "ReferenceState", "accuracy_map", "between",
     "cross_check", "fit_volume_shift", "isobar", "isochore", "isotherm", "read_csv", "reference_limits",

@@ -16,6 +16,10 @@ class InputError(ThermoRootsError):
     """An input could not be read or is not allowed (wrong unit, NaN, wrong count of knowns)."""
 
 
+class WrongTypeError(InputError, TypeError):
+    """An argument of the wrong type (a bool for a temperature, a class for a model, ...)."""
+
+
 class UnknownFluidError(ThermoRootsError):
     """A fluid name is not in the fluid library; the message offers close matches."""
 

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import InputError, UnknownFluidError
+from .errors import InputError, UnknownFluidError, WrongTypeError
 
 
 @dataclass(frozen=True)
@@ -232,6 +232,19 @@ def get_fluid(name: str) -> Fluid:
             suggestions,
         )
     return _fluid_from_library(index[key])
+
+
+def as_fluid(fluid, who: str) -> Fluid:
+    """A Fluid as given, or a library fluid looked up by name; anything else is refused.
+
+    who : how the caller is written in the message, e.g. "PengRobinson(fluid)".
+    """
+    if isinstance(fluid, str):
+        return get_fluid(fluid)
+    if not isinstance(fluid, Fluid):
+        raise WrongTypeError(f"{who} needs a Fluid or a library fluid's name, e.g. get_fluid('propane') or "
+                             f"'propane'; got {fluid!r}.")
+    return fluid
 
 
 def _fluid_from_library(library_name: str) -> Fluid:

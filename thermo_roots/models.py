@@ -23,7 +23,7 @@ from typing import Callable
 
 import numpy as np
 
-from .fluids import Fluid
+from .fluids import Fluid, as_fluid
 
 #: Molar gas constant [J/(mol K)], exact since the 2019 SI redefinition (CODATA 2018).
 R = 8.31446261815324
@@ -141,20 +141,6 @@ PR78 = CubicFamily("Peng-Robinson 1978", 1.0 + SQRT2, 1.0 - SQRT2, _soave_alpha(
 
 # --------------------------------------------------------------------------- models
 
-def _as_fluid(fluid, model_name: str) -> Fluid:
-    """A Fluid, or a library name looked up; anything else is refused with an example."""
-    if isinstance(fluid, str):
-        from .fluids import get_fluid
-
-        return get_fluid(fluid)
-    if not isinstance(fluid, Fluid):
-        from .errors import InputError
-
-        raise InputError(f"{model_name} needs a Fluid or a fluid name, e.g. {model_name}(get_fluid('propane')) "
-                         f"or {model_name}('propane'); got {fluid!r}.")
-    return fluid
-
-
 class _Model:
     """Behaviour shared by every model: Z and the fluid it belongs to."""
 
@@ -185,7 +171,7 @@ class IdealGas(_Model):
     v_min = 0.0
 
     def __init__(self, fluid: Fluid | str):
-        self.fluid = _as_fluid(fluid, type(self).__name__)
+        self.fluid = as_fluid(fluid, f"{type(self).__name__}(fluid)")
 
     def pressure(self, T, v):
         """Pressure [Pa] at T [K] and v [m^3/mol]."""
@@ -246,7 +232,7 @@ class CubicModel(_Model):
     family: CubicFamily
 
     def __init__(self, fluid: Fluid, family: CubicFamily | None = None, volume_shift=0.0):
-        fluid = self.fluid = _as_fluid(fluid, type(self).__name__)
+        fluid = self.fluid = as_fluid(fluid, f"{type(self).__name__}(fluid)")
         if family is not None:
             self.family = family
         f = self.family

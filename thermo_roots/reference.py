@@ -541,15 +541,9 @@ def _fluid_reference(fluid, pair, a, b, shape, **options):
 
 
 def _as_fluid(fluid, where: str):
-    """A Fluid from a Fluid or a library fluid's name; TypeError for anything else."""
-    from .fluids import Fluid, get_fluid
+    from .fluids import as_fluid
 
-    if isinstance(fluid, str):
-        return get_fluid(fluid)
-    if not isinstance(fluid, Fluid):
-        raise TypeError(f"{where}(fluid, ...) needs a Fluid or a library fluid's name, e.g. get_fluid('propane') "
-                        f"or 'propane'; got {_given(fluid)}.")
-    return fluid
+    return as_fluid(fluid, f"{where}(fluid, ...)")
 
 
 def _reference_knowns(fluid, knowns):

@@ -43,7 +43,7 @@ import re
 
 import numpy as np
 
-from .errors import InputError
+from .errors import WrongTypeError, InputError
 
 #: Standard atmosphere [Pa] (ISO 2533; common practice as the default gauge reference).
 STANDARD_ATMOSPHERE = 101325.0
@@ -64,15 +64,7 @@ QUANTITIES = {
 }
 
 
-class WrongTypeError(InputError, TypeError):
-    """A value of a type no quantity can take (a bool, None, complex, a list of texts).
-
-    Both an :class:`~thermo_roots.errors.InputError` (so one ``except ThermoRootsError``
-    catches every refused input) and a :class:`TypeError` (what Python code expects for a
-    wrong type).
-    """
-
-
+# WrongTypeError lives with the other error classes; it is raised here for a value of the wrong type.
 # Temperature spellings, after "°", "deg" or "degree(s)" and spaces are taken off (any case).
 _TEMPERATURE = {"c": "degC", "celsius": "degC", "f": "degF", "fahrenheit": "degF",
                 "r": "degR", "rankine": "degR", "k": "K", "kelvin": "K"}

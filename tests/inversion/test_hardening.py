@@ -46,7 +46,7 @@ def test_solve_and_saturation_refuse_what_is_not_a_model(model, words):
 
 def test_a_model_takes_a_fluid_name_too():
     assert tr.PengRobinson("propane").fluid == tr.get_fluid("propane")
-    with pytest.raises(tr.InputError, match="Fluid or a fluid name"):
+    with pytest.raises(tr.InputError, match="Fluid or a library fluid.s name"):
         tr.PengRobinson(42)
 
 

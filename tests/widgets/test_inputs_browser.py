@@ -10,33 +10,16 @@ from pathlib import Path
 
 import pytest
 
-from thermo_roots.widgets import StatePanel
+from tests.widgets.test_state_panel import two_collected_rows
 
-CHROMIUM = Path("/usr/bin/chromium")
+from tests.browser.test_state_point_browser import CHROMIUM, _need_chromium
 ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
         "--disable-component-update", "--disable-sync", "--no-first-run"]
 COLUMN_PX = 1120       # JupyterLab's output area in a 1300 px window, file browser folded (measured)
 
 
-def _need_chromium():
-    if CHROMIUM.exists():
-        return
-    if os.environ.get("CI") == "true":
-        pytest.fail(f"{CHROMIUM} is missing and CI=true: install Debian's chromium (apt-get install -y chromium).")
-    pytest.skip(f"{CHROMIUM} is not installed (apt-get install -y chromium); the browser test needs it.")
-
-
 def _collected_table() -> str:
-    panel = StatePanel(fluid="CO2", model="PR", T="-20 degC", P="18 barg", tag="TK-401")
-    panel.solve()
-    panel.add_to_table()
-    panel.tag.value = "PV-330"
-    panel.pair.value = ("T", "rho")
-    panel.fields["T"].set("40 degC")
-    panel.fields["rho"].set("400 kg/m^3")
-    panel.solve()
-    panel.add_to_table()
-    return panel.table_html.value
+    return two_collected_rows().table_html.value
 
 
 @pytest.mark.parametrize("font", ["13px", "15px"])
