@@ -294,7 +294,7 @@ def _numbers(value, name):
     if raw.dtype.kind == "c" or (raw.dtype.kind == "O" and any(isinstance(x, complex) for x in raw.ravel())):
         raise WrongTypeError(f"{name} = {_describe(value)} is complex; give real numbers.")
     try:
-        data = raw.astype(float)
+        data = raw.astype(float, copy=False)   # no copy for float64 arrays (large sweeps)
     except (TypeError, ValueError):
         raise WrongTypeError(f"{name} = {_describe(value)} is not a number, an array of numbers or a text "
                              f"with a unit; e.g. {example!r}.") from None
@@ -304,9 +304,11 @@ def _numbers(value, name):
 
 
 def _finite(si, name, value, nonfinite, mask):
+    if nonfinite == "nan":   # the caller reports non-finite elements one by one
+        return si
     arr = np.asarray(si)
     bad = ~np.isfinite(arr)
-    if nonfinite == "nan" or not bad.any():
+    if not bad.any():
         return si
     if arr.ndim == 0:
         shown = repr(value) if isinstance(value, str) else float(arr)

@@ -868,7 +868,8 @@ def saturation_temperature(model, P, strict=True):
             def log_pressure_gap(Tx, target):
                 return np.log(_raw_saturation_pressure(model, Tx, strict=False)[0] / target)
 
-            result = find_root(log_pressure_gap, bracket=(np.full(Pb.shape, T_floor), np.full(Pb.shape, model.fluid.Tc)),
+            T_lo = _lowest_temperature(model, Pb, T_floor)
+            result = find_root(log_pressure_gap, bracket=(np.full(Pb.shape, T_lo), np.full(Pb.shape, model.fluid.Tc)),
                                args=(Pb,), xtol=0.0, rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
             if strict:
                 _require(result, "saturation temperature", Pb, "P", "Pa")
@@ -876,6 +877,16 @@ def saturation_temperature(model, P, strict=True):
             T[reachable] = T_b
             _, v_l[reachable], v_v[reachable], _ = _raw_saturation_pressure(model, T_b, strict=False)
     return T, v_l, v_v, result
+
+
+def _lowest_temperature(model, P, T_floor):
+    """A temperature [K] whose saturation pressure lies below every P, as close to them as a
+    few trial reduced temperatures allow (a narrow bracket saves iterations); else T_floor."""
+    Tc = model.fluid.Tc
+    for Tr in (0.35, 0.2, 0.1, 0.05):
+        if Tr * Tc > T_floor and _raw_saturation_pressure(model, np.array([Tr * Tc]), strict=False)[0][0] < np.min(P):
+            return Tr * Tc
+    return T_floor
 
 
 def _require(result, what, x, name, unit):

@@ -351,19 +351,20 @@ def _check_knowns(model, flat, given, problems):
         return f"{x:.6g} {_unit(name)}" + (f" (given as {text!r})" if text else "")
 
     for name, x in flat.items():
+        if name != "quality" and _all_positive_finite(x):   # the common case: one quick pass
+            continue
         problems.flag(~np.isfinite(x), lambda i, n=name: f"{n} = {value(n, i)} is not a finite number (NaN, inf or a masked element).",
                       kind=InputError)
-    for name in ("T", "P", "v", "rho", "rho_mass"):
-        if name in flat:
+        if name != "quality":
             absolute = " absolute" if name in ("T", "P") else ""
-            problems.flag(flat[name] <= 0.0, lambda i, n=name, a=absolute: f"{n} must be above zero{a}: got {value(n, i)}.")
+            problems.flag(x <= 0.0, lambda i, n=name, a=absolute: f"{n} must be above zero{a}: got {value(n, i)}.")
     M = model.fluid.molar_mass
     if "rho" in flat:
         flat["v"] = 1.0 / flat.pop("rho")
     if "rho_mass" in flat:
         flat["v"] = M / flat.pop("rho_mass")
     v_min = model.v_min
-    if "v" in flat:
+    if "v" in flat and not flat["v"].min(initial=np.inf) > v_min:
         problems.flag(flat["v"] <= v_min, lambda i: (
             f"v = {flat['v'][i]:.6g} m³/mol is at or below the co-volume b = {v_min:.6g} m³/mol of {model.name} "
             f"for {model.fluid.name}: no fluid is that dense in this model. Check the volume or density and its unit."))
@@ -385,11 +386,20 @@ def _check_knowns(model, flat, given, problems):
 def _flag_unfinite(model, parts, problems):
     """A solved element whose T, P or v came out NaN or inf is refused, not reported."""
     T, P, v = (np.asarray(parts[k], dtype=float) for k in ("T", "P", "v"))
+    if problems.any:
+        T, P, v = (np.where(problems.ok, x, 1.0) for x in (T, P, v))   # flagged already: not again
+    if _all_positive_finite(T) and _all_positive_finite(P) and _all_positive_finite(v):
+        return   # the common case, in three quick passes
     bad = ~(np.isfinite(T) & np.isfinite(P) & np.isfinite(v) & (v > 0.0))
     problems.flag(bad, lambda i: (
         f"the model gives no finite state at T = {T[i]:.6g} K, P = {P[i]:.6g} Pa, v = {v[i]:.6g} m³/mol: "
         f"these knowns lie outside the range {model.name} holds in double precision (e.g. a pressure or "
         "temperature hundreds of orders of magnitude from the critical point). Check the values and units."))
+
+
+def _all_positive_finite(x) -> bool:
+    """Every element above zero and finite (min and max are quick; NaN fails both tests)."""
+    return x.size == 0 or bool(x.min() > 0.0 and x.max() < np.inf)
 
 
 def _scatter(parts, ok):
@@ -773,10 +783,9 @@ def _make_state(model, shape, knowns, problems, *, T, P, v, phase, roots, qualit
     Elements flagged in ``problems`` become NaN with phase "not solved".
     """
     bad = ~problems.ok if problems.any else None
-    nan = np.full(np.shape(T), np.nan)
 
-    def shaped(a, dtype):
-        a = np.asarray(nan if a is None else a, dtype=dtype)
+    def shaped(a, dtype):   # a field the pair does not give is NaN: a read-only view, no memory
+        a = np.broadcast_to(np.nan, np.shape(T)) if a is None else np.asarray(a, dtype=dtype)
         if bad is not None and dtype is float:
             a = np.where(bad, np.nan, a)
         a = a.reshape(shape)
@@ -812,7 +821,7 @@ def _solid_warning(model, T):
     T_triple = model.fluid.T_triple
     if T_triple is None:
         return ()
-    cold = int(np.count_nonzero(T < T_triple))
+    cold = int(np.count_nonzero(T < T_triple)) if T.size and T.min() < T_triple else 0
     if not cold:
         return ()
     where = "T is" if T.size == 1 else f"At {cold} of {T.size} states T is"
