@@ -30,27 +30,32 @@ R = 8.31446261815324
 
 
 # --------------------------------------------------------------------------- alpha functions
-# Each returns (alpha, d alpha / d T) for T [K], Tc [K], omega [-].
+# Each returns (alpha, d alpha / d T, d2 alpha / d T2) for T [K], Tc [K], omega [-]: the
+# second derivative is what the heat capacities need (cv_res = T a''(T) I(v)).
 
 def _alpha_constant(T, Tc, omega):
     T = np.asarray(T, dtype=float)
-    return np.ones_like(T), np.zeros_like(T)
+    return np.ones_like(T), np.zeros_like(T), np.zeros_like(T)
 
 
 def _alpha_redlich_kwong(T, Tc, omega):
-    Tr = np.asarray(T, dtype=float) / Tc
-    alpha = Tr**-0.5
-    return alpha, -0.5 * alpha / (Tr * Tc)
+    """alpha = Tr^(-1/2), Redlich & Kwong (1949)."""
+    T = np.asarray(T, dtype=float)
+    alpha = (T / Tc) ** -0.5
+    return alpha, -0.5 * alpha / T, 0.75 * alpha / (T * T)
 
 
 def _soave_alpha(m):
     """alpha = (1 + m (1 - sqrt(Tr)))^2, the Soave (1972) form used by SRK and PR."""
 
     def alpha_function(T, Tc, omega):
-        sqrt_Tr = np.sqrt(np.asarray(T, dtype=float) / Tc)
+        T = np.asarray(T, dtype=float)
+        sqrt_Tr = np.sqrt(T / Tc)
         k = m(omega)
         root = 1.0 + k * (1.0 - sqrt_Tr)
-        return root * root, -k * root / (sqrt_Tr * Tc)
+        # d alpha/dT = -k root / sqrt(T Tc); d2 alpha/dT2 = k (1 + k) / (2 T sqrt(T Tc))
+        sqrt_TTc = sqrt_Tr * Tc
+        return root * root, -k * root / sqrt_TTc, 0.5 * k * (1.0 + k) / (T * sqrt_TTc)
 
     return alpha_function
 
@@ -192,6 +197,13 @@ class IdealGas(_Model):
 
     residual_gibbs = ln_phi
 
+    def residual_bundle(self, T, v):
+        """The residual Helmholtz energy and its derivatives: all zero for the ideal gas."""
+        from .properties import Helmholtz
+
+        zero = np.zeros(np.broadcast(np.asarray(T, dtype=float), np.asarray(v, dtype=float)).shape)
+        return Helmholtz(zero, zero, zero, zero, zero, zero)
+
 
 class CubicModel(_Model):
     """One generalized two-parameter cubic equation of state for a pure fluid.
@@ -250,8 +262,12 @@ class CubicModel(_Model):
     # -- the pieces of the equation
     def attraction(self, T):
         """a(T) [Pa m^6/mol^2] and da/dT [Pa m^6/(mol^2 K)]."""
-        alpha, dalpha = self.family.alpha(T, self.fluid.Tc, self.fluid.omega)
+        alpha, dalpha, _ = self.family.alpha(T, self.fluid.Tc, self.fluid.omega)
         return self.a_c * alpha, self.a_c * dalpha
+
+    def attraction_curvature(self, T):
+        """d2a/dT2 [Pa m^6/(mol^2 K^2)] at T [K]."""
+        return self.a_c * self.family.alpha(T, self.fluid.Tc, self.fluid.omega)[2]
 
     def _denominator(self, v):
         """(v_cubic + d1 b)(v_cubic + d2 b) at the model volume v."""
@@ -304,6 +320,26 @@ class CubicModel(_Model):
         a, da = self.attraction(T)
         u_res = (T * da - a) * self._attraction_integral(v)
         return _scalar_or_array(u_res + self.pressure(T, v) * v - R * T)
+
+    def residual_bundle(self, T, v):
+        """a_res(T, v) [J/mol] against the ideal gas at the same T and v, with its derivatives.
+
+        Assembled from the one formula of each piece: a_res (residual_helmholtz), its T
+        derivative -s_res (residual_entropy), the v derivatives from the pressure and its
+        slopes (a_v = R T/v - P, a_vv = -dP/dv - R T/v^2, a_Tv = R/v - dP/dT), and
+        a_TT = -a''(T) I(v), the only term no other property needs (Michelsen & Mollerup
+        2007, ch. 3). Returns a :class:`thermo_roots.properties.Helmholtz`.
+        """
+        from .properties import Helmholtz
+
+        T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+        return Helmholtz(
+            a=self.residual_helmholtz(T, v),
+            a_T=-self.residual_entropy(T, v),
+            a_TT=-self.attraction_curvature(T) * self._attraction_integral(v),
+            a_v=R * T / v - self.pressure(T, v),
+            a_vv=-self.dP_dv(T, v) - R * T / (v * v),
+            a_Tv=R / v - self.dP_dT(T, v))
 
     def ln_phi(self, T, v, P=None):
         """Natural log of the fugacity coefficient ln(f/P) [-] at T [K], v [m^3/mol].

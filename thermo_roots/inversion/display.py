@@ -36,6 +36,7 @@ def state_rows(state) -> list[tuple[str, str]]:
         ("Specific volume", f"{_fmt(state.v / M)} m³/kg"),
         ("Compressibility factor Z", _fmt(state.Z)),
     ]
+    rows += _caloric_rows(state)
     if state.phase == "two-phase":
         rows += [("Vapor quality (mole fraction)", _fmt(state.quality, digits=4)),
                  ("Saturated liquid density", f"{_fmt(M / state.v_liquid)} kg/m³"),
@@ -53,6 +54,20 @@ def state_rows(state) -> list[tuple[str, str]]:
         rows.append(("Second temperature with this P and v", f"{_fmt(state.T_other)} K"))
     if state.metastable:
         rows.append(("Stability", "METASTABLE: between binodal and spinodal"))
+    return rows
+
+
+def _caloric_rows(state) -> list[tuple[str, str]]:
+    """Enthalpy, entropy, heat capacities, speed of sound and Joule-Thomson coefficient, in
+    the units engineers read; none for a fluid without ideal-gas heat-capacity data."""
+    if state.model.fluid.ideal_gas is None:
+        return [("Enthalpy, entropy", "unknown: the fluid has no ideal-gas heat capacity (give Fluid(..., cp0=...))")]
+    rows = [("Specific enthalpy h", f"{_fmt(state.h_mass, 1e-3)} kJ/kg"),
+            ("Specific entropy s", f"{_fmt(state.s_mass, 1e-3)} kJ/(kg K)")]
+    if state.phase != "two-phase":
+        rows += [("Heat capacities cp, cv", f"{_fmt(state.cp_mass, 1e-3, 5)}, {_fmt(state.cv_mass, 1e-3, 5)} kJ/(kg K)"),
+                 ("Speed of sound", f"{_fmt(state.w, digits=5)} m/s"),
+                 ("Joule-Thomson coefficient", f"{_fmt(state.mu_jt, 1e5, 4)} K/bar")]
     return rows
 
 

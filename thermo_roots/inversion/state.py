@@ -63,7 +63,11 @@ class _Phase:
     def __set__(self, state, value):   # reached from the dataclass __init__ only (frozen)
         state.__dict__[self.slot] = value
 _VOLUME_KNOWNS = ("v", "rho", "rho_mass")
-_ALL_KNOWNS = ("T", "P") + _VOLUME_KNOWNS + ("quality",)
+#: Energy knowns (molar, and their mass-basis twins read into molar values); with P only, for now.
+_ENERGY_KNOWNS = ("h", "s", "h_mass", "s_mass")
+_ALL_KNOWNS = ("T", "P") + _VOLUME_KNOWNS + ("quality",) + _ENERGY_KNOWNS
+#: Knowns that are absolute and positive (an energy has an arbitrary zero; quality its own range).
+_POSITIVE_KNOWNS = ("T", "P") + _VOLUME_KNOWNS
 _BRANCHES = ("stable", "liquid", "vapor")
 
 
@@ -76,10 +80,12 @@ class Root:
     kind: str         #: "liquid-like", "vapor-like" or "unstable" (dP/dv > 0)
     ln_phi: float     #: ln of the fugacity coefficient [-]
     stable: bool      #: the root of lowest Gibbs energy at (T, P)
+    caloric: object = field(default=None, repr=False)   #: properties.Caloric of this root (molar, SI)
 
     @property
     def fugacity_coefficient(self) -> float:
         return float(np.exp(self.ln_phi))
+
 
 
 @dataclass(frozen=True)
@@ -168,7 +174,7 @@ class State:
                 kind = str(self.root_kinds[i])
                 lowest = (kind != UNSTABLE) if coexist else (i == stable)
                 out.append(Root(float(v), float(self.P * v / (R * self.T)), kind,
-                                float(self.root_ln_phi[i]), bool(lowest)))
+                                float(self.root_ln_phi[i]), bool(lowest), _root_caloric(self, v)))
         return tuple(out)
 
     @functools.cached_property
@@ -190,6 +196,26 @@ class State:
     def pressure_margin(self):
         """P / P_sat(T) - 1 [-]: how far the pressure is from saturation at this T."""
         return _scalar_or_array(np.asarray(self.P) / np.asarray(self.P_sat) - 1.0)
+
+    # -- caloric properties (molar unless _mass; SI): see thermo_roots.properties
+    @functools.cached_property
+    def _caloric(self):
+        return _state_caloric(self)
+
+    h = property(lambda self: self._caloric.h, doc="Enthalpy [J/mol] (lever rule in the two-phase region).")
+    s = property(lambda self: self._caloric.s, doc="Entropy [J/(mol K)] (lever rule in the two-phase region).")
+    u = property(lambda self: self._caloric.u, doc="Internal energy [J/mol] (lever rule in the two-phase region).")
+    g = property(lambda self: self._caloric.g, doc="Gibbs energy [J/mol] (lever rule in the two-phase region).")
+    cp = property(lambda self: self._caloric.cp, doc="Isobaric heat capacity [J/(mol K)]; NaN when two-phase.")
+    cv = property(lambda self: self._caloric.cv, doc="Isochoric heat capacity [J/(mol K)]; NaN when two-phase.")
+    w = property(lambda self: self._caloric.w, doc="Speed of sound [m/s]; NaN when two-phase.")
+    mu_jt = property(lambda self: self._caloric.mu_jt, doc="Joule-Thomson coefficient [K/Pa]; NaN when two-phase.")
+    kappa_T = property(lambda self: self._caloric.kappa_T, doc="Isothermal compressibility [1/Pa]; NaN when two-phase.")
+    h_mass = property(lambda self: _per_mass(self, self.h), doc="Specific enthalpy [J/kg].")
+    s_mass = property(lambda self: _per_mass(self, self.s), doc="Specific entropy [J/(kg K)].")
+    u_mass = property(lambda self: _per_mass(self, self.u), doc="Specific internal energy [J/kg].")
+    cp_mass = property(lambda self: _per_mass(self, self.cp), doc="Specific isobaric heat capacity [J/(kg K)].")
+    cv_mass = property(lambda self: _per_mass(self, self.cv), doc="Specific isochoric heat capacity [J/(kg K)].")
 
     # -- display
     def summary(self) -> list[tuple[str, str]]:
@@ -291,9 +317,7 @@ def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, erro
     flat = {k: np.atleast_1d(x).ravel() for k, x in given.items()}   # 1-D inside, shape restored at the end
     problems = Problems(next(iter(flat.values())).size, shape, strict=shape == () or errors == "raise")
     _check_knowns(model, flat, knowns, problems)
-    names = frozenset(given)
-    pair = (_from_quality if "quality" in names else _from_T_P if names == {"T", "P"}
-            else _from_T_v if "T" in names else _from_P_v)
+    pair = _PAIR_SOLVERS[frozenset(flat)]   # rho and rho_mass were turned into v
     if not problems.any:
         parts = pair(model, flat, problems, branch)
     else:   # solve the good elements only; the flagged ones stay NaN
@@ -331,6 +355,10 @@ def _read_knowns(model, knowns, atmosphere):
         raise InputError(f"{' and '.join(knowns)} both fix the volume; give one of them with T or P.")
     if "quality" in knowns and not ({"T", "P"} & set(knowns)):
         raise InputError("quality goes with T or with P, e.g. solve(model, T='20 degC', quality=0.3).")
+    energy = [k for k in knowns if k in _ENERGY_KNOWNS]
+    if energy and "P" not in knowns:
+        raise InputError(f"{energy[0]} goes with P for now (a valve outlet: solve(model, P='2 bar', "
+                         f"h=...)); the pairs with T, v or another energy are not built yet.")
     M = model.fluid.molar_mass
     si = {k: np.asarray(si_array(to_si, val, k, molar_mass=M, atmosphere=atmosphere), dtype=float)
           for k, val in knowns.items()}
@@ -351,14 +379,18 @@ def _check_knowns(model, flat, given, problems):
         return f"{x:.6g} {_unit(name)}" + (f" (given as {text!r})" if text else "")
 
     for name, x in flat.items():
-        if name != "quality" and _all_positive_finite(x):   # the common case: one quick pass
+        positive = name in _POSITIVE_KNOWNS
+        if positive and _all_positive_finite(x):   # the common case: one quick pass
             continue
         problems.flag(~np.isfinite(x), lambda i, n=name: f"{n} = {value(n, i)} is not a finite number (NaN, inf or a masked element).",
                       kind=InputError)
-        if name != "quality":
+        if positive:
             absolute = " absolute" if name in ("T", "P") else ""
             problems.flag(x <= 0.0, lambda i, n=name, a=absolute: f"{n} must be above zero{a}: got {value(n, i)}.")
     M = model.fluid.molar_mass
+    for name in ("h", "s"):
+        if f"{name}_mass" in flat:
+            flat[name] = flat.pop(f"{name}_mass") * M
     if "rho" in flat:
         flat["v"] = 1.0 / flat.pop("rho")
     if "rho_mass" in flat:
@@ -697,6 +729,104 @@ def _from_quality(model, flat, problems, branch=None):
                 convergence=None if result is None else (result, np.arange(np.size(result.root))))
 
 
+def _from_P_energy(model, flat, problems, branch, name):
+    """(P, h) or (P, s) -> T: at fixed P both rise with T (dh/dT = cp > 0, ds/dT = cp/T), so
+    each phase's segment is bracketed: below P_c, liquid from the model's lowest temperature
+    to T_sat(P), the two-phase segment in closed form (quality by the lever rule on h or s),
+    vapor from T_sat up; at or above P_c one segment on the stable root.
+    """
+    from ..properties import caloric
+
+    P, target = flat["P"], flat[name]
+    n = P.size
+    T, quality = np.full(n, np.nan), np.full(n, np.nan)
+    v, v_l, v_v = np.full(n, np.nan), np.full(n, np.nan), np.full(n, np.nan)
+    Tc, Pc = model.fluid.Tc, model.fluid.Pc
+    ideal = isinstance(model, IdealGas)
+    if ideal:
+        T_lo = 1.0
+    else:   # as cold as the model's saturation reaches, and no colder than half the triple point
+        from .saturation import lowest_saturation_temperature
+
+        T_lo = max(1.01 * lowest_saturation_temperature(model), 0.5 * (model.fluid.T_triple or 0.2 * Tc))
+    segment = np.full(n, "stable", dtype=object)
+    lo, hi = np.full(n, T_lo), np.full(n, 4.0 * Tc)
+    sub = (P < Pc) & (not ideal)
+    if np.any(sub):
+        i = np.flatnonzero(sub)
+        T_sat, vl, vv, _ = saturation_temperature(model, P[i], strict=False)
+        e_l = getattr(caloric(model, T_sat, vl, P[i]), name)
+        e_v = getattr(caloric(model, T_sat, vv, P[i]), name)
+        two = (target[i] >= e_l) & (target[i] <= e_v)
+        k = i[two]
+        quality[k] = (target[k] - e_l[two]) / (e_v[two] - e_l[two])
+        T[k], v_l[k], v_v[k] = T_sat[two], vl[two], vv[two]
+        v[k] = vl[two] + quality[k] * (vv[two] - vl[two])
+        liquid, vapor = i[target[i] < e_l], i[target[i] > e_v]
+        segment[liquid], hi[liquid] = "liquid", T_sat[target[i] < e_l]
+        segment[vapor], lo[vapor] = "vapor", T_sat[target[i] > e_v]
+        no_sat = i[~np.isfinite(T_sat)]
+        problems.flag_at(no_sat, [f"no saturation temperature from {model.name} at P = {P[k]:.6g} Pa, so the "
+                                  f"phase at this {name} cannot be placed." for k in no_sat])
+    single = ~np.isfinite(quality) & problems.ok
+    scale = R * Tc if name == "h" else R
+
+    def branch_volume(Tx, Px, seg):
+        roots = _roots_for(model, Tx, Px)
+        first = roots[:, 0]
+        last = np.where(np.isfinite(roots[:, 2]), roots[:, 2], roots[:, 0])
+        stable = stable_roots(model, Tx, Px)[2] if np.any(seg == "stable") and not ideal else first
+        return np.where(seg == "liquid", first, np.where(seg == "vapor", last, stable))
+
+    def gap(Tx, Px, target_x, seg):
+        vx = branch_volume(Tx, Px, seg)
+        return (getattr(caloric(model, Tx, vx, Px), name) - target_x) / scale
+
+    if np.any(single):
+        j = np.flatnonzero(single)
+        # the top end grows until the energy is passed (a hot gas), up to 64 Tc
+        for _ in range(5):
+            short = gap(hi[j], P[j], target[j], segment[j]) < 0.0
+            short &= segment[j] != "liquid"
+            if not short.any():
+                break
+            hi[j[short]] *= 2.0
+        with np.errstate(all="ignore"):
+            g_lo = gap(lo[j], P[j], target[j], segment[j])
+            g_hi = gap(hi[j], P[j], target[j], segment[j])
+        outside = ~((g_lo <= 0.0) & (g_hi >= 0.0))
+        problems.flag_at(j[outside], [
+            f"{name} = {target[k]:.6g} {_unit(name)} at P = {P[k]:.6g} Pa lies outside what {model.name} gives "
+            f"between {lo[k]:.4g} K and {hi[k]:.4g} K; check the value, its unit and its reference state."
+            for k in j[outside]], kind=DomainError)
+        j = j[~outside]
+        if j.size:
+            result = find_root(gap, bracket=(lo[j], hi[j]), args=(P[j], target[j], segment[j]), xtol=0.0,
+                               rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
+            ok = np.asarray(result.converged)
+            T[j[ok]] = np.asarray(result.root)[ok]
+            v[j[ok]] = branch_volume(T[j[ok]], P[j[ok]], segment[j[ok]])
+            problems.flag_at(j[~ok], [f"the temperature at P = {P[k]:.6g} Pa and {name} = {target[k]:.6g} "
+                                      f"{_unit(name)} did not converge." for k in j[~ok]])
+    T_safe = np.where(np.isfinite(T), T, Tc)
+    phase = np.asarray(_single_phase(model, T_safe, P, np.where(np.isfinite(v), v, 1.0)), dtype=object)
+    phase[np.isfinite(quality)] = "two-phase"
+    return dict(T=T, P=P, v=v, phase=phase, quality=quality, v_liquid=v_l, v_vapor=v_v,
+                roots=_roots_for(model, T_safe, P))
+
+
+#: The solver of each pair of knowns (volume measures are read as v first).
+_PAIR_SOLVERS = {
+    frozenset({"T", "P"}): _from_T_P,
+    frozenset({"T", "v"}): _from_T_v,
+    frozenset({"P", "v"}): _from_P_v,
+    frozenset({"T", "quality"}): _from_quality,
+    frozenset({"P", "quality"}): _from_quality,
+    frozenset({"P", "h"}): functools.partial(_from_P_energy, name="h"),
+    frozenset({"P", "s"}): functools.partial(_from_P_energy, name="s"),
+}
+
+
 def _lowest_saturation_temperature(model, T):
     """The model's lowest saturation temperature [K], worked out only if some T is low."""
     from .saturation import lowest_saturation_temperature
@@ -763,6 +893,67 @@ def _single_phase(model, T, P, v):
     return _PHASE_OBJECTS.take(phase_codes(model, T, P, v))
 
 
+_CALORIC_NAMES = ("h", "s", "u", "g", "cp", "cv", "w", "mu_jt", "kappa_T")
+#: Properties of a single phase that a two-phase mixture has no single value of.
+_SINGLE_PHASE_ONLY = ("cp", "cv", "w", "mu_jt", "kappa_T")
+
+
+def _root_property(name):
+    def read(root):
+        return float("nan") if root.caloric is None else getattr(root.caloric, name)
+    return property(read, doc=f"{name} of this root (molar, SI; NaN without ideal-gas data).")
+
+
+for _name in _CALORIC_NAMES:   # root.h, root.cp, root.w, ...
+    setattr(Root, _name, _root_property(_name))
+
+
+def _state_caloric(state):
+    """The state's Caloric record: one phase from (T, v, P); two-phase by the lever rule.
+
+    h, s, u, g of a two-phase state are the quality-weighted sums over the saturated liquid
+    and vapor at (T, P_sat); cp, cv, w, mu_jt and kappa_T are NaN there (one number would
+    mislead: cp and kappa_T are infinite across the dome, w and mu_jt have no single value).
+    Elements not solved are NaN throughout.
+    """
+    from ..properties import Caloric, caloric
+
+    T, P, v = (np.asarray(x, dtype=float) for x in (state.T, state.P, state.v))
+    ok = np.isfinite(v)
+    single = caloric(state.model, T, np.where(ok, v, 1.0), np.where(ok, P, 1.0))
+    two = np.asarray(state.phase == "two-phase")
+    values = {}
+    for name in Caloric._fields:
+        x = np.where(ok, getattr(single, name), np.nan)
+        if two.any() and name in _SINGLE_PHASE_ONLY:
+            x = np.where(two, np.nan, x)
+        values[name] = x
+    if two.any():
+        q, vl, vv = (np.asarray(x, dtype=float) for x in (state.quality, state.v_liquid, state.v_vapor))
+        liquid = caloric(state.model, T, np.where(two, vl, 1.0), P)
+        vapor = caloric(state.model, T, np.where(two, vv, 1.0), P)
+        for name in ("h", "s", "u", "g"):
+            mixed = (1.0 - q) * getattr(liquid, name) + q * getattr(vapor, name)
+            values[name] = np.where(two, mixed, values[name])
+    return Caloric(**{k: _scalar_or_array(x) for k, x in values.items()})
+
+
+def _root_caloric(state, v):
+    """The Caloric record of one root of a scalar state (None without ideal-gas data)."""
+    from ..errors import DomainError
+    from ..properties import Caloric, caloric
+
+    try:
+        record = caloric(state.model, state.T, v, state.P)
+    except DomainError:
+        return None
+    return Caloric(*(float(x) for x in record))
+
+
+def _per_mass(state, x):
+    return _scalar_or_array(np.asarray(x, dtype=float) / state.model.fluid.molar_mass)
+
+
 def _sat_or_nan(model, x, critical, solver):
     """The saturation P (or T) at x; NaN at or above the critical value and where the model
     has none (below its lowest saturation temperature), so that a state always displays."""
@@ -800,7 +991,7 @@ def _make_state(model, shape, knowns, problems, *, T, P, v, phase, roots, qualit
         phase = _PhaseCodes(phase.reshape(shape)) if shape else _PHASE_OBJECTS[int(phase.reshape(()))]
     else:
         phase = shaped(phase, object)
-    warnings = problems.summary() + _solid_warning(model, np.asarray(T, dtype=float) if bad is None
+    warnings = problems.summary() + _two_phase_note(phase) + _solid_warning(model, np.asarray(T, dtype=float) if bad is None
                                                    else np.asarray(T, dtype=float)[~bad])
     T_other = shaped(T_other, float)
     n_other = int(np.sum(np.isfinite(T_other)))
@@ -814,6 +1005,14 @@ def _make_state(model, shape, knowns, problems, *, T, P, v, phase, roots, qualit
                  _shaped_convergence(convergence, problems, shape),
                  problems.reason[0] if shape == () else problems.reason.reshape(shape),
                  T_other, warnings)
+
+
+def _two_phase_note(phase):
+    codes_or_words = phase.codes if isinstance(phase, _PhaseCodes) else np.asarray(phase, dtype=object)
+    if codes_or_words.dtype == np.int8 or not np.any(codes_or_words == "two-phase"):
+        return ()
+    return ("In the two-phase region cp, cv, speed of sound, Joule-Thomson coefficient and kappa_T have no "
+            "single value: they are NaN there (h, s, u and g follow the lever rule).",)
 
 
 def _solid_warning(model, T):
@@ -881,4 +1080,5 @@ def _first(x, mask):
 
 
 def _unit(name):
-    return {"T": "K", "P": "Pa", "v": "m³/mol", "rho": "mol/m³", "rho_mass": "kg/m³", "quality": ""}[name]
+    return {"T": "K", "P": "Pa", "v": "m³/mol", "rho": "mol/m³", "rho_mass": "kg/m³", "quality": "",
+            "h": "J/mol", "s": "J/(mol K)", "h_mass": "J/kg", "s_mass": "J/(kg K)"}[name]
