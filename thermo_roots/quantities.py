@@ -89,6 +89,12 @@ class Quantity:
         return self.si_unit == ""
 
     @property
+    def heading(self) -> str:
+        """The description as a table heading: "Molar volume", "Vapor quality"."""
+        text = self.description.split(" (")[0]
+        return text[:1].upper() + text[1:]
+
+    @property
     def per_temperature(self) -> bool:
         """True when a temperature in the unit is a difference (kJ/(kg °C), K/bar), never an offset."""
         return self.name != "T" and "[temperature]" in self.dimension
@@ -138,10 +144,13 @@ _ROWS = (
     Quantity("rho_mass", "Density", "mass density", "kg/m^3", "kg/m³", "[mass] / [length] ** 3", "kg/m^3",
              "kg/m³", twin="rho", basis="mass", reference_key="Dmass", example="850 kg/m³",
              input_units=(("kg/m³", "kg/m^3"), ("mol/L", "mol/L"), ("mol/m³", "mol/m^3"))),
-    Quantity("Z", "Compressibility factor", "compressibility factor", "", "-", "dimensionless", "", "-",
+    Quantity("Z", "Compressibility factor Z", "compressibility factor Z", "", "-", "dimensionless", "", "-",
              reference_key="Z", example="0.9"),
     Quantity("quality", "Vapor quality", "vapor quality (vapor mass fraction)", "", "-", "dimensionless", "", "-",
              reference_key="Q", example="0.3", input_units=(("fraction", ""), ("%", "percent"))),
+    Quantity("molar_mass", "Molar mass", "molar mass", "kg/mol", "kg/mol", "[mass] / [substance]", "g/mol",
+             "g/mol", reference_key="molar_mass", example="44.1 g/mol", input_units=(("g/mol", "g/mol"),
+                                                                                      ("kg/kmol", "kg/kmol"))),
     _energy("h", "Enthalpy", "enthalpy", "Hmolar", "18 kJ/mol", "h_mass"),
     _energy("u", "Internal energy", "internal energy", "Umolar", "15 kJ/mol", "u_mass"),
     _energy("g", "Gibbs energy", "Gibbs energy", "Gmolar", "-5 kJ/mol", None),
