@@ -24,6 +24,7 @@ import difflib
 import functools
 import math
 import types
+import dataclasses
 from dataclasses import dataclass
 
 import numpy as np
@@ -153,7 +154,8 @@ _ROWS = (
                                                                                       ("kg/kmol", "kg/kmol"))),
     _energy("h", "Enthalpy", "enthalpy", "Hmolar", "18 kJ/mol", "h_mass"),
     _energy("u", "Internal energy", "internal energy", "Umolar", "15 kJ/mol", "u_mass"),
-    _energy("g", "Gibbs energy", "Gibbs energy", "Gmolar", "-5 kJ/mol", None),
+    dataclasses.replace(_energy("g", "Gibbs energy", "Gibbs energy", "Gmolar", "-5 kJ/mol", None),
+                        input_units=(("kJ/mol", "kJ/mol"), ("J/mol", "J/mol"))),   # per mole only: no twin
     _energy("h_mass", "Enthalpy", "enthalpy", "Hmass", "250 kJ/kg", "h", mass=True),
     _energy("u_mass", "Internal energy", "internal energy", "Umass", "200 kJ/kg", "u", mass=True),
     _per_kelvin("s", "Entropy", "entropy", "Smolar", "120 J/(mol K)", "s_mass"),
