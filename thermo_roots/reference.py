@@ -35,6 +35,7 @@ import numpy as np
 from .errors import DomainError, InputError, UnknownFluidError
 from .inversion import CAUTION, saturation
 from .models import R, _scalar_or_array
+from .quantities import convert, quantity, unit_label
 from .units import to_si
 
 #: The pairs of knowns the reference understands, as the names used by ``solve``.
@@ -111,6 +112,16 @@ def _coolprop():
         CoolProp.iphase_twophase: "two-phase",
     }
     return CoolProp, inputs, phases
+
+
+@functools.lru_cache(maxsize=None)
+def _reference_key(name: str) -> tuple[int, int]:
+    """(CoolProp parameter index, power) of a quantity, from the table of quantities: the
+    quantity is the keyed output to that power (molar volume: Dmolar ** -1)."""
+    import CoolProp.CoolProp as CP
+
+    row = quantity(name)
+    return int(CP.get_parameter_index(row.reference_key)), row.reference_power
 
 
 def reference_limits(fluid) -> dict:
@@ -226,8 +237,9 @@ def _saturation_into(out, i, state, limits, T, P):
         if limits["T_min"] <= T < limits["Tc"]:
             state.update(CoolProp.QT_INPUTS, 0.0, T)
             out["P_sat"][i] = state.p()
-            out["v_liquid"][i] = 1.0 / state.saturated_liquid_keyed_output(CoolProp.iDmolar)
-            out["v_vapor"][i] = 1.0 / state.saturated_vapor_keyed_output(CoolProp.iDmolar)
+            key, power = _reference_key("v")
+            out["v_liquid"][i] = state.saturated_liquid_keyed_output(key) ** power
+            out["v_vapor"][i] = state.saturated_vapor_keyed_output(key) ** power
         if limits["P_triple"] <= P < limits["Pc"]:
             state.update(CoolProp.PQ_INPUTS, P, 0.0)
             out["T_sat"][i] = state.T()
@@ -513,14 +525,16 @@ def constant_warnings(fluid) -> tuple:
     if library_reason(fluid):
         return ()
     lib = _library_limits(fluid.library_name)
-    units = {"Tc": ("K", 1.0), "Pc": ("bar", 1e-5), "molar_mass": ("g/mol", 1e3), "omega": ("", 1.0)}
+    units = {"Tc": ("T", "K"), "Pc": ("P", "bar"), "molar_mass": ("molar_mass", "g/mol"), "omega": (None, "")}
     differ = []
     for key, tol in CONSTANT_TOLERANCE.items():
         mine, theirs = float(getattr(fluid, key)), float(lib[key])
         off = abs(mine - theirs) if key == "omega" else abs(mine - theirs) / abs(theirs)
         if not off <= tol:
-            unit, scale = units[key]
-            differ.append(f"{key} = {mine * scale:.6g} {unit}".rstrip() + f" against {theirs * scale:.6g} {unit}".rstrip())
+            name, unit = units[key]
+            if name is not None:
+                mine, theirs, unit = convert(mine, name, unit), convert(theirs, name, unit), unit_label(name, unit)
+            differ.append(f"{key} = {mine:.6g} {unit}".rstrip() + f" against {theirs:.6g} {unit}".rstrip())
     if not differ:
         return ()
     return (f"The constants of fluid {_fluid_name(fluid)!r} differ from those of the reference equation it is "
@@ -714,8 +728,15 @@ class CrossCheck:
         P_sat, T_sat = _model_value(s, "P_sat"), _model_value(s, "T_sat")
         v_liquid, v_vapor = _model_value(s, "v_liquid"), _model_value(s, "v_vapor")
 
-        def fmt(x, scale=1.0, digits=6):
-            return "-" if x is None or not np.isfinite(x) else f"{x * scale:.{digits}g}"
+        def fmt(x, name=None, unit=None, digits=6):
+            """x (SI) in ``unit`` of quantity ``name`` (the table's display unit when None)."""
+            if x is None or not np.isfinite(x):
+                return "-"
+            return f"{(convert(x, name, unit) if name else x):.{digits}g}"
+
+        def head(name, unit=None, what=None):
+            """ "Molar volume [L/mol]": the table's heading (or ``what``) and unit label."""
+            return f"{what or quantity(name).heading} [{unit_label(name, unit) or '-'}]"
 
         def percent(x):
             x = float(x)
@@ -733,24 +754,25 @@ class CrossCheck:
             phase = ("DIFFERS", True)
         table = [
             ("Phase", str(s.phase), self.reference_phase or "-", phase),
-            ("Temperature [K]", fmt(s.T), fmt(self.reference_T), kelvin(self.deviation_T_K)),
-            ("Pressure [bar]", fmt(s.P, 1e-5), fmt(self.reference_P, 1e-5), percent(self.deviation_P_percent)),
-            ("Molar volume [L/mol]", fmt(s.v, 1e3), fmt(self.reference_v, 1e3), percent(self.deviation_v_percent)),
-            ("Mass density [kg/m³]", fmt(s.rho_mass), fmt(self.reference_rho_mass),
+            (head("T", "K"), fmt(s.T, "T", "K"), fmt(self.reference_T, "T", "K"), kelvin(self.deviation_T_K)),
+            (head("P"), fmt(s.P, "P"), fmt(self.reference_P, "P"), percent(self.deviation_P_percent)),
+            (head("v"), fmt(s.v, "v"), fmt(self.reference_v, "v"), percent(self.deviation_v_percent)),
+            (head("rho_mass"), fmt(s.rho_mass, "rho_mass"), fmt(self.reference_rho_mass, "rho_mass"),
              percent(self.deviation_rho_percent)),
-            ("Compressibility factor Z [-]", fmt(s.Z), fmt(self.reference_Z), percent(_percent(s.Z, self.reference_Z))),
-            ("Saturation pressure at T [bar]", fmt(P_sat, 1e-5), fmt(self.reference_P_sat, 1e-5),
+            (head("Z"), fmt(s.Z), fmt(self.reference_Z), percent(_percent(s.Z, self.reference_Z))),
+            (head("P", what="Saturation pressure at T"), fmt(P_sat, "P"), fmt(self.reference_P_sat, "P"),
              percent(_percent(P_sat, self.reference_P_sat))),
         ]
         if s.phase == "two-phase" or self.reference_phase == "two-phase":
             table += [
-                ("Vapor quality [-]", fmt(s.quality, digits=4), fmt(self.reference_quality, digits=4), ("-", False)),
-                ("Saturation temperature at P [K]", fmt(T_sat), fmt(self.reference_T_sat),
+                (head("quality"), fmt(s.quality, digits=4), fmt(self.reference_quality, digits=4), ("-", False)),
+                (head("T", "K", "Saturation temperature at P"), fmt(T_sat, "T", "K"),
+                 fmt(self.reference_T_sat, "T", "K"),
                  kelvin(T_sat - self.reference_T_sat if math.isfinite(T_sat) else nan)),
-                ("Saturated liquid density [kg/m³]", fmt(M / v_liquid), fmt(M / self.reference_v_liquid),
-                 percent(_percent(self.reference_v_liquid, v_liquid))),
-                ("Saturated vapor density [kg/m³]", fmt(M / v_vapor), fmt(M / self.reference_v_vapor),
-                 percent(_percent(self.reference_v_vapor, v_vapor))),
+                (head("rho_mass", what="Saturated liquid density"), fmt(M / v_liquid, "rho_mass"),
+                 fmt(M / self.reference_v_liquid, "rho_mass"), percent(_percent(self.reference_v_liquid, v_liquid))),
+                (head("rho_mass", what="Saturated vapor density"), fmt(M / v_vapor, "rho_mass"),
+                 fmt(M / self.reference_v_vapor, "rho_mass"), percent(_percent(self.reference_v_vapor, v_vapor))),
             ]
         return [((q, m, r, d[0]), d[1]) for q, m, r, d in table]
 

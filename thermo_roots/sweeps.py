@@ -47,6 +47,7 @@ from .models import CubicModel, IdealGas, R
 from .reference import (CrossCheck, _check_run_options, _given, cross_check, library_reason, reference_limits,
                         reference_saturation, whole_number)
 from .roots import find_root
+from .quantities import QUANTITIES
 from .units import to_si
 
 #: Quantities whose ranges are spaced logarithmically by default.
@@ -169,17 +170,21 @@ def _scalar(value, quantity, molar_mass=None):
 # --------------------------------------------------------------------------- frames
 
 def _unit_of(column: str) -> str:
-    """The SI unit of a column, by its name."""
+    """The SI unit of a column, by its name: the table of quantities' unit of the longest
+    quantity name it starts with ("rho_mass_liquid" -> kg/m³, "v_root_2" -> m³/mol)."""
     if column.endswith("_percent"):
         return "%"
     if column.endswith("_K"):
         return "K"
     base = column.removeprefix("reference_")
-    for prefix, unit in (("v_", "m³/mol"), ("rho_mass", "kg/m³"), ("rho", "mol/m³"), ("Z", "-"),
-                         ("quality", "-"), ("P_sat", "Pa"), ("T_sat", "K")):
-        if base.startswith(prefix):
-            return unit
-    return {"T": "K", "P": "Pa", "v": "m³/mol"}.get(base, "")
+    for name in _NAMES_LONGEST_FIRST:
+        if base == name or base.startswith(name + "_"):
+            return QUANTITIES[name].si_label
+    return ""
+
+
+# Longest first, so "rho_mass" wins over "rho" and "h_mass" over "h".
+_NAMES_LONGEST_FIRST = sorted(QUANTITIES, key=len, reverse=True)
 
 
 def _attrs(model, table: str, **extra) -> dict:

@@ -36,14 +36,16 @@ technical and standard atmosphere, bar, °F and °C).
 
 from __future__ import annotations
 
-import functools
-import math
 import numbers
 import re
 
 import numpy as np
 
 from .errors import WrongTypeError, InputError
+from .quantities import QUANTITIES, display, quantity as _row, registry, to_other_basis
+
+__all__ = ["QUANTITIES", "STANDARD_ATMOSPHERE", "ATMOSPHERE_RANGE", "to_si", "check_atmosphere", "split_value",
+           "read_unit", "registry", "format_value"]
 
 #: Standard atmosphere [Pa] (ISO 2533; common practice as the default gauge reference).
 STANDARD_ATMOSPHERE = 101325.0
@@ -52,17 +54,6 @@ STANDARD_ATMOSPHERE = 101325.0
 #: sea-level readings; common practice). A number outside is nearly always another unit
 #: read as Pa (1.01325 meant as bar, 14.7 as psi).
 ATMOSPHERE_RANGE = (10e3, 200e3)
-
-#: What each known quantity means, its SI unit and its pint dimensionality.
-QUANTITIES = {
-    "T": ("temperature", "K", "[temperature]"),
-    "P": ("pressure", "Pa", "[mass] / [length] / [time] ** 2"),
-    "v": ("molar volume", "m^3/mol", "[length] ** 3 / [substance]"),
-    "rho": ("molar density", "mol/m^3", "[substance] / [length] ** 3"),
-    "rho_mass": ("mass density", "kg/m^3", "[mass] / [length] ** 3"),
-    "quality": ("vapor quality (vapor mass fraction)", "", "dimensionless"),
-}
-
 
 # WrongTypeError lives with the other error classes; it is raised here for a value of the wrong type.
 # Temperature spellings, after "°", "deg" or "degree(s)" and spaces are taken off (any case).
@@ -81,14 +72,6 @@ _NUMBER = re.compile(r"^(?P<num>[-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)
 _MINUS = str.maketrans({"\u2212": "-", "\u2012": "-", "\u2013": "-", "\ufe63": "-", "\uff0d": "-"})
 
 
-@functools.lru_cache(maxsize=1)
-def registry():
-    """The project's pint unit registry (one per process)."""
-    import pint
-
-    return pint.UnitRegistry()
-
-
 def to_si(value, quantity: str, *, molar_mass: float | None = None,
           atmosphere=STANDARD_ATMOSPHERE, nonfinite: str = "raise"):
     """Convert a known quantity to SI.
@@ -99,10 +82,15 @@ def to_si(value, quantity: str, *, molar_mass: float | None = None,
         Numbers (Python or numpy scalars, arrays) are taken as SI already. Strings hold a
         number and a unit (``"35 °C"``, ``"1160 psi"``, ``"0.5 L/mol"``, ``"8 barg"``); the
         rules are in this module's docstring. Booleans are refused.
-    quantity : {"T", "P", "v", "rho", "rho_mass", "quality"}
-        Which known this is.
+    quantity : str
+        Which quantity this is, a name in :data:`thermo_roots.quantities.QUANTITIES`: "T",
+        "P", "v", "rho", "rho_mass", "quality", "h", "s", "u", "g", "h_mass", "s_mass",
+        "u_mass", "cp", "cv", "cp_mass", "cv_mass", "w", "mu_jt", "kappa_T", ...
     molar_mass : float, optional
-        [kg/mol]; lets a specific volume (m³/kg) stand for v, or a mass density for rho.
+        [kg/mol]; lets a value on the other basis stand for the quantity: the dimension of
+        the unit decides (``"250 kJ/kg"`` for h gives J/mol, ``"18 kJ/mol"`` for h_mass gives
+        J/kg; a specific volume in m³/kg for v, a mass density for rho). Without it a value
+        on the other basis is refused with a message saying so.
     atmosphere : float, str or pint.Quantity
         Atmospheric pressure a gauge pressure is added to [Pa]; absolute, finite and within
         :data:`ATMOSPHERE_RANGE` (see :func:`check_atmosphere`).
@@ -128,8 +116,7 @@ def to_si(value, quantity: str, *, molar_mass: float | None = None,
     ----------
     NIST Special Publication 811 (2008), Appendix B, for the conversion factors.
     """
-    if quantity not in QUANTITIES:
-        raise InputError(f"Unknown quantity {quantity!r}; allowed: {', '.join(QUANTITIES)}.")
+    _row(quantity)            # an unknown name: InputError listing the names
     if nonfinite not in ("raise", "nan"):
         raise InputError(f"nonfinite = {nonfinite!r} is not allowed; use 'raise' or 'nan'.")
     atmosphere = check_atmosphere(atmosphere)
@@ -191,7 +178,8 @@ def split_value(text: str, name: str = "value") -> tuple[float, str]:
         raise InputError(f"Cannot read {name} = {text!r}: write a number and a unit, e.g. "
                          f"{_example(name)!r}.")
     number, unit = match["num"], match["unit"].strip()
-    if unit[:1].isdigit() or (unit[:1] in ",." and unit[1:2].isdigit()):
+    per = re.match(r"1\s*/\s*[A-Za-z]", unit)           # "0.01 1/bar": a reciprocal unit, not a digit group
+    if (unit[:1].isdigit() and not per) or (unit[:1] in ",." and unit[1:2].isdigit()):
         raise InputError(f"Cannot read the number in {name} = {text!r}: write it with one decimal point "
                          f"and without spaces or thousands separators, e.g. {_example(name)!r}.")
     if "," in number:
@@ -237,7 +225,7 @@ def read_unit(unit: str, quantity: str, name: str | None = None) -> tuple[str, b
                              "e.g. '25 °C' or '25 degC'.")
     if quantity == "quality" and unit == "%":
         return "percent", False
-    spelled = _powers(unit)
+    spelled = _spell(unit, _row(quantity))
     if spelled:
         try:
             registry().Unit(spelled)
@@ -396,7 +384,7 @@ def _pressure_base(unit: str, name: str):
         return _PRESSURE[key]
     spelled = _powers(unit)
     try:
-        found = registry().Quantity(1.0, spelled).check(QUANTITIES["P"][2])
+        found = registry().Quantity(1.0, spelled).check(_row("P").dimension)
     except Exception:  # pint raises several types for unknown or malformed units
         return None
     return spelled if found else None
@@ -404,39 +392,70 @@ def _pressure_base(unit: str, name: str):
 
 def _powers(unit: str) -> str:
     """Engineers write "kg/m3", "kg/m³" and "cm3/mol": a digit straight after a unit name is a power."""
-    unit = unit.replace("²", "^2").replace("³", "^3")
+    unit = unit.replace("²", "^2").replace("³", "^3").replace("⁻¹", "^-1")
     return re.sub(r"(?<=[A-Za-z])(\d+)", r"^\1", unit)
 
 
+# Spellings of units with an energy or a temperature difference in them (kJ/(kg K), Btu/lb °F).
+_MULTIPLY = str.maketrans({"·": " ", "⋅": " ", "∙": " ", "×": " "})
+_BTU = re.compile(r"(?<![A-Za-z_])(?:btu|Btu|BTU)(?![A-Za-z_])")    # the International Table Btu (SP 811)
+_LBM = re.compile(r"(?<![A-Za-z_])lbm(?![A-Za-z_])")
+_GLUED = re.compile(r"(?<![A-Za-z])(kg|g|lb|kmol|mol)((?:[°º˚]|deg)?[CFKR])(?![A-Za-z_])")   # kgK, lb°F
+_JOINED = re.compile(r"(?<=[A-Za-z])[-.](?=[A-Za-z°º˚])")                                  # kg-K, kg.K
+_DIFFERENCE = re.compile(r"(?<![A-Za-z_])(?:[°º˚]\s*|deg\s*|degrees?\s*)?"
+                         r"(C|F|K|R|Celsius|Fahrenheit|Kelvin|Rankine)(?![A-Za-z_])")
+_DIFFERENCE_UNIT = {"C": "delta_degC", "F": "delta_degF", "K": "K", "R": "degR"}
+
+
+def _spell(unit: str, row) -> str:
+    """A unit as typed, in pint's spelling for quantity ``row``.
+
+    "kJ/kg K", "kJ/kgK", "kJ/(kg·K)" and "kJ/kg/K" are all kJ/(kg K); in a unit other than a
+    temperature's own, a temperature is a difference (°C and K the same size, °F and R
+    5/9 K), never an offset; Btu is the International Table Btu; lbm is the pound.
+    """
+    unit = _LBM.sub("lb", _BTU.sub("Btu_it", unit.translate(_MULTIPLY)))
+    if row.per_temperature:
+        unit = _JOINED.sub(" ", _GLUED.sub(r"\1 \2", unit))
+        unit = _DIFFERENCE.sub(lambda m: _DIFFERENCE_UNIT[m[1][0].upper()], unit)
+    if unit.count("/") == 1 and "(" not in unit:       # "J/mol K": everything after / is below it
+        top, bottom = (part.strip() for part in unit.split("/"))
+        if re.search(r"[\s*]", bottom):
+            unit = f"{top}/({bottom})"
+    return _powers(unit)
+
+
 def _quantity_to_si(q, quantity, name, molar_mass, text):
-    what, si_unit, dimension = QUANTITIES[quantity]
-    ureg = registry()
-    if quantity == "quality":
+    row = _row(quantity)
+    if row.dimensionless:
         if not q.dimensionless:
-            raise InputError(f"{name} = {text} must be a fraction (0.3) or a percent (30 %).")
+            if quantity == "quality":
+                raise InputError(f"{name} = {text} must be a fraction (0.3) or a percent (30 %).")
+            raise InputError(f"{name} = {text} must be a plain number ({row.description}), e.g. {row.example!r}.")
         return _magnitude(q.to(""))
-    if q.check(dimension):
-        return _magnitude(q.to(si_unit))
-    swapped = _mass_basis(quantity, q, molar_mass, ureg)
-    if swapped is not None:
-        return swapped
+    if q.check(row.dimension):
+        return _magnitude(q.to(row.si_unit))
+    twin = _row(row.twin) if row.twin else None
+    if twin is not None and q.check(twin.dimension):
+        if molar_mass is None:
+            raise InputError(
+                f"{name} = {text} is a {twin.description} ({_per(twin)}); reading it as {name}, a "
+                f"{row.description} [{row.si_label}], needs the molar mass: give molar_mass= [kg/mol] "
+                f"(solve() gives the fluid's), or give {name} {_per(row)}, e.g. {row.example!r}.")
+        return to_other_basis(_magnitude(q.to(twin.si_unit)), twin.name, molar_mass)
+    ureg = registry()
     if quantity == "T" and q.units == ureg.Unit("degree"):
         raise InputError(f"{name} = {text}: 'deg' alone is an angle; write °C, °F or K, e.g. '25 °C'.")
     got = "a plain number" if q.dimensionless else f"{q.units:~P}"
+    also = f" or {twin.example!r}" if twin is not None and molar_mass is not None else ""
     raise InputError(
-        f"{name} = {text} has a unit of the wrong kind ({got}); {name} is a {what}, "
-        f"e.g. {_example(quantity)!r}."
+        f"{name} = {text} has a unit of the wrong kind ({got}); {name} is a {row.description} "
+        f"[{row.si_label}], e.g. {_example(quantity)!r}{also}."
     )
 
 
-def _mass_basis(quantity, q, molar_mass, ureg):
-    """A specific volume for v, or a mass density for rho, converted with the molar mass."""
-    pairs = {"v": ("[length] ** 3 / [mass]", "m^3/kg", lambda x: x * molar_mass),
-             "rho": ("[mass] / [length] ** 3", "kg/m^3", lambda x: x / molar_mass)}
-    if quantity not in pairs or molar_mass is None:
-        return None
-    dimension, unit, convert = pairs[quantity]
-    return convert(_magnitude(q.to(unit))) if q.check(dimension) else None
+def _per(row) -> str:
+    return {"molar": "per mole", "mass": "per kilogram"}.get(row.basis, "")
 
 
 def _magnitude(q):
@@ -465,15 +484,13 @@ def _display(unit: str) -> str:
 
 
 def _example(quantity: str) -> str:
-    return {"T": "35 °C", "P": "80 bar", "atmosphere": "101.325 kPa", "v": "0.5 L/mol", "rho": "12 mol/L",
-            "rho_mass": "850 kg/m³", "quality": "0.3"}.get(quantity, "80 bar")
+    if quantity == "atmosphere":
+        return "101.325 kPa"
+    row = QUANTITIES.get(quantity)
+    return row.example if row is not None and row.example else "80 bar"
 
 
 def format_value(value: float, quantity: str, unit: str | None = None, digits: int = 6) -> str:
-    """A SI value as display text in ``unit`` (the SI unit when None), e.g. "35 °C"."""
-    if unit is None:
-        unit = QUANTITIES[quantity][1]
-    if not math.isfinite(value):
-        return "-"
-    shown = registry().Quantity(value, QUANTITIES[quantity][1] or "").to(unit).magnitude if unit else value
-    return f"{shown:.{digits}g} {unit}".strip()
+    """A SI value as display text in ``unit`` (pint spelling; the SI unit when None), e.g.
+    "35 °C"; "-" when not finite."""
+    return display(value, quantity, _row(quantity).si_unit if unit is None else unit, digits)

@@ -16,19 +16,16 @@ import numpy as np
 
 from .. import MODELS, Fluid, get_fluid, to_si
 from ..errors import ThermoRootsError
-from ..units import QUANTITIES, read_unit, registry, split_value
+from ..quantities import QUANTITIES
+from ..units import read_unit, registry, split_value
 
-#: Unit choices per known quantity: (label shown, unit text the units layer reads).
-UNITS = {
-    "T": (("°C", "degC"), ("K", "K"), ("°F", "degF")),
-    "P": (("bar", "bar"), ("barg", "barg"), ("kPa", "kPa"), ("kPag", "kPag"), ("MPa", "MPa"),
-          ("Pa", "Pa"), ("psi", "psi"), ("psig", "psig")),
-    "v": (("L/mol", "L/mol"), ("m³/mol", "m^3/mol"), ("m³/kg", "m^3/kg")),
-    "rho": (("kg/m³", "kg/m^3"), ("mol/L", "mol/L"), ("mol/m³", "mol/m^3")),
-    "quality": (("fraction", ""), ("%", "percent")),
-}
-#: What each field is called on screen.
-LABELS = {"T": "Temperature", "P": "Pressure", "v": "Volume", "rho": "Density", "quality": "Vapor quality"}
+#: The knowns the state panel offers as fields (v and rho each take either basis).
+FIELDS = ("T", "P", "v", "rho", "quality")
+#: Unit choices per field: (label shown, unit text the units layer reads), from the table of
+#: quantities (``QUANTITIES[name].input_units``, which a field of any other quantity uses).
+UNITS = {name: QUANTITIES[name].input_units for name in FIELDS}
+#: What each field is called on screen, from the table of quantities.
+LABELS = {name: q.label for name, q in QUANTITIES.items()}
 #: Short names of the fluid chooser's "my own constants" entry.
 CUSTOM = "custom"
 
@@ -67,7 +64,7 @@ class QuantityField:
         self.reader = reader
         self.what = what or LABELS[quantity].lower()
         self.name = what or quantity         # how messages name it, as the units layer does
-        options = units if units is not None else UNITS[quantity]
+        options = units if units is not None else QUANTITIES[quantity].input_units
         self.text = w.Text(layout=w.Layout(width="120px"), continuous_update=False)
         self.unit = w.Dropdown(options=list(options), layout=w.Layout(width="95px"))
         self.message = w.HTML()
@@ -85,7 +82,7 @@ class QuantityField:
         """Fill the field from Python: a number (SI; Python or numpy) or a text such as
         "20 degC" or "8 barg" (its unit then chosen in the menu when the menu has it)."""
         if isinstance(value, numbers.Real) and not isinstance(value, (bool, np.bool_)):
-            si = QUANTITIES[self.quantity][1]
+            si = QUANTITIES[self.quantity].si_unit
             if self._select(si):
                 self.text.value = f"{float(value):g}"
             else:                   # the SI unit is not on offer here: say it in the box
@@ -166,10 +163,10 @@ class QuantityField:
                 raise self.fail(f"Cannot read {self.name} = {text!r}: write a number{in_unit}, e.g. "
                                 f"{_EXAMPLE_NUMBER[self.quantity]}.")
             raise self.fail(f"Cannot read {self.name} = {text!r}: write a number and a unit, e.g. "
-                            f"{_EXAMPLE_NUMBER[self.quantity]} {UNITS[self.quantity][0][0]}.")
+                            f"{_EXAMPLE_NUMBER[self.quantity]} {QUANTITIES[self.quantity].input_units[0][0]}.")
         if unit_text == "" and self.unit.value is None:
             raise self.fail(f"Choose a unit in the menu beside {number!r}, or write one after the number, "
-                            f"e.g. {_EXAMPLE_NUMBER[self.quantity]} {UNITS[self.quantity][0][0]}.")
+                            f"e.g. {_EXAMPLE_NUMBER[self.quantity]} {QUANTITIES[self.quantity].input_units[0][0]}.")
         try:
             if self.reader is not None:
                 return self.reader(self.entered())
@@ -204,6 +201,8 @@ class QuantityField:
 
 _STARTS_WITH_NUMBER = re.compile(r"^\s*[-+\u2212]?[.,]?\d")
 _EXAMPLE_NUMBER = {"T": "20", "P": "8", "v": "0.5", "rho": "500", "quality": "0.3"}
+for _name, _q in QUANTITIES.items():      # the others: the number of the table's example
+    _EXAMPLE_NUMBER.setdefault(_name, _q.example.split()[0] if _q.example else "1")
 
 
 def _unit_key(unit: str, quantity: str):

@@ -11,7 +11,7 @@ import io
 import numpy as np
 
 from .. import CAUTION
-from ..units import QUANTITIES, registry
+from ..quantities import convert
 
 _TABLE = "border-collapse:collapse;margin:0 18px 8px 0;font-size:0.92em"
 _CELL = "padding:2px 8px;border-bottom:1px solid #ddd;text-align:left"
@@ -20,7 +20,7 @@ _CAPTION = "text-align:left;font-weight:bold;padding:2px 0 4px 0"
 
 def in_unit(value, quantity: str, unit: str) -> float:
     """A SI value of a known quantity expressed in ``unit`` (e.g. K -> degC)."""
-    return float(registry().Quantity(value, QUANTITIES[quantity][1]).to(unit).magnitude)
+    return float(convert(value, quantity, unit))
 
 
 def fmt(x, digits: int = 5) -> str:
