@@ -1080,5 +1080,7 @@ def _first(x, mask):
 
 
 def _unit(name):
-    return {"T": "K", "P": "Pa", "v": "m³/mol", "rho": "mol/m³", "rho_mass": "kg/m³", "quality": "",
-            "h": "J/mol", "s": "J/(mol K)", "h_mass": "J/kg", "s_mass": "J/(kg K)"}[name]
+    """The SI unit of a known as people read it ("K", "Pa", "m³/mol", "" for quality)."""
+    from ..quantities import quantity, unit_label
+
+    return unit_label(name, quantity(name).si_unit)
