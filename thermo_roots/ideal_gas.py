@@ -207,8 +207,7 @@ class IdealGasPart:
         ----------
         Span, R. (2000), Multiparameter Equations of State, Springer, table 3.3.
         """
-        T = np.asarray(T, dtype=float)
-        v = np.asarray(v, dtype=float)
+        T, v = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(v, dtype=float))
         R = self.R
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             T = np.where(T > 0, T, np.nan)
@@ -222,7 +221,7 @@ class IdealGasPart:
             a_TT = R * tau * tau * A_tt / T
             a_v = -RT / v
             a_vv = RT / (v * v)
-            a_Tv = -R / v + 0.0 * T
+            a_Tv = -R / v
         return IdealHelmholtz(*(_out(x) for x in (a, a_T, a_TT, a_v, a_vv, a_Tv)))
 
     def cp0(self, T):
@@ -380,9 +379,12 @@ def part_from_cp0(cp0, Tc: float, Pc: float, who: str = "Fluid") -> IdealGasPart
         )
     rho_r = Pc / (R * Tc)
     terms = tuple((c / R, float(k), Tc, T_REF) for k, c in enumerate(coefficients) if c != 0.0)
-    # h0(T_REF) = R T_REF (1 + tau a2) = 0 and s0(T_REF, P_REF) = -R (ln delta_REF + a1) = 0
-    lead = (-math.log(P_REF / (R * T_REF * rho_r)), -T_REF / Tc)
-    return IdealGasPart(R=R, T_r=Tc, rho_r=rho_r, lead=lead, cp0_power=terms,
+    # -ln tau cancels the R of cp0 = R (1 - tau² alpha0_tautau), so the terms carry all of cp0;
+    # then h0 = R a2 T_r + integral of cp0 from T_REF (a2 = 0), and
+    # s0 / R = -ln delta - a1 - 1 + ln tau + integral of cp0/(R T) from T_REF, nil at T_REF, P_REF
+    delta_ref = P_REF / (R * T_REF * rho_r)
+    lead = (math.log(Tc / T_REF) - 1.0 - math.log(delta_ref), 0.0)
+    return IdealGasPart(R=R, T_r=Tc, rho_r=rho_r, lead=lead, log_tau=-1.0, cp0_power=terms,
                         source="user cp0 = " + " + ".join(f"{c:.6g} T^{k}" for k, c in enumerate(coefficients)))
 
 
@@ -401,7 +403,8 @@ def _cp0_coefficients(cp0, who) -> tuple[float, ...]:
         if not _is_real(value):
             raise WrongTypeError(f"{who}: cp0 coefficient {k} is {value!r}; cp0 must be {allowed}.")
         if not math.isfinite(value):
-            raise InputError(f"{who}: cp0 coefficient {k} is {value!r}; every coefficient must be finite.")
+            raise InputError(f"{who}: cp0 coefficient {k} is {value!r}; every coefficient must be finite, "
+                             f"cp0 being {allowed}.")
     return tuple(float(v) for v in values)
 
 
