@@ -1,6 +1,7 @@
 """Fluid lookup against CoolProp's fluid library."""
 
 import CoolProp
+import numpy as np
 import pytest
 
 import thermo_roots as tr
@@ -71,6 +72,13 @@ def test_shipped_library_table_agrees_with_the_installed_coolprop():
         for key in ("Tc", "Pc", "omega", "molar_mass"):
             assert entry[key] == pytest.approx(now[key], rel=1e-9), (name, key, shipped["source"], live["source"])
         assert entry["CAS"] == now["CAS"], name
+        # the ideal-gas terms of the reference equation (thermo_roots.ideal_gas): same kinds
+        # and count of terms, every coefficient to 1e-9
+        ideal, ideal_now = entry["ideal_gas"], now["ideal_gas"]
+        assert sorted(ideal) == sorted(ideal_now), name
+        for key, value in ideal.items():
+            assert np.shape(value) == np.shape(ideal_now[key]), (name, key)
+            np.testing.assert_allclose(value, ideal_now[key], rtol=1e-9, atol=1e-12, err_msg=f"{name} {key}")
 
 
 def test_library_fluids_carry_the_names_engineers_write():

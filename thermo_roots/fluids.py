@@ -6,6 +6,7 @@ equations carry the critical point, acentric factor and molar mass of each fluid
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
 import functools
 import json
@@ -13,11 +14,12 @@ import math
 import pathlib
 import numbers
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
 from .errors import InputError, UnknownFluidError, WrongTypeError
+from .ideal_gas import IdealGasPart, part_from_cp0
 
 
 @dataclass(frozen=True)
@@ -42,6 +44,15 @@ class Fluid:
     T_triple : float or None
         Triple-point temperature [K], where known: below it the real fluid is solid, which
         no cubic equation of state represents (states there carry a warning).
+    cp0 : float, tuple of up to 5 floats, or None
+        Keyword only. Ideal-gas heat capacity of a user-defined fluid: a constant
+        [J/(mol K)], or (a, b, c, d, e) of cp0 = a + b T + c T² + d T³ + e T⁴ [J/(mol K),
+        T in K]; it must exceed R at 300 K. Its reference state: h0 = 0 at 298.15 K, and
+        s0 = 0 at 298.15 K and 101325 Pa. Gives :attr:`ideal_gas`.
+    ideal_gas : IdealGasPart or None
+        Keyword only. The ideal-gas Helmholtz energy (thermo_roots.ideal_gas); library
+        fluids carry their reference equation's own, user-defined fluids the one made from
+        ``cp0``; None when neither is known (no caloric properties then).
 
     References
     ----------
@@ -55,6 +66,8 @@ class Fluid:
     molar_mass: float
     library_name: str | None = None
     T_triple: float | None = None
+    cp0: float | tuple | None = field(default=None, kw_only=True)
+    ideal_gas: IdealGasPart | None = field(default=None, kw_only=True, repr=False)
 
     def __post_init__(self):
         if not isinstance(self.name, str) or not self.name.strip():
@@ -76,6 +89,22 @@ class Fluid:
             object.__setattr__(self, "T_triple", float(self.T_triple))
         if not (_is_real_number(self.omega) and math.isfinite(self.omega) and -1 < self.omega < 2):
             raise InputError(f"Fluid {self.name!r}: omega = {self.omega!r} must be a finite number between -1 and 2.")
+        self._check_ideal_gas()
+
+    def _check_ideal_gas(self):
+        who = f"Fluid {self.name!r}"
+        if self.ideal_gas is not None and not isinstance(self.ideal_gas, IdealGasPart):
+            raise WrongTypeError(f"{who}: ideal_gas must be a thermo_roots.ideal_gas.IdealGasPart or None, not "
+                                 f"{self.ideal_gas!r}; for a heat capacity give cp0= instead.")
+        if self.cp0 is None:
+            return
+        if self.ideal_gas is not None:
+            raise InputError(f"{who}: give cp0= or ideal_gas=, not both (cp0 = {self.cp0!r} would build a second "
+                             "ideal-gas part).")
+        part = part_from_cp0(self.cp0, self.Tc, self.Pc, who)
+        stored = float(self.cp0) if _is_real_number(self.cp0) else tuple(float(c) for c in self.cp0)
+        object.__setattr__(self, "cp0", stored)   # a hashable value, like the other fields
+        object.__setattr__(self, "ideal_gas", part)
 
     def __repr__(self):
         return (
@@ -154,7 +183,7 @@ def _library_table() -> dict[str, dict]:
 
 
 def library_table_from_coolprop() -> dict:
-    """Every fluid's constants, aliases and CAS number as CoolProp reports them now.
+    """Every fluid's constants, aliases, CAS number and ideal-gas part as CoolProp reports them now.
 
     Run ``python -m thermo_roots.fluids`` to rewrite :data:`LIBRARY_TABLE` after a CoolProp
     upgrade.
@@ -171,8 +200,40 @@ def library_table_from_coolprop() -> dict:
             "T_triple": float(state.Ttriple()),
             "CAS": CP.get_fluid_param_string(name, "CAS"),
             "aliases": [a for a in CP.get_fluid_param_string(name, "aliases").split(",") if a],
+            "ideal_gas": _ideal_gas_from_coolprop(name, state).to_table(),
         }
     return {"source": f"CoolProp {CoolProp.__version__}", "fluids": dict(sorted(fluids.items()))}
+
+
+def _ideal_gas_from_coolprop(name: str, state) -> IdealGasPart:
+    """The ideal-gas terms of the fluid's reference equation (EOS[0] of its CoolProp file).
+
+    The terms are converted as published. Then a1 + a2 tau is adjusted so that alpha0 and
+    d alpha0/d tau equal CoolProp's at tau = delta = 1: this moves only the reference state
+    (no cp0 changes). It is nil to rounding except where CoolProp fitted the file's
+    reference-state offset to its own integration constants of the Aly-Lee terms (n-heptane
+    and D6 in CoolProp 8.0.0, both referred to the normal boiling point); a shift anywhere
+    else means a term was converted wrongly and stops the regeneration.
+    """
+    import CoolProp
+    import CoolProp.CoolProp as CP
+    from .ideal_gas import part_from_coolprop
+
+    document = json.loads(CP.get_fluid_param_string(name, "JSON"))
+    document = document[0] if isinstance(document, list) else document
+    eos = document["EOS"][0]
+    T_r, rho_r = float(state.T_reducing()), float(state.rhomolar_reducing())
+    part = part_from_coolprop(eos, float(state.gas_constant()), T_r, rho_r, source=f"CoolProp {name}")
+    state.update(CoolProp.DmolarT_INPUTS, rho_r, T_r)
+    mine = part.alpha0(1.0, 1.0)
+    shift_tau = float(state.dalpha0_dTau()) - mine.alpha_tau
+    shift = float(state.alpha0()) - mine.alpha - shift_tau
+    has_aly_lee = any(t["type"] == "IdealGasHelmholtzCP0AlyLee" for t in eos["alpha0"])
+    if not has_aly_lee and max(abs(shift), abs(shift_tau)) > 1e-9 * (1.0 + abs(float(state.alpha0()))):
+        raise InputError(f"{name}: the converted ideal-gas terms differ from CoolProp's by {shift:+.3g} "
+                         f"{shift_tau:+.3g} tau; check thermo_roots.ideal_gas.part_from_coolprop.")
+    a1, a2 = part.lead
+    return dataclasses.replace(part, lead=(a1 + shift, a2 + shift_tau)) if has_aly_lee else part
 
 
 @functools.lru_cache(maxsize=1)
@@ -249,8 +310,11 @@ def as_fluid(fluid, who: str) -> Fluid:
 
 def _fluid_from_library(library_name: str) -> Fluid:
     entry = _library_table()[library_name]
+    ideal = entry.get("ideal_gas")
     return Fluid(name=display_name(library_name), Tc=entry["Tc"], Pc=entry["Pc"], omega=entry["omega"],
-                 molar_mass=entry["molar_mass"], library_name=library_name, T_triple=entry.get("T_triple"))
+                 molar_mass=entry["molar_mass"], library_name=library_name, T_triple=entry.get("T_triple"),
+                 ideal_gas=None if ideal is None else IdealGasPart.from_table(
+                     ideal, source=f"{library_name}: reference equation in CoolProp's fluid library"))
 
 
 if __name__ == "__main__":
