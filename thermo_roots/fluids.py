@@ -210,10 +210,11 @@ def _ideal_gas_from_coolprop(name: str, state) -> IdealGasPart:
 
     The terms are converted as published. Then a1 + a2 tau is adjusted so that alpha0 and
     d alpha0/d tau equal CoolProp's at tau = delta = 1: this moves only the reference state
-    (no cp0 changes). It is nil to rounding except where CoolProp fitted the file's
-    reference-state offset to its own integration constants of the Aly-Lee terms (n-heptane
-    and D6 in CoolProp 8.0.0, both referred to the normal boiling point); a shift anywhere
-    else means a term was converted wrongly and stops the regeneration.
+    (cp0 is untouched). It is nil to rounding except for the fluids with Aly-Lee terms
+    (n-heptane and D6 in CoolProp 8.0.0), where CoolProp's alpha0 differs from the integral
+    from T0 by a constant plus a term in tau (cause not traced; CoolProp's h and s are 0 at
+    their normal boiling point, as their files say); a shift for any other fluid means a
+    term was converted wrongly and stops the regeneration.
     """
     import CoolProp
     import CoolProp.CoolProp as CP
