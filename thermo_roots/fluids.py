@@ -19,7 +19,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .errors import InputError, UnknownFluidError, WrongTypeError
-from .ideal_gas import IdealGasPart, part_from_cp0
+from .ideal_gas import CP0_SOURCE, IdealGasPart, part_from_cp0
 
 
 @dataclass(frozen=True)
@@ -98,7 +98,8 @@ class Fluid:
                                  f"{self.ideal_gas!r}; for a heat capacity give cp0= instead.")
         if self.cp0 is None:
             return
-        if self.ideal_gas is not None:
+        # a part made from cp0 before (dataclasses.replace passes both) is made again from cp0
+        if self.ideal_gas is not None and not self.ideal_gas.source.startswith(CP0_SOURCE):
             raise InputError(f"{who}: give cp0= or ideal_gas=, not both (cp0 = {self.cp0!r} would build a second "
                              "ideal-gas part).")
         part = part_from_cp0(self.cp0, self.Tc, self.Pc, who)

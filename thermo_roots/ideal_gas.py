@@ -51,6 +51,9 @@ R_CODATA = 8.31446261815324
 T_REF = 298.15
 P_REF = 101325.0
 
+#: How the ``source`` of a part made by :func:`part_from_cp0` begins.
+CP0_SOURCE = "user cp0 = "
+
 _LN2 = math.log(2.0)
 
 
@@ -404,7 +407,7 @@ def part_from_cp0(cp0, Tc: float, Pc: float, who: str = "Fluid") -> IdealGasPart
     delta_ref = P_REF / (R * T_REF * rho_r)
     lead = (math.log(Tc / T_REF) - 1.0 - math.log(delta_ref), 0.0)
     return IdealGasPart(R=R, T_r=Tc, rho_r=rho_r, lead=lead, log_tau=-1.0, cp0_power=terms,
-                        source="user cp0 = " + " + ".join(f"{c:.6g} T^{k}" for k, c in enumerate(coefficients)))
+                        source=CP0_SOURCE + " + ".join(f"{c:.6g} T^{k}" for k, c in enumerate(coefficients)))
 
 
 def _cp0_coefficients(cp0, who) -> tuple[float, ...]:
