@@ -1,5 +1,6 @@
 """The ideal-gas part of every fluid against CoolProp's reference equations, scipy and handbook values."""
 
+import dataclasses
 import json
 import math
 import subprocess
@@ -220,6 +221,10 @@ def test_user_fluids_stay_hashable_values():
     assert tr.Fluid("gas", cp0=np.float32(30.0), **_USER).cp0 == 30.0
     assert tr.Fluid("gas", **_USER).ideal_gas is None
     assert hash(tr.get_fluid("water")) == hash(tr.get_fluid("water"))
+    # dataclasses.replace passes cp0 and the part made from it: the part is made again
+    moved = dataclasses.replace(one, Tc=360.0)
+    assert moved.ideal_gas.T_r == 360.0 and moved.cp0 == one.cp0
+    assert moved.ideal_gas.cp0(400.0) == pytest.approx(one.ideal_gas.cp0(400.0), rel=1e-13)
 
 
 @pytest.mark.parametrize("cp0, error, words", [

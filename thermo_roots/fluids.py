@@ -19,7 +19,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .errors import InputError, UnknownFluidError, WrongTypeError
-from .ideal_gas import IdealGasPart, part_from_cp0
+from .ideal_gas import CP0_SOURCE, IdealGasPart, part_from_cp0
 
 
 @dataclass(frozen=True)
@@ -98,7 +98,8 @@ class Fluid:
                                  f"{self.ideal_gas!r}; for a heat capacity give cp0= instead.")
         if self.cp0 is None:
             return
-        if self.ideal_gas is not None:
+        # a part made from cp0 before (dataclasses.replace passes both) is made again from cp0
+        if self.ideal_gas is not None and not self.ideal_gas.source.startswith(CP0_SOURCE):
             raise InputError(f"{who}: give cp0= or ideal_gas=, not both (cp0 = {self.cp0!r} would build a second "
                              "ideal-gas part).")
         part = part_from_cp0(self.cp0, self.Tc, self.Pc, who)
@@ -210,10 +211,11 @@ def _ideal_gas_from_coolprop(name: str, state) -> IdealGasPart:
 
     The terms are converted as published. Then a1 + a2 tau is adjusted so that alpha0 and
     d alpha0/d tau equal CoolProp's at tau = delta = 1: this moves only the reference state
-    (no cp0 changes). It is nil to rounding except where CoolProp fitted the file's
-    reference-state offset to its own integration constants of the Aly-Lee terms (n-heptane
-    and D6 in CoolProp 8.0.0, both referred to the normal boiling point); a shift anywhere
-    else means a term was converted wrongly and stops the regeneration.
+    (cp0 is untouched). It is nil to rounding except for the fluids with Aly-Lee terms
+    (n-heptane and D6 in CoolProp 8.0.0), where CoolProp's alpha0 differs from the integral
+    from T0 by a constant plus a term in tau (cause not traced; CoolProp's h and s are 0 at
+    their normal boiling point, as their files say); a shift for any other fluid means a
+    term was converted wrongly and stops the regeneration.
     """
     import CoolProp
     import CoolProp.CoolProp as CP

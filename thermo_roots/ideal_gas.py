@@ -51,6 +51,9 @@ R_CODATA = 8.31446261815324
 T_REF = 298.15
 P_REF = 101325.0
 
+#: How the ``source`` of a part made by :func:`part_from_cp0` begins.
+CP0_SOURCE = "user cp0 = "
+
 _LN2 = math.log(2.0)
 
 
@@ -151,39 +154,54 @@ class IdealGasPart:
         return ReducedIdealHelmholtz(_out(alpha), _out(A_t + 0.0 * delta), _out(A_tt + 0.0 * delta))
 
     def _tau_part(self, tau):
-        """alpha0 - ln delta and its tau-derivatives, for tau > 0 (NaN elsewhere)."""
-        tau = np.where(tau > 0, tau, np.nan)
+        """alpha0 - ln delta and its tau-derivatives, for tau > 0 (NaN elsewhere).
+
+        Written with in-place operations: for 10⁶ states the temporaries, not the
+        arithmetic, would otherwise take most of the time.
+        """
+        tau = np.asarray(tau, dtype=float)
+        if not (tau > 0).all():
+            tau = np.where(tau > 0, tau, np.nan)
         a1, a2 = self.lead
         inv = 1.0 / tau
-        A = a1 + a2 * tau + self.log_tau * np.log(tau)
-        A_t = a2 + self.log_tau * inv
-        A_tt = -self.log_tau * inv * inv
+        inv2 = inv * inv
+        A = np.log(tau)
+        A *= self.log_tau
+        A += a1
+        A += a2 * tau
+        A_t = self.log_tau * inv
+        A_t += a2
+        A_tt = (-self.log_tau) * inv2
         for n, t in self.power:
-            p = n * tau**t
-            A = A + p
-            A_t = A_t + t * p * inv
-            A_tt = A_tt + t * (t - 1.0) * p * inv * inv
+            p = tau**t
+            p *= n
+            A += p
+            p *= inv
+            A_t += t * p
+            p *= inv
+            A_tt += t * (t - 1.0) * p
         for n, theta, c, d in self.planck_einstein:
-            x = theta * tau
-            if theta > 0:                       # exp(x) grows: write c + d e^x = e^x (d + c e^-x)
-                y = np.exp(-x)
-                g = d + c * y
-                A = A + n * (x + np.log(g))
-                A_t = A_t + n * theta * d / g
-                A_tt = A_tt + n * theta * theta * c * d * y / (g * g)
-            else:
-                y = np.exp(x)
-                g = c + d * y
-                A = A + n * (np.log1p(d * y) if c == 1.0 else np.log(g))
-                A_t = A_t + n * theta * d * y / g
-                A_tt = A_tt + n * theta * theta * c * d * y / (g * g)
+            # n ln(c + d e^x), x = theta tau; for theta > 0 written as n (x + ln(d + c e^-x))
+            grows = theta > 0
+            y = np.exp((-theta if grows else theta) * tau)
+            g = c * y if grows else d * y
+            g += d if grows else c
+            r = d / g if grows else d * y / g       # d e^x / (c + d e^x)
+            log_g = np.log(g)
+            if grows:
+                log_g += theta * tau
+            A += n * log_g
+            A_t += (n * theta) * r
+            # d2: n theta² c d e^x / (c + d e^x)² = n theta² r c / (c + d e^x)
+            r *= (c * y if grows else c) / g
+            A_tt += (n * theta * theta) * r
         for kind, rows in ((_cp0_power, self.cp0_power), (_cp0_sinh, self.cp0_sinh), (_cp0_cosh, self.cp0_cosh)):
             for c, p, T_c, T_0 in rows:
                 T = T_c * inv
                 f, dH, dS = kind(c, p, T, T_0)
-                A = A + dH / T - dS
-                A_t = A_t + dH / T_c
-                A_tt = A_tt - f * inv * inv
+                A += dH / T - dS
+                A_t += dH / T_c
+                A_tt -= f * inv2
         return A, A_t, A_tt
 
     # ------------------------------------------------------------------ molar form
@@ -210,8 +228,10 @@ class IdealGasPart:
         T, v = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(v, dtype=float))
         R = self.R
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            T = np.where(T > 0, T, np.nan)
-            v = np.where(v > 0, v, np.nan)
+            if not (T > 0).all():
+                T = np.where(T > 0, T, np.nan)
+            if not (v > 0).all():
+                v = np.where(v > 0, v, np.nan)
             tau = self.T_r / T
             A, A_t, A_tt = self._tau_part(tau)
             ln_delta = -np.log(v * self.rho_r)
@@ -335,10 +355,12 @@ def part_from_coolprop(eos: dict, R: float, T_r: float, rho_r: float, source: st
             c = term["c"]
             if len(c) != 5:
                 raise InputError(f"{source}: an Aly-Lee cp0 term has 5 coefficients, this one {len(c)}: {c!r}.")
-            if c[0]:
+            if c[0]:                                # terms with a nil coefficient are left out
                 cp0_power.append((c[0], 0.0, term["Tc"], term["T0"]))
-            cp0_sinh.append((c[1], c[2], term["Tc"], term["T0"]))
-            cp0_cosh.append((c[3], c[4], term["Tc"], term["T0"]))
+            if c[1]:
+                cp0_sinh.append((c[1], c[2], term["Tc"], term["T0"]))
+            if c[3]:
+                cp0_cosh.append((c[3], c[4], term["Tc"], term["T0"]))
         else:
             raise InputError(f"{source}: ideal-gas term type {kind!r} is not known to thermo_roots.ideal_gas; "
                              "add its formula to part_from_coolprop before regenerating the table.")
@@ -385,7 +407,7 @@ def part_from_cp0(cp0, Tc: float, Pc: float, who: str = "Fluid") -> IdealGasPart
     delta_ref = P_REF / (R * T_REF * rho_r)
     lead = (math.log(Tc / T_REF) - 1.0 - math.log(delta_ref), 0.0)
     return IdealGasPart(R=R, T_r=Tc, rho_r=rho_r, lead=lead, log_tau=-1.0, cp0_power=terms,
-                        source="user cp0 = " + " + ".join(f"{c:.6g} T^{k}" for k, c in enumerate(coefficients)))
+                        source=CP0_SOURCE + " + ".join(f"{c:.6g} T^{k}" for k, c in enumerate(coefficients)))
 
 
 def _cp0_coefficients(cp0, who) -> tuple[float, ...]:
