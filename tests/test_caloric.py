@@ -95,7 +95,7 @@ def test_thermodynamic_identities_hold_by_finite_differences(cls, propane):
         assert st.cp == pytest.approx(dh_dT, rel=1e-6)                      # cp = (dh/dT)_P
         assert st.cp / T == pytest.approx(ds_dT, rel=1e-6)                  # cp/T = (ds/dT)_P
         assert dh_dP == pytest.approx(st.v - T * dv_dT, rel=1e-5, abs=1e-12)   # (dh/dP)_T = v - T (dv/dT)_P
-        assert st.mu_jt == pytest.approx(-dh_dP / dh_dT, rel=1e-5, abs=1e-12)  # mu_JT = (dT/dP)_h
+        assert st.mu_jt == pytest.approx(-dh_dP / dh_dT, rel=1e-5, abs=1e-11)  # mu_JT = (dT/dP)_h
         assert st.u == pytest.approx(st.h - st.P * st.v, rel=1e-12)
         assert st.g == pytest.approx(st.h - T * st.s, rel=1e-9, abs=1e-6)
         assert st.kappa_T == pytest.approx(-(up_P.v - down_P.v) / (2 * dP) / st.v, rel=1e-5)
@@ -127,12 +127,15 @@ def test_the_zero_density_limit_is_the_reference_equations(propane):
 
     ref = CoolProp.AbstractState("HEOS", propane.library_name)
     for T in (200.0, 300.0, 500.0):
-        rho = 1e-6   # mol/m^3
+        rho = 1e-9   # mol/m^3: the residual enthalpy here is about 1e-8 J/mol
         ref.update(CoolProp.DmolarT_INPUTS, rho, T)
         for cls in CUBICS + [tr.IdealGas]:
             st = tr.solve(cls(propane), T=T, v=1.0 / rho)
-            assert st.h == pytest.approx(ref.hmolar(), rel=1e-9, abs=1e-6), cls
-            assert st.s == pytest.approx(ref.smolar(), rel=1e-9, abs=1e-9), cls
+            assert st.h == pytest.approx(ref.hmolar(), rel=1e-9, abs=1e-7), cls
+            # the reference equation's ideal gas has its own R (8.314472 for propane) where the
+            # models have CODATA 2018's: the entropies of the two ideal gases at one (T, rho)
+            # differ by dR ln(T rho / rho_r), about 1e-6 relative (see properties._gas_constant_shift)
+            assert st.s == pytest.approx(ref.smolar(), rel=2e-6), cls
             assert st.cp == pytest.approx(ref.cpmolar(), rel=1e-9), cls
 
 

@@ -37,8 +37,6 @@ class Helmholtz(NamedTuple):
     a_vv: object   #: d2a/dv2 [Pa mol/m^3]
     a_Tv: object   #: d2a/dT dv [Pa/K]
 
-    def __add__(self, other):   # ideal part + residual part, term by term
-        return Helmholtz(*(x + y for x, y in zip(self, other)))
 
 
 class Caloric(NamedTuple):
@@ -71,7 +69,27 @@ def helmholtz(model, T, v) -> Helmholtz:
         raise DomainError(f"{model.fluid.name} has no ideal-gas heat capacity, so enthalpy, entropy and heat "
                           "capacities are unknown; give Fluid(..., cp0=...) (a constant or polynomial in "
                           "J/(mol K)), or use a library fluid.")
-    return ideal.helmholtz(T, v) + model.residual_bundle(T, v)
+    parts = (ideal.helmholtz(T, v), _gas_constant_shift(ideal, T, v), model.residual_bundle(T, v))
+    return Helmholtz(*(x + y + z for x, y, z in zip(*parts)))
+
+
+def _gas_constant_shift(ideal, T, v) -> Helmholtz:
+    """What moves an ideal part written with its own gas constant onto the project's R.
+
+    A reference equation may use an older R (propane's: 8.314472 J/(mol K)) while every
+    model here uses CODATA 2018's. Adding dR T (ln(delta T) - 1), dR = R - R_ideal, makes
+    the ideal gas's pressure R T / v, so that a(T, v) stays one consistent function, and
+    leaves cp0 and h0 exactly the reference equation's (its ln T part cancels dR in cv0).
+    The ideal-gas entropy at a given (T, v) then differs from the reference equation's by
+    dR ln(T/(v rho_r)) (about 1e-6 relative): the two ideal gases are not quite the same gas.
+    """
+    dR = R - ideal.R
+    T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+    if dR == 0.0:
+        zero = np.zeros(np.broadcast(T, v).shape)
+        return Helmholtz(zero, zero, zero, zero, zero, zero)
+    L = np.log(T / (v * ideal.rho_r)) - 1.0   # ln(delta T) - 1, delta = 1/(v rho_r)
+    return Helmholtz(dR * T * L, dR * (L + 1.0), dR / T, -dR * T / v, dR * T / (v * v), -dR / v)
 
 
 def caloric(model, T, v, P=None) -> Caloric:

@@ -757,14 +757,15 @@ def _from_P_energy(model, flat, problems, branch, name):
         T_sat, vl, vv, _ = saturation_temperature(model, P[i], strict=False)
         e_l = getattr(caloric(model, T_sat, vl, P[i]), name)
         e_v = getattr(caloric(model, T_sat, vv, P[i]), name)
-        two = (target[i] >= e_l) & (target[i] <= e_v)
+        edge = 1e-10 * np.abs(e_v - e_l)   # on the saturated ends within rounding: quality 0 or 1
+        two = (target[i] >= e_l - edge) & (target[i] <= e_v + edge)
         k = i[two]
-        quality[k] = (target[k] - e_l[two]) / (e_v[two] - e_l[two])
+        quality[k] = np.clip((target[k] - e_l[two]) / (e_v[two] - e_l[two]), 0.0, 1.0)
         T[k], v_l[k], v_v[k] = T_sat[two], vl[two], vv[two]
         v[k] = vl[two] + quality[k] * (vv[two] - vl[two])
-        liquid, vapor = i[target[i] < e_l], i[target[i] > e_v]
-        segment[liquid], hi[liquid] = "liquid", T_sat[target[i] < e_l]
-        segment[vapor], lo[vapor] = "vapor", T_sat[target[i] > e_v]
+        below, above = target[i] < e_l - edge, target[i] > e_v + edge
+        segment[i[below]], hi[i[below]] = "liquid", T_sat[below]
+        segment[i[above]], lo[i[above]] = "vapor", T_sat[above]
         no_sat = i[~np.isfinite(T_sat)]
         problems.flag_at(no_sat, [f"no saturation temperature from {model.name} at P = {P[k]:.6g} Pa, so the "
                                   f"phase at this {name} cannot be placed." for k in no_sat])
