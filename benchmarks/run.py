@@ -20,6 +20,9 @@ Checks (targets in brackets):
   4. Scaling of the (T, P) solve from 1e3 to 1e7 states: time per state flat (largest
      size within 1.5x of the best) and peak memory <= 300 bytes per state (tracemalloc).
   5. A fresh process: import plus one scalar state, whole-process time (< 2 s).
+  6. (P, h) -> T at 1e5 states against CoolProp's own (P, h) solve of its reference equation
+     per state (>= 10x, goal 30x, every state round-tripping to 1e-9).
+  7. h, s, cp and w of 1e5 (T, P) states: at most 2x the (T, P) solve alone.
 """
 
 from __future__ import annotations
@@ -295,6 +298,46 @@ def check_first_call(table, repeat):
               "< 2 s", own < 2.0, "constants given, no library lookup")
 
 
+def check_energy(table, model, n, n_ref, repeat):
+    """6. (P, h) -> T against the reference equation's own (P, h) solve per state, and
+    7. the caloric properties of a (T, P) solve against the solve alone."""
+    import CoolProp
+
+    T, P = random_states(n, seed=11)
+    state = tr.solve(model, T=T, P=P)
+    h = state.h
+    t_ours, = best_times([lambda: tr.solve(model, P=P, h=h)], max(1, repeat // 2))
+    back = tr.solve(model, P=P, h=h)
+    ref = CoolProp.AbstractState("HEOS", model.fluid.library_name)
+    h_ref = []
+    for Ti, Pi in zip(T[:n_ref], P[:n_ref]):
+        ref.update(CoolProp.PT_INPUTS, Pi, Ti)
+        h_ref.append(ref.hmolar())
+
+    def theirs():
+        for hi, Pi in zip(h_ref, P[:n_ref]):
+            ref.update(CoolProp.HmolarP_INPUTS, hi, Pi)
+
+    t_ref, = best_times([theirs], max(1, repeat // 2))
+    ratio = (t_ref / n_ref) / (t_ours / n)
+    trips = int(np.count_nonzero(np.isclose(back.T, T, rtol=1e-9)))
+    table.add(f"6  (P,h)->T, {n:.0e} states", us(t_ours / n), f"CoolProp HEOS (P,h) {us(t_ref / n_ref)}",
+              speed(ratio), ">= 10x (goal 30x), all round trips", ratio >= 10.0 and trips == n,
+              f"round trips to 1e-9: {trips}/{n}; CoolProp timed on {n_ref} states")
+
+    def solve_only():
+        return tr.solve(model, T=T, P=P)
+
+    def with_caloric():
+        st = tr.solve(model, T=T, P=P)
+        return st.h, st.s, st.cp, st.w
+
+    t_solve, t_both = best_times([solve_only, with_caloric], repeat)
+    factor = t_both / t_solve
+    table.add(f"7  caloric, {n:.0e} states", us(t_both / n), f"(T,P) solve alone {us(t_solve / n)}",
+              f"{factor:.2f}x the solve", "<= 2x", factor <= 2.0, "h, s, cp, w of every state (numpy path)")
+
+
 # --------------------------------------------------------------------------- main
 
 def header():
@@ -337,6 +380,7 @@ def main(argv=None):
     check_pv(table, model, n=2000 if quick else 10**5, repeat=repeat)
     check_scaling(table, model, [10**3, 10**4] if quick else [10**3, 10**4, 10**5, 10**6, 10**7], repeat)
     check_first_call(table, repeat=1 if quick else 3)
+    check_energy(table, tr.PengRobinson(tr.get_fluid(FLUID)), n=2000 if quick else 10**5, n_ref=200 if quick else 2000, repeat=repeat)
     table.print()
     print()
     print("Ratios from one run on a shared machine; repeat runs move them by 10-20 %.")

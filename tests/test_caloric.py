@@ -226,3 +226,11 @@ def test_an_energy_no_temperature_reaches_is_explained(propane):
         tr.solve(model, P=1e5, h=-1e7)
     with pytest.raises(tr.InputError, match="goes with P"):
         tr.solve(model, T=300.0, h=1e4)
+
+
+def test_a_custom_alpha_without_its_second_derivative_is_refused():
+    def two_parts(T, Tc, omega):
+        return np.ones_like(T), np.zeros_like(T)
+
+    with pytest.raises(tr.InputError, match="d2 alpha/dT2"):
+        tr.CubicFamily("two-part alpha", 1.0, 0.0, two_parts, "test only")

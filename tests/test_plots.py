@@ -211,7 +211,7 @@ def _steep_pr(fluid):
         kappa = 1.3 * (0.37464 + 1.54226 * omega - 0.26992 * omega ** 2)
         root = np.sqrt(np.asarray(T, dtype=float) / Tc)
         a = 1.0 + kappa * (1.0 - root)
-        return a * a, -kappa * a / (root * Tc)
+        return a * a, -kappa * a / (root * Tc), 0.5 * kappa * (1.0 + kappa) / (np.asarray(T) * root * Tc)
 
     pr = tr.PengRobinson(fluid)
     family = tr.CubicFamily("PR with a steeper alpha", pr.delta1, pr.delta2, alpha, "test only")

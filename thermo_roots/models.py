@@ -19,7 +19,7 @@ from __future__ import annotations
 import math
 import numbers
 from dataclasses import dataclass, field
-from typing import Callable
+from typing import Callable, NamedTuple
 
 import numpy as np
 
@@ -27,6 +27,24 @@ from .fluids import Fluid, as_fluid
 
 #: Molar gas constant [J/(mol K)], exact since the 2019 SI redefinition (CODATA 2018).
 R = 8.31446261815324
+
+
+# --------------------------------------------------------------------------- the model protocol
+
+class Helmholtz(NamedTuple):
+    """A molar Helmholtz energy [J/mol] and its derivatives at (T [K], v [m^3/mol]).
+
+    What every model gives for its residual part (``residual_bundle``) and every fluid for
+    its ideal-gas part; thermo_roots.properties derives all caloric properties from it.
+    """
+
+    a: object      #: [J/mol]
+    a_T: object    #: da/dT [J/(mol K)]
+    a_TT: object   #: d2a/dT2 [J/(mol K^2)]
+    a_v: object    #: da/dv [Pa] (= -P for the whole energy)
+    a_vv: object   #: d2a/dv2 [Pa mol/m^3]
+    a_Tv: object   #: d2a/dT dv [Pa/K]
+
 
 
 # --------------------------------------------------------------------------- alpha functions
@@ -124,6 +142,18 @@ class CubicFamily:
     Zc: float = field(init=False)
 
     def __post_init__(self):
+        try:   # the alpha function must give its value and two derivatives (see the protocol)
+            parts = self.alpha(np.array([300.0]), 400.0, 0.2)
+        except Exception as error:
+            from .errors import InputError
+
+            raise InputError(f"CubicFamily {self.name!r}: alpha(T, Tc, omega) failed on T = [300.0], Tc = 400.0, "
+                             f"omega = 0.2 ({error}).") from error
+        if not (isinstance(parts, tuple) and len(parts) == 3):
+            from .errors import InputError
+
+            raise InputError(f"CubicFamily {self.name!r}: alpha(T, Tc, omega) must return (alpha, d alpha/dT, "
+                             "d2 alpha/dT2); the second derivative gives the heat capacities.")
         omega_a, omega_b, Zc = critical_constants(self.delta1, self.delta2)
         object.__setattr__(self, "omega_a", omega_a)
         object.__setattr__(self, "omega_b", omega_b)
@@ -199,8 +229,6 @@ class IdealGas(_Model):
 
     def residual_bundle(self, T, v):
         """The residual Helmholtz energy and its derivatives: all zero for the ideal gas."""
-        from .properties import Helmholtz
-
         zero = np.zeros(np.broadcast(np.asarray(T, dtype=float), np.asarray(v, dtype=float)).shape)
         return Helmholtz(zero, zero, zero, zero, zero, zero)
 
@@ -328,10 +356,8 @@ class CubicModel(_Model):
         derivative -s_res (residual_entropy), the v derivatives from the pressure and its
         slopes (a_v = R T/v - P, a_vv = -dP/dv - R T/v^2, a_Tv = R/v - dP/dT), and
         a_TT = -a''(T) I(v), the only term no other property needs (Michelsen & Mollerup
-        2007, ch. 3). Returns a :class:`thermo_roots.properties.Helmholtz`.
+        2007, ch. 3). Returns a :class:`Helmholtz`.
         """
-        from .properties import Helmholtz
-
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         return Helmholtz(
             a=self.residual_helmholtz(T, v),

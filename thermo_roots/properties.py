@@ -24,19 +24,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from .models import R
-
-
-class Helmholtz(NamedTuple):
-    """A molar Helmholtz energy [J/mol] and its derivatives at (T [K], v [m^3/mol])."""
-
-    a: object      #: [J/mol]
-    a_T: object    #: da/dT [J/(mol K)]
-    a_TT: object   #: d2a/dT2 [J/(mol K^2)]
-    a_v: object    #: da/dv [Pa] (= -P for the whole energy)
-    a_vv: object   #: d2a/dv2 [Pa mol/m^3]
-    a_Tv: object   #: d2a/dT dv [Pa/K]
-
+from .models import Helmholtz, R
 
 
 class Caloric(NamedTuple):
