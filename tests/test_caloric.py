@@ -234,3 +234,52 @@ def test_a_custom_alpha_without_its_second_derivative_is_refused():
 
     with pytest.raises(tr.InputError, match="d2 alpha/dT2"):
         tr.CubicFamily("two-part alpha", 1.0, 0.0, two_parts, "test only")
+
+
+# --------------------------------------------------------------------------- reference states
+
+@pytest.mark.parametrize("convention, T0, h0, s0", [("IIR", 273.15, 200e3, 1e3), ("ASHRAE", 233.15, 0.0, 0.0)])
+def test_the_trades_reference_states_sit_on_the_models_saturated_liquid(convention, T0, h0, s0, propane):
+    # IIR: h = 200 kJ/kg, s = 1 kJ/(kg K) for saturated liquid at 0 degC; ASHRAE: h = s = 0 at
+    # -40 degC (ASHRAE Handbook - Fundamentals, ch. 30, common practice)
+    model = tr.PengRobinson(propane, reference_state=convention)
+    liquid = tr.solve(model, T=T0, quality=0.0)
+    assert liquid.h_mass == pytest.approx(h0, abs=1e-6) and liquid.s_mass == pytest.approx(s0, abs=1e-9)
+
+
+def test_normal_boiling_point_reference_state(propane):
+    model = tr.SoaveRedlichKwong(propane, reference_state="nbp")
+    liquid = tr.solve(model, P=101325.0, quality=0.0)
+    assert abs(liquid.h) < 1e-6 and abs(liquid.s) < 1e-9
+
+
+def test_differences_never_depend_on_the_reference_state(propane):
+    T = np.array([230.0, 300.0, 450.0])
+    P = np.array([5e5, 2e5, 6e6])
+    results = {}
+    for convention in ("reference", "IIR", "ASHRAE", "NBP"):
+        model = tr.PengRobinson(propane, reference_state=convention)
+        st = tr.solve(model, T=T, P=P)
+        results[convention] = (np.diff(st.h), np.diff(st.s), st.cp)
+        back = tr.solve(model, P=P, h=st.h)   # the inversions read h on the same convention
+        np.testing.assert_allclose(back.T, T, rtol=1e-9)
+    for convention, (dh, ds, cp) in results.items():
+        np.testing.assert_allclose(dh, results["reference"][0], rtol=1e-9)
+        np.testing.assert_allclose(ds, results["reference"][1], rtol=1e-9)
+        np.testing.assert_allclose(cp, results["reference"][2], rtol=1e-12)
+
+
+def test_an_unknown_reference_state_is_refused(propane):
+    with pytest.raises(tr.InputError, match="reference_state"):
+        tr.PengRobinson(propane, reference_state="ISO")
+    with pytest.raises(tr.DomainError, match="above Tc"):
+        tr.solve(tr.PengRobinson("helium", reference_state="IIR"), T=10.0, P=1e5).h
+
+
+def test_a_carbon_dioxide_vent_below_the_triple_point_warns_of_dry_ice():
+    # CO2's triple point: 216.59 K, 5.18 bar (CoolProp's reference equation, Span & Wagner 1996)
+    model = tr.PengRobinson("CO2")
+    inlet = tr.solve(model, P="20 bar", quality=0.0)
+    outlet = tr.solve(model, P="1 bar", h=inlet.h)
+    assert outlet.T < 216.59
+    assert any("dry ice" in w for w in outlet.warnings)

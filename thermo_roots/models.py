@@ -180,6 +180,7 @@ class _Model:
     """Behaviour shared by every model: Z and the fluid it belongs to."""
 
     short_name = ""
+    reference_state = "reference"   # the ideal gas has no saturation to fix another zero on
     fluid: Fluid
 
     def compressibility(self, T, v):
@@ -247,6 +248,13 @@ class CubicModel(_Model):
         liquid densities and leaves saturation pressures unchanged. "peneloux" takes the
         Peneloux-Rauzy-Freze (1982) correlation for SRK (and its usual PR analogue).
         Default 0 (no translation).
+    reference_state : {"reference", "IIR", "ASHRAE", "NBP"}
+        Where h and s are zero. "reference" (default): the reference equation's own, so
+        values line up with CoolProp's. The trade's conventions, each fixed with this
+        model's own saturation: "IIR" h = 200 kJ/kg, s = 1 kJ/(kg K) for saturated liquid
+        at 0 °C; "ASHRAE" h = s = 0 for saturated liquid at -40 °C; "NBP" h = s = 0 for
+        saturated liquid at the normal boiling point (101.325 kPa). Differences of h and s
+        never depend on the choice.
 
     Attributes
     ----------
@@ -271,8 +279,10 @@ class CubicModel(_Model):
 
     family: CubicFamily
 
-    def __init__(self, fluid: Fluid, family: CubicFamily | None = None, volume_shift=0.0):
+    def __init__(self, fluid: Fluid, family: CubicFamily | None = None, volume_shift=0.0,
+                 reference_state: str = "reference"):
         fluid = self.fluid = as_fluid(fluid, f"{type(self).__name__}(fluid)")
+        self.reference_state = _reference_state(reference_state)
         if family is not None:
             self.family = family
         f = self.family
@@ -437,6 +447,22 @@ class PengRobinson78(CubicModel):
 
     family = PR78
     short_name = "PR78"
+
+
+#: The zero points of h and s a model can take (see CubicModel).
+REFERENCE_STATES = ("reference", "IIR", "ASHRAE", "NBP")
+
+
+def _reference_state(option) -> str:
+    """The canonical name of a reference-state option, checked."""
+    names = {name.lower(): name for name in REFERENCE_STATES}
+    if isinstance(option, str) and option.strip().lower() in names:
+        return names[option.strip().lower()]
+    from .errors import InputError
+
+    raise InputError(f"reference_state={option!r} is not one of {', '.join(REFERENCE_STATES)}: 'reference' is the "
+                     "reference equation's own zero, IIR puts h = 200 kJ/kg and s = 1 kJ/(kg K) on saturated "
+                     "liquid at 0 °C, ASHRAE h = s = 0 at -40 °C, NBP h = s = 0 at the normal boiling point.")
 
 
 def _volume_shift(option, family: CubicFamily, fluid: Fluid, b: float) -> float:

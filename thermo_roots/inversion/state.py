@@ -735,8 +735,7 @@ def _from_P_energy(model, flat, problems, branch, name):
     to T_sat(P), the two-phase segment in closed form (quality by the lever rule on h or s),
     vapor from T_sat up; at or above P_c one segment on the stable root.
     """
-    from ..properties import caloric
-
+    caloric = _caloric_on_reference   # h and s as the user reads them: on the model's reference state
     P, target = flat["P"], flat[name]
     n = P.size
     T, quality = np.full(n, np.nan), np.full(n, np.nan)
@@ -917,11 +916,11 @@ def _state_caloric(state):
     mislead: cp and kappa_T are infinite across the dome, w and mu_jt have no single value).
     Elements not solved are NaN throughout.
     """
-    from ..properties import Caloric, caloric
+    from ..properties import Caloric
 
     T, P, v = (np.asarray(x, dtype=float) for x in (state.T, state.P, state.v))
     ok = np.isfinite(v)
-    single = caloric(state.model, T, np.where(ok, v, 1.0), np.where(ok, P, 1.0))
+    single = _caloric_on_reference(state.model, T, np.where(ok, v, 1.0), np.where(ok, P, 1.0))
     two = np.asarray(state.phase == "two-phase")
     values = {}
     for name in Caloric._fields:
@@ -931,8 +930,8 @@ def _state_caloric(state):
         values[name] = x
     if two.any():
         q, vl, vv = (np.asarray(x, dtype=float) for x in (state.quality, state.v_liquid, state.v_vapor))
-        liquid = caloric(state.model, T, np.where(two, vl, 1.0), P)
-        vapor = caloric(state.model, T, np.where(two, vv, 1.0), P)
+        liquid = _caloric_on_reference(state.model, T, np.where(two, vl, 1.0), P)
+        vapor = _caloric_on_reference(state.model, T, np.where(two, vv, 1.0), P)
         for name in ("h", "s", "u", "g"):
             mixed = (1.0 - q) * getattr(liquid, name) + q * getattr(vapor, name)
             values[name] = np.where(two, mixed, values[name])
@@ -942,13 +941,57 @@ def _state_caloric(state):
 def _root_caloric(state, v):
     """The Caloric record of one root of a scalar state (None without ideal-gas data)."""
     from ..errors import DomainError
-    from ..properties import Caloric, caloric
+    from ..properties import Caloric
 
     try:
-        record = caloric(state.model, state.T, v, state.P)
+        record = _caloric_on_reference(state.model, state.T, v, state.P)
     except DomainError:
         return None
     return Caloric(*(float(x) for x in record))
+
+
+#: Where each convention puts h and s [J/kg, J/(kg K)] on saturated liquid, and at which T [K]
+#: (None: the normal boiling point, the saturation temperature at 101.325 kPa).
+_CONVENTIONS = {"IIR": (273.15, 200e3, 1e3), "ASHRAE": (233.15, 0.0, 0.0), "NBP": (None, 0.0, 0.0)}
+
+
+def _energy_offset(model):
+    """(dh [J/mol], ds [J/(mol K)]) that move h and s from the reference equation's zero to the
+    model's convention, fixed with the model's own saturated liquid; worked out once."""
+    if model.reference_state == "reference":
+        return 0.0, 0.0
+    cached = model.__dict__.get("_energy_offset")
+    if cached is None:
+        from ..properties import caloric
+
+        T0, h0, s0 = _CONVENTIONS[model.reference_state]
+        if T0 is None:
+            T, v_l, _, _ = saturation_temperature(model, np.array([101325.0]))
+            T0, P0 = float(T[0]), 101325.0
+        else:
+            if T0 >= model.fluid.Tc:
+                raise DomainError(f"reference_state={model.reference_state!r} fixes h and s on saturated liquid at "
+                                  f"{T0 - 273.15:g} °C, above Tc = {model.fluid.Tc:.6g} K of {model.fluid.name}; "
+                                  "choose 'reference' or 'NBP'.")
+            P, v_l, _, _ = saturation_pressure(model, np.array([T0]))
+            P0 = float(P[0])
+        raw = caloric(model, T0, float(v_l[0]), P0)
+        M = model.fluid.molar_mass
+        cached = (h0 * M - float(raw.h), s0 * M - float(raw.s))
+        model.__dict__["_energy_offset"] = cached
+    return cached
+
+
+def _caloric_on_reference(model, T, v, P):
+    """properties.caloric, with h, s, u, g moved onto the model's reference state."""
+    from ..properties import caloric
+
+    record = caloric(model, T, v, P)
+    dh, ds = _energy_offset(model)
+    if dh == 0.0 and ds == 0.0:
+        return record
+    T = np.asarray(T, dtype=float)
+    return record._replace(h=record.h + dh, u=record.u + dh, s=record.s + ds, g=record.g + dh - T * ds)
 
 
 def _per_mass(state, x):
@@ -1025,8 +1068,10 @@ def _solid_warning(model, T):
     if not cold:
         return ()
     where = "T is" if T.size == 1 else f"At {cold} of {T.size} states T is"
+    solid = "solid (dry ice)" if model.fluid.library_name == "CarbonDioxide" else "solid"
     return (f"{where} below the triple point of {model.fluid.name} ({T_triple:.6g} K): the real fluid is "
-            "solid there, which a cubic equation of state does not represent (it shows a liquid or vapor).",)
+            f"{solid} there, or solid and vapor, and solid may form and block a line; a cubic equation of "
+            "state does not represent the solid (it shows a liquid, a vapor or a liquid-vapor split).",)
 
 
 def _second_temperature_warning(T_other, count, total, model):
