@@ -64,7 +64,7 @@ class _Phase:
         state.__dict__[self.slot] = value
 _VOLUME_KNOWNS = ("v", "rho", "rho_mass")
 #: Energy knowns (molar, and their mass-basis twins read into molar values); with P only, for now.
-_ENERGY_KNOWNS = ("h", "s", "h_mass", "s_mass")
+_ENERGY_KNOWNS = ("h", "s", "u", "h_mass", "s_mass", "u_mass")
 _ALL_KNOWNS = ("T", "P") + _VOLUME_KNOWNS + ("quality",) + _ENERGY_KNOWNS
 #: Knowns that are absolute and positive (an energy has an arbitrary zero; quality its own range).
 _POSITIVE_KNOWNS = ("T", "P") + _VOLUME_KNOWNS
@@ -356,9 +356,13 @@ def _read_knowns(model, knowns, atmosphere):
     if "quality" in knowns and not ({"T", "P"} & set(knowns)):
         raise InputError("quality goes with T or with P, e.g. solve(model, T='20 degC', quality=0.3).")
     energy = [k for k in knowns if k in _ENERGY_KNOWNS]
-    if energy and "P" not in knowns:
-        raise InputError(f"{energy[0]} goes with P for now (a valve outlet: solve(model, P='2 bar', "
-                         f"h=...)); the pairs with T, v or another energy are not built yet.")
+    volume = [k for k in knowns if k in _VOLUME_KNOWNS]
+    if energy and energy[0].startswith("u") and not volume:
+        raise InputError(f"{energy[0]} goes with a volume (a closed vessel: solve(model, u=..., rho_mass='600 kg/m3')); "
+                         "give v, rho or rho_mass with it.")
+    if energy and not energy[0].startswith("u") and "P" not in knowns:
+        raise InputError(f"{energy[0]} goes with P for now (a valve outlet: solve(model, P='2 bar', h=...)); "
+                         "the pairs with T, v or another energy are not built yet.")
     M = model.fluid.molar_mass
     si = {k: np.asarray(si_array(to_si, val, k, molar_mass=M, atmosphere=atmosphere), dtype=float)
           for k, val in knowns.items()}
@@ -388,7 +392,7 @@ def _check_knowns(model, flat, given, problems):
             absolute = " absolute" if name in ("T", "P") else ""
             problems.flag(x <= 0.0, lambda i, n=name, a=absolute: f"{n} must be above zero{a}: got {value(n, i)}.")
     M = model.fluid.molar_mass
-    for name in ("h", "s"):
+    for name in ("h", "s", "u"):
         if f"{name}_mass" in flat:
             flat[name] = flat.pop(f"{name}_mass") * M
     if "rho" in flat:
@@ -815,6 +819,67 @@ def _from_P_energy(model, flat, problems, branch, name):
                 roots=_roots_for(model, T_safe, P))
 
 
+def _from_u_v(model, flat, problems, branch=None):
+    """(u, v) -> T: at fixed v, u rises with T (du/dT = cv > 0, also across the dome, where the
+    lever-rule u of a (T, v) state keeps rising), so T is bracketed between a cold and a hot
+    end and every trial temperature is one vectorized (T, v) solve.
+    """
+    v, target = flat["v"], flat["u"]
+    Tc = model.fluid.Tc
+    ideal = isinstance(model, IdealGas)
+    if ideal:
+        T_lo = 1.0
+    else:
+        from .saturation import lowest_saturation_temperature
+
+        T_lo = max(1.01 * lowest_saturation_temperature(model), 0.5 * (model.fluid.T_triple or 0.2 * Tc))
+    scale = R * Tc
+
+    def u_at(Tx, vx):
+        state = solve(model, T=Tx, v=vx)
+        return np.asarray(state.u, dtype=float), state
+
+    def gap(Tx, vx, ux):
+        return (u_at(Tx, vx)[0] - ux) / scale
+
+    lo, hi = np.full(v.shape, T_lo), np.full(v.shape, 4.0 * Tc)
+    with np.errstate(all="ignore"):
+        for _ in range(5):   # a very hot target: double the top end, up to 64 Tc
+            short = ~(gap(hi, v, target) >= 0.0)
+            if not short.any():
+                break
+            hi[short] *= 2.0
+        g_lo = gap(lo, v, target)
+    # where even the cold end's pressure is not above zero (a liquid volume on a cold
+    # isotherm's loop) move it up until the (T, v) state exists
+    for _ in range(20):
+        bad = ~np.isfinite(g_lo)
+        if not bad.any():
+            break
+        lo[bad] = lo[bad] + 0.05 * (hi[bad] - lo[bad])
+        with np.errstate(all="ignore"):
+            g_lo[bad] = gap(lo[bad], v[bad], target[bad])
+    with np.errstate(all="ignore"):
+        g_hi = gap(hi, v, target)
+    outside = ~((g_lo <= 0.0) & (g_hi >= 0.0))
+    j = np.flatnonzero(outside)
+    problems.flag_at(j, [f"u = {target[k]:.6g} J/mol at v = {v[k]:.6g} m³/mol lies outside what {model.name} gives "
+                         f"between {lo[k]:.4g} K and {hi[k]:.4g} K; check the value, its unit and its reference state."
+                         for k in j], kind=DomainError)
+    T = np.full(v.shape, np.nan)
+    go = np.flatnonzero(~outside)
+    if go.size:
+        result = find_root(gap, bracket=(lo[go], hi[go]), args=(v[go], target[go]), xtol=0.0,
+                           rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
+        ok = np.asarray(result.converged)
+        T[go[ok]] = np.asarray(result.root)[ok]
+        problems.flag_at(go[~ok], [f"the temperature at u = {target[k]:.6g} J/mol, v = {v[k]:.6g} m³/mol did not "
+                                   "converge." for k in go[~ok]])
+    done = solve(model, T=np.where(np.isfinite(T), T, Tc), v=v)
+    parts = {key: np.array(getattr(done, key), dtype=float) for key in ("P", "quality", "v_liquid", "v_vapor")}
+    return dict(T=T, v=v, phase=np.asarray(done.phase, dtype=object), roots=done.root_volumes, **parts)
+
+
 #: The solver of each pair of knowns (volume measures are read as v first).
 _PAIR_SOLVERS = {
     frozenset({"T", "P"}): _from_T_P,
@@ -824,6 +889,7 @@ _PAIR_SOLVERS = {
     frozenset({"P", "quality"}): _from_quality,
     frozenset({"P", "h"}): functools.partial(_from_P_energy, name="h"),
     frozenset({"P", "s"}): functools.partial(_from_P_energy, name="s"),
+    frozenset({"u", "v"}): _from_u_v,
 }
 
 
