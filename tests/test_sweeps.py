@@ -263,3 +263,13 @@ def test_nan_temperature_among_many_states_keeps_the_rest():
     keep = np.arange(T.size) != 1234
     assert (values["reason"][keep] == serial["reason"][keep]).all()
     np.testing.assert_allclose(values["v"][keep], serial["v"][keep], rtol=1e-12)
+
+
+def test_sweeps_carry_the_caloric_columns_of_the_solve(pr_co2):
+    frame = sw.isotherm(pr_co2, "7 degC", P=("1 bar", "100 bar"), n=12)
+    state = tr.solve(pr_co2, T=280.15, P=np.geomspace(1e5, 1e7, 12))
+    for name in ("h", "s", "cp", "w", "mu_jt"):
+        np.testing.assert_allclose(frame[name], getattr(state, name), rtol=1e-12)
+    assert frame.attrs["units"]["h"] == "J/mol" and frame.attrs["units"]["w"] == "m/s"
+    custom = tr.PengRobinson(tr.Fluid("blend", Tc=350.0, Pc=4e6, omega=0.2, molar_mass=0.05))
+    assert "h" not in sw.isotherm(custom, 300.0, P=(1e5, 1e6), n=3).columns   # no ideal-gas data: no caloric columns

@@ -217,12 +217,18 @@ def _finish(frame: pd.DataFrame, attrs: dict) -> pd.DataFrame:
     return frame
 
 
+#: Caloric columns of a state table (where the fluid has ideal-gas data): molar, SI; NaN for
+#: cp, cv, w, mu_jt and kappa_T of two-phase rows.
+CALORIC_COLUMNS = ("h", "s", "u", "cp", "cv", "w", "mu_jt", "kappa_T")
+
+
 def state_frame(state, *, reference=False, progress="auto", executor=None, chunk_size=None,
                 table="states", extra_attrs=None) -> pd.DataFrame:
     """One row per state of a solved (array) State, optionally with the reference beside it.
 
     Columns: T, P, v, rho, rho_mass, Z, phase, quality, v_liquid, v_vapor, metastable,
-    n_roots, v_root_1..v_root_3 (every real volume root, ascending, NaN where fewer), and
+    n_roots, v_root_1..v_root_3 (every real volume root, ascending, NaN where fewer),
+    h, s, u, cp, cv, w, mu_jt, kappa_T (where the fluid has ideal-gas data), and
     with ``reference=True`` the :class:`~thermo_roots.reference.CrossCheck` fields
     (``available`` and ``reason`` as ``reference_available`` and ``reference_reason``).
 
@@ -255,6 +261,9 @@ def state_frame(state, *, reference=False, progress="auto", executor=None, chunk
     data["n_roots"] = np.isfinite(roots).sum(axis=1)
     for i in range(3):
         data[f"v_root_{i + 1}"] = roots[:, i]
+    if state.model.fluid.ideal_gas is not None:   # the caloric columns, molar, SI
+        for name in CALORIC_COLUMNS:
+            data[name] = np.atleast_1d(np.asarray(getattr(state, name), dtype=float)).ravel()
     frame = pd.DataFrame(data)
     attrs = _attrs(state.model, table, **(extra_attrs or {}))
     if reference:
