@@ -21,6 +21,7 @@ _LAZY = {
     "sweeps": ("between", "isobar", "isochore", "isotherm", "read_csv", "saturation_curve", "state_frame",
                "state_grid", "to_csv"),
     "accuracy": ("AccuracyMap", "accuracy_map"),
+    "steps": ("ReferenceStep", "StepResult", "compress", "expand", "heat_at_constant_volume", "throttle"),
 }
 _LAZY_HOME = {name: module for module, names in _LAZY.items() for name in names}
 
@@ -46,4 +47,5 @@ __all__ = [
     "AccuracyMap", "CrossCheck", "ReferenceSaturation", "ReferenceState", "accuracy_map", "between",
     "cross_check", "fit_volume_shift", "isobar", "isochore", "isotherm", "read_csv", "reference_limits",
     "reference_saturation", "reference_state", "saturation_curve", "state_frame", "state_grid", "to_csv",
+    "ReferenceStep", "StepResult", "compress", "expand", "heat_at_constant_volume", "throttle",
 ]

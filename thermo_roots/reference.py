@@ -39,7 +39,7 @@ from .quantities import convert, quantity, unit_label
 from .units import to_si
 
 #: The pairs of knowns the reference understands, as the names used by ``solve``.
-REFERENCE_PAIRS = ("T,P", "T,v", "P,v", "T,quality", "P,quality")
+REFERENCE_PAIRS = ("T,P", "T,v", "P,v", "T,quality", "P,quality", "P,h", "P,s", "v,u")
 #: States per chunk of reference work (a chunk is the unit of progress, interruption and
 #: parallel dispatch).
 DEFAULT_CHUNK = 1000
@@ -50,6 +50,9 @@ INTERRUPTED = "not checked: the run was interrupted before this state"
 
 _LIMIT_KEYS = ("T_min", "T_max", "P_max", "P_triple", "Tc", "Pc", "v_c")
 _FIELDS = ("T", "P", "v", "quality", "P_sat", "T_sat", "v_liquid", "v_vapor")
+#: Caloric values read at every reference state (molar, SI); cp and w stay NaN when two-phase.
+_CALORIC = ("h", "s", "u", "cp", "w")
+_FIELDS = _FIELDS + _CALORIC
 
 
 # --------------------------------------------------------------------------- CoolProp access
@@ -104,7 +107,8 @@ def _coolprop():
     import CoolProp
 
     inputs = {"T,P": CoolProp.PT_INPUTS, "T,v": CoolProp.DmolarT_INPUTS, "P,v": CoolProp.DmolarP_INPUTS,
-              "T,quality": CoolProp.QT_INPUTS, "P,quality": CoolProp.PQ_INPUTS}
+              "T,quality": CoolProp.QT_INPUTS, "P,quality": CoolProp.PQ_INPUTS,
+              "P,h": CoolProp.HmolarP_INPUTS, "P,s": CoolProp.PSmolar_INPUTS, "v,u": CoolProp.DmolarUmolar_INPUTS}
     phases = {
         CoolProp.iphase_liquid: "liquid", CoolProp.iphase_supercritical_liquid: "liquid",
         CoolProp.iphase_gas: "vapor", CoolProp.iphase_supercritical_gas: "vapor",
@@ -138,6 +142,33 @@ def _library_name(fluid) -> str:
         raise InputError(f"Fluid {getattr(fluid, 'name', fluid)!r} has no library_name, so it has no "
                          "reference equation; use a library fluid (get_fluid) to cross-check.")
     return name
+
+
+def _update_arguments(pair: str, x: float, y: float):
+    """The two numbers CoolProp's ``update`` takes for the knowns (x, y) of ``pair``, in the
+    order of its input key (DmolarT is (rho, T), HmolarP is (h, P), PSmolar is (P, s), ...)."""
+    if pair == "T,P":
+        return y, x
+    if pair in ("T,v", "P,v"):
+        return 1.0 / y, x
+    if pair in ("T,quality", "P,h"):
+        return y, x
+    if pair == "v,u":
+        return 1.0 / x, y
+    return x, y   # "P,quality", "P,s"
+
+
+def _caloric_into(out, i, state, phase):
+    """h, s, u (and cp, w outside the two-phase region) of the reference state just updated,
+    read by the keys of the table of quantities. CoolProp returns a number for cp inside the
+    dome too; it is not a heat capacity of the mixture, so it is left NaN there."""
+    names = ("h", "s", "u") if phase == "two-phase" else _CALORIC
+    for name in names:
+        key, power = _reference_key(name)
+        try:
+            out[name][i] = state.keyed_output(key) ** power
+        except ValueError:
+            pass   # a supplement: NaN where the reference does not give it
 
 
 def _limit_reason(limits, T, P):
@@ -192,6 +223,8 @@ def _reference_chunk(library_name: str, pair: str, a, b, with_saturation: bool =
         reason = _limit_reason(limits, T, P)
         if not reason and second == "v" and y <= 0.0:
             reason = f"v = {y:.6g} m³/mol is not positive"
+        if not reason and first == "v" and x <= 0.0:
+            reason = f"v = {x:.6g} m³/mol is not positive"
         if not reason and second == "quality" and not 0.0 <= y <= 1.0:
             reason = f"quality = {y:.6g} is outside [0, 1]"
         if not reason and second == "quality":
@@ -204,14 +237,7 @@ def _reference_chunk(library_name: str, pair: str, a, b, with_saturation: bool =
             out["reason"][i] = reason
             continue
         try:
-            if pair == "T,P":
-                state.update(key, P, T)
-            elif second == "v":
-                state.update(key, 1.0 / y, x)
-            elif pair == "T,quality":
-                state.update(key, y, x)
-            else:
-                state.update(key, x, y)
+            state.update(key, *_update_arguments(pair, x, y))
             T, P = state.T(), state.p()
             reason = _limit_reason(limits, T, P) or _solid_reason(state, limits, T, P)
             if reason:
@@ -222,8 +248,12 @@ def _reference_chunk(library_name: str, pair: str, a, b, with_saturation: bool =
             if phase == "two-phase":
                 out["quality"][i] = state.Q()
             out["phase"][i] = phase
+            _caloric_into(out, i, state, phase)
         except ValueError as error:
-            out["reason"][i] = f"the reference equation failed here: {error}"
+            below = (f"; P = {P:.6g} Pa is below the reference's triple-point pressure {limits['P_triple']:.6g} Pa, "
+                     "where the cold states are solid (not part of the reference equation)"
+                     if P == P and P < limits["P_triple"] else "")
+            out["reason"][i] = f"the reference equation failed here: {error}{below}"
             continue
         if with_saturation:
             _saturation_into(out, i, state, limits, T, P)
@@ -387,6 +417,10 @@ class ReferenceState:
     P_sat : saturation pressure at T [Pa], NaN at or above Tc
     T_sat : saturation temperature at P [K], NaN at or above Pc
     v_liquid, v_vapor : saturated volumes at T [m^3/mol]
+    h, s, u : enthalpy [J/mol], entropy [J/(mol K)], internal energy [J/mol] on the reference
+        equation's own reference state (the lever rule in the two-phase region)
+    cp : isobaric heat capacity [J/(mol K)], NaN in the two-phase region
+    w : speed of sound [m/s], NaN in the two-phase region
     available : bool
     reason : why a state is unavailable ("" where available)
     completed : how many leading states were evaluated (less than the size if interrupted)
@@ -404,6 +438,11 @@ class ReferenceState:
     T_sat: object = field(repr=False)
     v_liquid: object = field(repr=False)
     v_vapor: object = field(repr=False)
+    h: object = field(repr=False)
+    s: object = field(repr=False)
+    u: object = field(repr=False)
+    cp: object = field(repr=False)
+    w: object = field(repr=False)
     available: object = field(repr=False)
     reason: object = field(repr=False)
     completed: int = field(repr=False, default=0)
@@ -460,9 +499,11 @@ def reference_state(fluid, *, with_saturation: bool = True, progress=False, exec
     with_saturation, progress, executor, chunk_size
         As in :func:`evaluate_reference`.
     **knowns
-        Two of T [K], P [Pa], v [m^3/mol], rho [mol/m^3], rho_mass [kg/m^3], quality [-]
-        in the pairs (T, P), (T, v), (P, v), (T, quality), (P, quality); numbers (SI),
-        arrays, or text with units.
+        Two of T [K], P [Pa], v [m^3/mol], rho [mol/m^3], rho_mass [kg/m^3], quality [-],
+        h [J/mol], s [J/(mol K)], u [J/mol] (or h_mass [J/kg], s_mass [J/(kg K)], u_mass
+        [J/kg]) in the pairs (T, P), (T, v), (P, v), (T, quality), (P, quality), (P, h),
+        (P, s), (v, u); numbers (SI), arrays, or text with units. Energies are on the
+        reference equation's own reference state.
 
     Returns
     -------
@@ -569,6 +610,9 @@ def _reference_knowns(fluid, knowns):
         si["v"] = 1.0 / si.pop("rho")
     if "rho_mass" in si:
         si["v"] = fluid.molar_mass / si.pop("rho_mass")
+    for name in ("h", "s", "u"):
+        if f"{name}_mass" in si:
+            si[name] = si.pop(f"{name}_mass") * fluid.molar_mass
     for pair in REFERENCE_PAIRS:
         first, second = pair.split(",")
         if set(si) == {first, second}:
@@ -667,6 +711,17 @@ class CrossCheck:
     reference_T_sat : saturation temperature at P [K], NaN at or above Pc
     reference_v_liquid, reference_v_vapor : saturated volumes at T [m^3/mol]
     reference_quality : vapor mole fraction [-] where the reference is two-phase
+    reference_h, reference_s : enthalpy [J/mol] and entropy [J/(mol K)] of the reference at the
+        knowns, on the reference equation's own reference state (the model's library-fluid
+        values are on the same one, so they compare directly)
+    reference_cp : isobaric heat capacity [J/(mol K)]; reference_w : speed of sound [m/s];
+        both NaN in the two-phase region, where they have no single value
+    deviation_h : h_model - h_ref [J/mol]; deviation_s : s_model - s_ref [J/(mol K)]
+    deviation_h_percent, deviation_s_percent : the same relative to |h_ref| (|s_ref|) [%],
+        given only where |h_ref| >= R T (|s_ref| >= R): h and s have an arbitrary zero, and
+        a percentage of a value near that zero says nothing
+    deviation_cp_percent, deviation_w_percent : 100 (model - ref)/ref [%]; NaN when either
+        side is two-phase
     completed : how many leading states were checked (less than the size if interrupted)
     warnings : sentences about the whole check, e.g. the fluid's constants differ from those
         of the reference equation (see :func:`constant_warnings`); () when there is nothing to say
@@ -691,6 +746,16 @@ class CrossCheck:
     reference_v_liquid: object = field(repr=False)
     reference_v_vapor: object = field(repr=False)
     reference_quality: object = field(repr=False)
+    reference_h: object = field(repr=False, default=math.nan)
+    reference_s: object = field(repr=False, default=math.nan)
+    reference_cp: object = field(repr=False, default=math.nan)
+    reference_w: object = field(repr=False, default=math.nan)
+    deviation_h: object = field(repr=False, default=math.nan)
+    deviation_s: object = field(repr=False, default=math.nan)
+    deviation_h_percent: object = field(repr=False, default=math.nan)
+    deviation_s_percent: object = field(repr=False, default=math.nan)
+    deviation_cp_percent: object = field(repr=False, default=math.nan)
+    deviation_w_percent: object = field(repr=False, default=math.nan)
     completed: int = field(repr=False, default=0)
     warnings: tuple = field(repr=False, default=())
 
@@ -699,6 +764,10 @@ class CrossCheck:
               "reference_T", "reference_phase", "deviation_v_percent", "deviation_rho_percent",
               "deviation_P_percent", "deviation_T_K", "phase_agrees", "reference_P_sat", "reference_T_sat",
               "reference_v_liquid", "reference_v_vapor", "reference_quality")
+    #: The caloric per-state fields (kept apart from FIELDS, so tables built from FIELDS keep
+    #: their columns until they take these on purpose).
+    CALORIC_FIELDS = ("reference_h", "reference_s", "reference_cp", "reference_w", "deviation_h", "deviation_s",
+                      "deviation_h_percent", "deviation_s_percent", "deviation_cp_percent", "deviation_w_percent")
 
     def __repr__(self):
         s = self.state
@@ -763,6 +832,7 @@ class CrossCheck:
             (head("P", what="Saturation pressure at T"), fmt(P_sat, "P"), fmt(self.reference_P_sat, "P"),
              percent(_percent(P_sat, self.reference_P_sat))),
         ]
+        table += self._caloric_rows(fmt, head, percent)
         if s.phase == "two-phase" or self.reference_phase == "two-phase":
             table += [
                 (head("quality"), fmt(s.quality, digits=4), fmt(self.reference_quality, digits=4), ("-", False)),
@@ -775,6 +845,29 @@ class CrossCheck:
                  fmt(M / self.reference_v_vapor, "rho_mass"), percent(_percent(self.reference_v_vapor, v_vapor))),
             ]
         return [((q, m, r, d[0]), d[1]) for q, m, r, d in table]
+
+    def _caloric_rows(self, fmt, head, percent):
+        """Rows of h and s (difference in the display unit, and % where meaningful), cp and w
+        (%; "not single-valued" when either side is two-phase)."""
+        s = self.state
+        rows = []
+        for name, model, ref, diff, pct in (("h", _model_value(s, "h"), self.reference_h, self.deviation_h,
+                                             self.deviation_h_percent),
+                                            ("s", _model_value(s, "s"), self.reference_s, self.deviation_s,
+                                             self.deviation_s_percent)):
+            if math.isfinite(float(diff)):
+                text, large = percent(pct)
+                unit = unit_label(name)
+                shown = f"{convert(diff, name):+.4g} {unit}" + (f" ({text})" if text != "-" else "")
+            else:
+                shown, large = "-", False
+            rows.append((head(name), fmt(model, name), fmt(ref, name), (shown, large)))
+        two_phase = s.phase == "two-phase" or self.reference_phase == "two-phase"
+        for name, pct in (("cp", self.deviation_cp_percent), ("w", self.deviation_w_percent)):
+            deviation = ("not single-valued (two-phase)", False) if two_phase else percent(pct)
+            rows.append((head(name), fmt(_model_value(s, name), name), fmt(getattr(self, f"reference_{name}"), name),
+                         deviation))
+        return rows
 
     def rows(self) -> list[tuple[str, str, str, str]]:
         """(quantity [unit], model, reference, deviation) rows of a scalar cross-check.
@@ -951,8 +1044,34 @@ def _combine(state, pair, ref, completed, notes=()):
         deviation_T_K=dev_T, phase_agrees=available & (phase == ref["phase"]),
         reference_P_sat=ref["P_sat"], reference_T_sat=ref["T_sat"], reference_v_liquid=ref["v_liquid"],
         reference_v_vapor=ref["v_vapor"], reference_quality=ref["quality"],
+        **_caloric_deviations(state, ref, flat["T"]),
     )
     return CrossCheck(state=state, completed=completed, warnings=tuple(notes), **_shape_values(values, shape))
+
+
+def _caloric_deviations(state, ref, T):
+    """The caloric fields of a cross-check (flat arrays): the reference's h, s, cp, w and the
+    model's deviations from them. A model without ideal-gas data (a user fluid without cp0)
+    has no h or s: its deviations are NaN, the reference values are still given."""
+    from .errors import DomainError
+
+    n = T.shape
+    try:
+        model = {k: np.broadcast_to(np.asarray(getattr(state, k), dtype=float), np.shape(state.T)).ravel()
+                 for k in ("h", "s", "cp", "w")}
+    except DomainError:
+        model = {k: np.full(n, np.nan) for k in ("h", "s", "cp", "w")}
+    with np.errstate(invalid="ignore", divide="ignore"):
+        d_h, d_s = model["h"] - ref["h"], model["s"] - ref["s"]
+        out = dict(
+            reference_h=ref["h"], reference_s=ref["s"], reference_cp=ref["cp"], reference_w=ref["w"],
+            deviation_h=d_h, deviation_s=d_s,
+            deviation_h_percent=np.where(np.abs(ref["h"]) >= R * T, 100.0 * d_h / np.abs(ref["h"]), np.nan),
+            deviation_s_percent=np.where(np.abs(ref["s"]) >= R, 100.0 * d_s / np.abs(ref["s"]), np.nan),
+            deviation_cp_percent=100.0 * (model["cp"] - ref["cp"]) / ref["cp"],
+            deviation_w_percent=100.0 * (model["w"] - ref["w"]) / ref["w"],
+        )
+    return out
 
 
 # --------------------------------------------------------------------------- volume translation
