@@ -230,3 +230,14 @@ def test_user_fluid_without_reference(propane):
     result = tr.throttle(model, tr.solve(model, T=300.0, P=20e5), 5e5)
     assert not result.reference.available and "unavailable" in result.reference.reason
     assert result.outlet.h == pytest.approx(result.inlet.h, rel=1e-9)
+
+
+def test_saturated_vapor_at_the_compressor_inlet_is_not_called_wet():
+    # quality 1 is the dew point: no liquid enters (common practice); quality 0.9 does
+    from thermo_roots import steps
+
+    model = tr.PengRobinson("propane")
+    dry = steps.compress(model, tr.solve(model, P=2e5, quality=1.0), 15e5)
+    wet = steps.compress(model, tr.solve(model, P=2e5, quality=0.9), 15e5)
+    assert not any("slugging" in w for w in dry.warnings)
+    assert any("slugging" in w for w in wet.warnings)

@@ -485,7 +485,8 @@ def _machine(model, inlet, P_out, efficiency, kind, atmosphere):
     zero = _scalar_or_array(np.zeros(np.shape(outlet.T)))
     ref = _reference_flow_step(model, inlet, P, kind, eta)
     notes = _efficiency_warnings(eta) + _outlet_warnings(model, outlet, P)
-    if kind == COMPRESSION and np.any(np.asarray(inlet.phase) == "two-phase"):
+    wet = (np.asarray(inlet.phase) == "two-phase") & ~(np.asarray(inlet.quality) >= 1.0 - 1e-9)
+    if kind == COMPRESSION and np.any(wet):   # saturated vapor (quality 1) carries no liquid
         notes.append("The compressor inlet is two-phase: liquid entering a compressor can damage it (liquid "
                      "slugging); compressors are normally fed with superheated vapor (common practice).")
     if np.any(np.asarray(outlet.phase) == "two-phase") and kind == EXPANSION:
