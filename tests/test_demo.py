@@ -143,3 +143,16 @@ def test_git_ignores_the_virtual_environment_and_the_working_copies():
         assert result.returncode == 0, f"git does not ignore {path}"
     result = subprocess.run(["git", "check-ignore", "-q", f"notebooks/{demo.FIRST_NOTEBOOK}"], cwd=ROOT)
     assert result.returncode == 1      # the shipped notebooks stay tracked
+
+
+def test_the_tour_runs_the_sites_valve_and_compressor_steps():
+    # XV-517 vents liquid CO2 to the atmosphere (dry ice: CO2's triple point 216.59 K, 5.18 bar,
+    # CoolProp); K-101's discharge is compared with the reference equation's own (P, s) step
+    vent = demo.run_step(demo.EQUIPMENT["XV-517"])
+    assert vent.outlet.T < 216.59 and any("dry ice" in w for w in vent.warnings)
+    assert vent.outlet.h == pytest.approx(vent.inlet.h, rel=1e-9)
+    stage = demo.run_step(demo.EQUIPMENT["K-101"])
+    assert stage.outlet.T == pytest.approx(stage.reference.outlet.T, abs=2.0)
+    text = demo.step_text(demo.EQUIPMENT["K-101"])
+    assert "compressed at efficiency 0.75" in text and "kJ/kg" in text
+    assert demo.run_step(demo.EQUIPMENT["V-212"]) is None

@@ -40,9 +40,10 @@ def executed(tmp_path_factory):
         return {name: run.result() for name, run in runs.items()}
 
 
-def test_there_are_the_four_notebooks():
+def test_there_are_the_five_notebooks():
     assert [p.name for p in NOTEBOOKS] == ["01_state_point.ipynb", "02_isotherm.ipynb",
-                                          "03_model_accuracy.ipynb", "04_closed_vessel_heatup.ipynb"]
+                                          "03_model_accuracy.ipynb", "04_closed_vessel_heatup.ipynb",
+                                          "05_energy_duties.ipynb"]
 
 
 @pytest.mark.parametrize("path", NOTEBOOKS, ids=lambda p: p.stem)

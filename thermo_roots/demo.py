@@ -46,6 +46,10 @@ class Equipment:
         The pressure the vessel is rated for (invented), gauge or absolute as written.
     highest_temperature : str, optional
         The warmest the vessel can get in service (invented).
+    outlet_pressure : str, optional
+        Where a valve, vent or compressor delivers to (invented).
+    efficiency : float, optional
+        Isentropic efficiency of a compressor or expander (invented).
     """
 
     tag: str
@@ -56,6 +60,8 @@ class Equipment:
     charge: str | None = None
     rated_pressure: str | None = None
     highest_temperature: str | None = None
+    outlet_pressure: str | None = None
+    efficiency: float | None = None
 
     @property
     def title(self) -> str:
@@ -87,6 +93,10 @@ EQUIPMENT = {
     "PV-330": Equipment("PV-330", "CO2 sample cylinder", "CO2", dict(T="20 degC"),
                         volume="0.5 L", charge="0.30 kg", rated_pressure="100 barg",
                         highest_temperature="50 degC"),
+    "XV-517": Equipment("XV-517", "CO2 vent valve on the liquid line", "CO2", dict(P="20 barg", quality=0.0),
+                        outlet_pressure="1.01325 bar"),
+    "K-101": Equipment("K-101", "propane refrigeration compressor", "propane", dict(P="2 bar", quality=1.0),
+                       outlet_pressure="15 bar", efficiency=0.75),
 }
 
 
@@ -259,6 +269,39 @@ def _deviations(check) -> str:
     return ", ".join(shown) if shown else "no comparable quantity"
 
 
+def run_step(item: Equipment, model_name: str = "PR"):
+    """The process step of a valve or compressor of the site: a steps.StepResult, or None."""
+    if item.outlet_pressure is None:
+        return None
+    from . import steps
+
+    model = MODELS[model_name](get_fluid(item.fluid))
+    inlet = solve(model, **item.knowns())
+    if item.efficiency is None:
+        return steps.throttle(model, inlet, item.outlet_pressure)
+    return steps.compress(model, inlet, item.outlet_pressure, efficiency=item.efficiency)
+
+
+def step_text(item: Equipment, model_name: str = "PR") -> str:
+    """Two lines on the item's step (outlet beside the reference's, work), its warnings."""
+    result = run_step(item, model_name)
+    if result is None:
+        return ""
+    out, ref = result.outlet, result.reference
+    kind = "through the valve" if item.efficiency is None else f"compressed at efficiency {item.efficiency:g}"
+    line = f"  {kind} to {item.outlet_pressure}: {out.T - 273.15:.1f} °C, {out.phase}"
+    if out.phase == "two-phase":
+        line += f", quality {out.quality:.3f}"
+    if ref.available:
+        line += f" (reference {ref.outlet.T - 273.15:.1f} °C)"
+    if item.efficiency is not None:
+        line += f"; work {result.work_mass / 1e3:.1f} kJ/kg"
+    notes = [w for w in result.warnings if "two-phase region" not in w]
+    if any(w.startswith("Solid may form") for w in notes):   # the step's own sentence says it better
+        notes = [w for w in notes if "below the triple point of" not in w]
+    return "\n".join([line] + [f"  warning: {w}" for w in notes])
+
+
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description="Solve and print the demo site's state points; "
                                                  "with --lab, then open the notebooks in JupyterLab.")
@@ -278,6 +321,9 @@ def main(argv=None) -> int:
     for tag, fluid_name, knowns in DUTIES:
         try:
             print(describe(tag, fluid_name, knowns, args.model))
+            step = step_text(EQUIPMENT[tag.split(" ", 1)[0]], args.model)
+            if step:
+                print(step)
         except ThermoRootsError as err:
             print(f"{tag}: {err}")
         print()
