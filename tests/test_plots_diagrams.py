@@ -269,3 +269,19 @@ def test_bad_input_is_named(propane, co2_vent):
         plots.plot_pressure_enthalpy(tr.IdealGas(f))
     with pytest.raises(tr.InputError, match="one model"):
         plots.plot_pressure_enthalpy([propane, propane])
+
+
+def test_compressor_step_shows_the_isentropic_outlet(propane):
+    # saturated propane vapor at 0 °C compressed to 15 bar at an isentropic efficiency of 0.75
+    step = steps.compress(propane, tr.solve(propane, T=273.15, quality=1.0), 15e5, 0.75)
+    ax = plots.plot_pressure_enthalpy(propane, step=step)
+    h, P = (np.asarray(a, dtype=float) for a in _one(ax, "step:isentropic").get_data())
+    assert (h[1], P[1]) == pytest.approx((step.isentropic_outlet.h_mass / 1e3, 15.0), rel=1e-12)
+    arrow = _one(ax, "step:model")
+    # work = (h_s - h_in) / efficiency (common practice): the actual outlet lies right of the ideal one
+    assert arrow.xy[0] - arrow.xyann[0] == pytest.approx((h[1] - h[0]) / 0.75, rel=1e-6)
+    # the reference's own compression (CoolProp's (P, s) solve): its outlet temperature is written beside
+    assert "reference equation:" in _texts(ax)
+    ax = plots.plot_temperature_entropy(propane, step=step)
+    s, T = (np.asarray(a, dtype=float) for a in _one(ax, "step:isentropic").get_data())
+    assert s[1] == pytest.approx(s[0], rel=1e-7)      # isentropic: vertical on T–s
