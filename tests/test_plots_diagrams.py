@@ -285,3 +285,16 @@ def test_compressor_step_shows_the_isentropic_outlet(propane):
     ax = plots.plot_temperature_entropy(propane, step=step)
     s, T = (np.asarray(a, dtype=float) for a in _one(ax, "step:isentropic").get_data())
     assert s[1] == pytest.approx(s[0], rel=1e-7)      # isentropic: vertical on T–s
+
+
+def test_step_labels_stay_inside_the_axes(propane, propane_throttle):
+    # a compressor outlet near the right of the diagram: its label turns inward, not into the legend
+    step = steps.compress(propane, tr.solve(propane, T=273.15, quality=1.0), 15e5, 0.75)
+    for s in (step, propane_throttle):
+        ax = plots.plot_pressure_enthalpy(propane, step=s)
+        ax.figure.canvas.draw()
+        frame = ax.get_window_extent()
+        for gid in ("step-inlet-label", "step-outlet-label"):
+            box = _one(ax, gid).get_window_extent()
+            assert frame.x0 <= box.x0 and box.x1 <= frame.x1, gid
+        assert "inlet 0.0 °C" in _texts(ax) or "inlet 30.0 °C, 12 bar" in _texts(ax)

@@ -985,28 +985,38 @@ def _draw_step(ax, step, xy, caller):
         sx, sy = (float(a[0]) for a in xy(_state_columns(step.isentropic_outlet, M)))
         ax.plot([x0, sx], [y0, sy], color=st["color"], linewidth=1.0, linestyle=(0, (1, 1.5)), marker="x",
                 markevery=[1], markersize=7, zorder=7, gid="step:isentropic",
-                label=f"isentropic outlet (efficiency 1), model; this step's efficiency {step.efficiency:g}")
+                label="isentropic outlet (×), model")
     ax.plot([x0], [y0], color=st["color"], markeredgecolor=st["color"], zorder=8, gid="step-inlet",
             label=f"{step.kind} inlet", **_DIAGRAM_STYLE["inlet"])
     ax.plot([x1], [y1], color=st["color"], markeredgecolor=st["color"], zorder=8, gid="step-outlet",
             label=f"{step.kind} outlet (model)", **_DIAGRAM_STYLE["outlet"])
+    x_lo, x_hi = ax.get_xlim()       # the curves are drawn: the labels point into the plot
+
+    def left_half(x):
+        return x < x_lo + 0.7 * (x_hi - x_lo)
+
+    def left_third(x):
+        return x < x_lo + 0.3 * (x_hi - x_lo)
+
     out = step.outlet
     text = f"outlet {float(out.T) - _ZERO_CELSIUS:.1f} °C, {float(out.P) * _BAR:.4g} bar"
+    if getattr(step, "isentropic_outlet", None) is not None:
+        text += f"\nisentropic efficiency {step.efficiency:g}"
     if np.isfinite(float(out.quality)):
-        text += f", quality {float(out.quality):.3f}"
+        text += f"\nquality {float(out.quality):.3f}"
     ref_out = step.reference.outlet
     if bool(np.all(step.reference.available)) and ref_out is not None and np.isfinite(float(ref_out.T)):
-        text += f"\n(reference equation: {float(ref_out.T) - _ZERO_CELSIUS:.1f} °C"
+        text += f"\nreference equation: {float(ref_out.T) - _ZERO_CELSIUS:.1f} °C"
         if np.isfinite(float(ref_out.quality)):
             text += f", quality {float(ref_out.quality):.3f}"
-        text += ")"
     inlet = step.inlet
     ax.annotate(f"inlet {float(inlet.T) - _ZERO_CELSIUS:.1f} °C, {float(inlet.P) * _BAR:.4g} bar",
-                xy=(x0, y0), xytext=(-8, 4), textcoords="offset points", ha="right", va="bottom", fontsize=8,
+                xy=(x0, y0), xytext=(8 if left_third(x0) else -8, 4), textcoords="offset points",
+                ha="left" if left_third(x0) else "right", va="bottom", fontsize=8,
                 color=st["color"], gid="step-inlet-label", zorder=8,
                 bbox=dict(boxstyle="round,pad=0.2", facecolor="white", edgecolor="none", alpha=0.85))
-    ax.annotate(text, xy=(x1, y1), xytext=(8, -4), textcoords="offset points", fontsize=8, color=st["color"],
-                va="top", gid="step-outlet-label", zorder=8,
+    ax.annotate(text, xy=(x1, y1), xytext=(8 if left_half(x1) else -8, -6), textcoords="offset points", fontsize=8,
+                color=st["color"], ha="left" if left_half(x1) else "right", va="top", gid="step-outlet-label", zorder=8,
                 bbox=dict(boxstyle="round,pad=0.2", facecolor="white", edgecolor="none", alpha=0.85))
     ref = step.reference
     drawn = False
