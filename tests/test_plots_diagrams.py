@@ -99,7 +99,8 @@ def test_ph_model_and_reference_domes_are_close_for_propane(propane):
              for side in ("liquid", "vapor")}
     latent = (np.interp(np.log(5.0), np.log(lines["vapor"][1][:-20]), lines["vapor"][0][:-20])
               - np.interp(np.log(5.0), np.log(lines["liquid"][1][:-20]), lines["liquid"][0][:-20]))
-    reference = (CP.PropsSI("Hmass", "P", 5e5, "Q", 1, "n-Propane") - CP.PropsSI("Hmass", "P", 5e5, "Q", 0, "n-Propane")) / 1e3
+    reference = (CP.PropsSI("Hmass", "P", 5e5, "Q", 1, "n-Propane")
+                 - CP.PropsSI("Hmass", "P", 5e5, "Q", 0, "n-Propane")) / 1e3
     assert latent == pytest.approx(reference, rel=0.05)
 
 
@@ -246,6 +247,12 @@ def test_user_fluid_with_cp0_has_no_reference_overlay():
     ax = plots.plot_pressure_enthalpy(model)
     h, P = (np.asarray(a, dtype=float) for a in _one(ax, "dome-vapor:PR").get_data())
     assert h[5] == pytest.approx(tr.solve(model, P=P[5] * 1e5, quality=1.0).h_mass / 1e3, rel=1e-7)
+    # said once, under the plot (not over the curves), also with a step
+    ax = plots.plot_pressure_enthalpy(model, step=steps.throttle(model, tr.solve(model, T=303.15, P=12e5), 2e5))
+    assert _texts(ax).count("user fluid") == 1
+    ax.figure.canvas.draw()
+    note = [t for t in ax.texts if "user fluid" in t.get_text()][0]
+    assert note.get_window_extent().y1 < ax.get_window_extent().y0
     # reference=False draws no overlay for a library fluid either
     assert not _all(plots.plot_pressure_enthalpy(tr.PengRobinson(f), reference=False), "reference")
 

@@ -837,7 +837,7 @@ def _reference_columns(ref, molar_mass):
     return tuple(np.where(ok, c, np.nan) for c in cols)
 
 
-def _diagram_curve(fluid, fixed, value, grid, single, ends):
+def _diagram_curve(fixed, grid, single, ends):
     """One isotherm (fixed "T") or isobar (fixed "P") as (h, s, T, P) arrays, ordered along the
     grid, with the horizontal two-phase segment between the saturated ends where it crosses
     the dome. ``single(grid)`` gives the single-phase states, ``ends()`` the saturated
@@ -876,7 +876,7 @@ def _model_curve(model, fixed, value, grid):
             return None          # below the model's lowest saturation temperature: no dome there
         return tuple(_state_columns(solve(model, **{fixed: value, "quality": q}), M) for q in (0.0, 1.0))
 
-    return _diagram_curve(fluid, fixed, value, grid, single, ends)
+    return _diagram_curve(fixed, grid, single, ends)
 
 
 def _reference_curve(fluid, fixed, value, grid):
@@ -896,7 +896,7 @@ def _reference_curve(fluid, fixed, value, grid):
                 for q in (0.0, 1.0)]
         return None if not np.isfinite(cols[0][0][0]) else tuple(cols)
 
-    return _diagram_curve(fluid, fixed, value, grid, single, ends)
+    return _diagram_curve(fixed, grid, single, ends)
 
 
 def _check_diagram_model(model, caller):
@@ -1065,7 +1065,8 @@ def _draw_triple_line(ax, model, kind):
 def _step_footer(step, reference_drawn):
     """(text, colour) blocks printed under a diagram with a step: the step's warnings that
     concern the outlet (not the general note on two-phase heat capacities), why the
-    reference's step is missing if it is, and the caution."""
+    reference's step is missing if it is (``reference_drawn`` False; True also where the
+    whole overlay is off, which is said once), and the caution."""
     blocks = []
     notes = [w for w in getattr(step, "warnings", ()) if w and "have no single value" not in w]
     if notes:
@@ -1176,13 +1177,12 @@ def _property_diagram(model, ax, *, kind, lines, quality_lines, reference, step)
                                                            with_saturation=False), M))
             ax.plot(rX, rY, label=f"reference equation (CoolProp): dome and {name}s", gid=f"reference-dome-{side}",
                     **_DIAGRAM_STYLE["reference"])
-    elif reference:
-        _note(ax, f"no reference overlay: {library_reason(fluid)}")
-
     extra, footer = [], []
+    if reference and not with_reference:       # said under the plot, clear of the curves
+        footer.append((f"No reference overlay: {library_reason(fluid)}.", "0.3"))
     if step is not None:
         extra, drawn = _draw_step(ax, step, xy, caller)
-        footer = _step_footer(step, drawn)
+        footer += _step_footer(step, drawn or not with_reference)
 
     # axes, then the labels (their place depends on the limits)
     if kind == "ph":
@@ -1213,7 +1213,8 @@ def _property_diagram(model, ax, *, kind, lines, quality_lines, reference, step)
                   f"{name}s coloured low (dark) to high pressure (yellow)"))
     _deduplicated_legend(ax, extra=extra, loc="upper left", bbox_to_anchor=(1.02, 1.0), borderaxespad=0.0,
                          fontsize=8, frameon=False)
-    _draw_footer(ax, footer)
+    if footer:
+        _draw_footer(ax, footer)
     return ax
 
 
