@@ -55,7 +55,8 @@ def _all(ax, prefix):
 
 
 def _texts(ax):
-    return " ".join(t.get_text() for t in ax.texts)
+    """All the axes' texts, wrapped lines joined (a wrapped sentence reads as one)."""
+    return " ".join(" ".join(t.get_text().split()) for t in ax.texts)
 
 
 # --------------------------------------------------------------------------- P–h
@@ -305,3 +306,15 @@ def test_step_labels_stay_inside_the_axes(propane, propane_throttle):
             box = _one(ax, gid).get_window_extent()
             assert frame.x0 <= box.x0 and box.x1 <= frame.x1, gid
         assert "inlet 0.0 °C" in _texts(ax) or "inlet 30.0 °C, 12 bar" in _texts(ax)
+
+
+def test_vessel_heat_up_carries_the_pressure_equipment_caution(propane):
+    # 10 kg of propane at 300 kg/m³ and 20 °C in a closed vessel, heated to 20 bar
+    inlet = tr.solve(propane, T=293.15, rho_mass=300.0)
+    step = steps.heat_at_constant_volume(propane, inlet, mass=10.0, P=20e5)
+    ax = plots.plot_temperature_entropy(propane, step=step)
+    assert steps.VESSEL_CAUTION in _texts(ax) and tr.CAUTION[:40] in _texts(ax)
+    arrow = _one(ax, "step:model")
+    assert arrow.xy == pytest.approx((step.outlet.s_mass / 1e3, float(step.outlet.T) - 273.15), rel=1e-12)
+    labels = ax.get_legend().get_texts()
+    assert any("heating path between them is not drawn" in t.get_text() for t in labels)

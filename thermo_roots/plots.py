@@ -1030,7 +1030,9 @@ def _draw_step(ax, step, xy, caller):
                                         linestyle=rs["linestyle"], mutation_scale=13, shrinkA=0, shrinkB=0))
             drawn = True
     handles = [(Line2D([], [], color=st["color"], linewidth=st["linewidth"], marker=">"),
-                f"{step.kind}, model: inlet (circle) → outlet (square)")]
+                f"{step.kind}, model: inlet (circle) → outlet (square)"
+                + (" — the ends; the heating path between them is not drawn" if step.kind == "constant-volume heat"
+                   else ""))]
     if drawn:
         rs = _DIAGRAM_STYLE["reference_step"]
         handles.append((Line2D([], [], color=rs["color"], linewidth=rs["linewidth"], linestyle=rs["linestyle"],
@@ -1074,6 +1076,10 @@ def _step_footer(step, reference_drawn):
     if not reference_drawn:
         reason = np.asarray(step.reference.reason).flat[0] or "unavailable"
         blocks.append((f"The reference equation's step is not drawn ({reason}).", "0.3"))
+    from .steps import CONSTANT_VOLUME, VESSEL_CAUTION
+
+    if step.kind == CONSTANT_VOLUME:
+        blocks.append((VESSEL_CAUTION, "#a3123a"))
     blocks.append(("Caution: " + CAUTION, "0.25"))
     return blocks
 
