@@ -16,6 +16,7 @@ Nature 11, 357-359 (the equal-area construction).
 
 from __future__ import annotations
 
+import math
 import textwrap
 
 import numpy as np
@@ -29,7 +30,7 @@ from .accuracy import model_label
 from .errors import InputError
 from .inversion import CAUTION, saturation, solve
 from .models import IdealGas
-from .reference import reference_limits, reference_saturation, reference_state
+from .reference import library_reason, reference_limits, reference_saturation, reference_state
 from .units import to_si
 
 #: The one colour, line and marker scheme of every plot.
@@ -775,3 +776,531 @@ def plot_isochore(frame, ax=None):
     height_pt = ax.get_position().height * ax.figure.get_figheight() * 72.0
     _caution(ax, y=-0.15 - rows * 16.0 / height_pt)
     return ax
+
+
+# --------------------------------------------------------------------------- P–h and T–s diagrams
+
+#: Lines of the two property diagrams (kept apart from :data:`STYLE`, which the other plots share).
+_DIAGRAM_STYLE = {
+    "dome": dict(linewidth=2.2, linestyle="-"),
+    "line": dict(linewidth=1.2, linestyle="-"),
+    "quality": dict(color="0.45", linewidth=0.9, linestyle=(0, (1, 2))),
+    "reference": dict(color="black", linewidth=1.0, linestyle=(0, (5, 3))),
+    "step": dict(color="#a3123a", linewidth=2.4),
+    "reference_step": dict(color="black", linewidth=1.4, linestyle=(0, (4, 2))),
+    "inlet": dict(marker="o", markersize=7, markerfacecolor="white", linestyle="none"),
+    "outlet": dict(marker="s", markersize=7, markerfacecolor="white", linestyle="none"),
+}
+
+
+def _nice_step(span, count):
+    """A step of 1, 2, 2.5 or 5 times a power of ten giving about ``count`` lines over ``span``."""
+    raw = span / max(count, 1)
+    power = 10.0 ** np.floor(np.log10(raw))
+    for k in (1.0, 2.0, 2.5, 5.0, 10.0):
+        if k * power >= raw:
+            return k * power
+    return 10.0 * power
+
+
+def _diagram_range(model, fluid, reference):
+    """(lowest saturation temperature drawn [K], its saturation pressure [Pa]): 0.55 Tc, the
+    triple point or the reference equation's lowest temperature, whichever is highest."""
+    T_lo = 0.55 * fluid.Tc
+    if fluid.T_triple:
+        T_lo = max(T_lo, float(fluid.T_triple))
+    if reference and _has_reference(fluid) and not library_reason(fluid):
+        T_lo = max(T_lo, reference_limits(fluid)["T_min"])
+    return T_lo, float(saturation(model, T=T_lo).P)
+
+
+def _saturation_grid(fluid, T_lo):
+    """Temperatures [K] from T_lo to just below Tc, closer together near the critical point."""
+    T_hi = fluid.Tc * (1.0 - 1e-4)
+    bend = max(T_lo, fluid.Tc * 0.97)
+    return np.unique(np.concatenate([np.linspace(T_lo, bend, 40),
+                                     fluid.Tc * (1.0 - np.geomspace(1.0 - bend / fluid.Tc, 1e-4, 25))]))
+
+
+def _state_columns(state, molar_mass):
+    """(h [J/kg], s [J/(kg K)], T [K], P [Pa]) arrays of a State or a ReferenceState."""
+    if hasattr(state, "h_mass"):
+        h, s = state.h_mass, state.s_mass
+    else:  # the reference's energies are molar
+        h, s = np.asarray(state.h, dtype=float) / molar_mass, np.asarray(state.s, dtype=float) / molar_mass
+    return tuple(np.atleast_1d(np.asarray(x, dtype=float)) for x in (h, s, state.T, state.P))
+
+
+def _reference_columns(ref, molar_mass):
+    cols = _state_columns(ref, molar_mass)
+    ok = np.atleast_1d(np.asarray(ref.available, dtype=bool))
+    return tuple(np.where(ok, c, np.nan) for c in cols)
+
+
+def _diagram_curve(fixed, grid, single, ends):
+    """One isotherm (fixed "T") or isobar (fixed "P") as (h, s, T, P) arrays, ordered along the
+    grid, with the horizontal two-phase segment between the saturated ends where it crosses
+    the dome. ``single(grid)`` gives the single-phase states, ``ends()`` the saturated
+    (liquid, vapor) columns or None (supercritical, no saturation)."""
+    sat = ends()
+    h, s, T, P = single(grid)
+    if sat is None:
+        return h, s, T, P
+    liquid, vapor = sat
+    split = liquid[2 if fixed == "P" else 3][0]     # T_sat for an isobar, P_sat for an isotherm
+    if not np.isfinite(split):
+        return h, s, T, P
+    below = grid < split
+    # along an isotherm the pressure rises from vapor to liquid; along an isobar T rises from liquid to vapor
+    first, second = (vapor, liquid) if fixed == "T" else (liquid, vapor)
+    pieces = [np.concatenate([c[below], a, b, c[~below]]) for c, a, b in
+              zip((h, s, T, P), first, second)]
+    return tuple(pieces)
+
+
+def _model_curve(model, fixed, value, grid):
+    fluid = model.fluid
+    M = fluid.molar_mass
+    other = "P" if fixed == "T" else "T"
+
+    def single(g):
+        return _state_columns(solve(model, **{fixed: np.full(g.shape, value), other: g}), M)
+
+    def ends():
+        limit = fluid.Tc if fixed == "T" else fluid.Pc
+        if isinstance(model, IdealGas) or value >= limit:
+            return None
+        try:
+            saturation(model, **{fixed: value})
+        except (ValueError, ArithmeticError):
+            return None          # below the model's lowest saturation temperature: no dome there
+        return tuple(_state_columns(solve(model, **{fixed: value, "quality": q}), M) for q in (0.0, 1.0))
+
+    return _diagram_curve(fixed, grid, single, ends)
+
+
+def _reference_curve(fluid, fixed, value, grid):
+    M = fluid.molar_mass
+    other = "P" if fixed == "T" else "T"
+    limits = reference_limits(fluid)
+
+    def single(g):
+        return _reference_columns(reference_state(fluid, with_saturation=False,
+                                                  **{fixed: np.full(g.shape, value), other: g}), M)
+
+    def ends():
+        if value >= (limits["Tc"] if fixed == "T" else limits["Pc"]):
+            return None
+        cols = [_reference_columns(reference_state(fluid, with_saturation=False, **{fixed: np.array([value]),
+                                                                                   "quality": np.array([q])}), M)
+                for q in (0.0, 1.0)]
+        return None if not np.isfinite(cols[0][0][0]) else tuple(cols)
+
+    return _diagram_curve(fixed, grid, single, ends)
+
+
+def _check_diagram_model(model, caller):
+    if isinstance(model, (list, tuple)):
+        raise InputError(f"{caller} draws one model, got a {type(model).__name__} of {len(model)}; "
+                         "draw each model on its own axes (give ax=).")
+    if not hasattr(model, "fluid"):
+        raise InputError(f"{caller}(model=...) takes a model such as thermo_roots.PengRobinson(fluid), "
+                         f"got {model!r}.")
+    if isinstance(model, IdealGas):
+        raise InputError(f"{caller} draws a saturation dome, which the ideal gas ({model!r}) does not have; "
+                         "give a cubic model, e.g. thermo_roots.PengRobinson(fluid).")
+    solve(model, T=model.fluid.Tc, P=model.fluid.Pc).h   # raises DomainError naming cp0 when h is unknown
+
+
+def _diagram_lines(values, name, caller, unit):
+    """The user's isotherm temperatures or isobar pressures, read to SI."""
+    items = list(values) if isinstance(values, (list, tuple, np.ndarray)) else [values]
+    try:
+        out = np.array([float(to_si(v, name)) for v in items], dtype=float)
+    except (ValueError, TypeError) as error:
+        raise InputError(f"{caller}({name}_lines=...): {error}") from None
+    if out.size == 0 or not np.all(np.isfinite(out)) or np.any(out <= 0):
+        raise InputError(f"{caller}({name}_lines=...) takes positive finite values [{unit}] (or text with "
+                         f"units), got {values!r}; e.g. {name}_lines=" +
+                         ('["0 degC", "40 degC"].' if name == "T" else '["5 bar", "20 bar"].'))
+    return np.unique(out)
+
+
+def _draw_quality_lines(ax, model, T_grid, quality_lines, xy, critical, caller):
+    q = np.atleast_1d(np.asarray(quality_lines if quality_lines is not None else (), dtype=float))
+    if q.size and (not np.all(np.isfinite(q)) or np.any((q <= 0) | (q >= 1))):
+        raise InputError(f"{caller}(quality_lines=...) takes vapor qualities strictly between 0 and 1, "
+                         f"got {quality_lines!r}; e.g. quality_lines=(0.25, 0.5, 0.75), or () for none.")
+    M = model.fluid.molar_mass
+    for k, x in enumerate(q):
+        cols = _state_columns(solve(model, T=T_grid, quality=float(x)), M)
+        X, Y = xy(cols)
+        X, Y = np.append(X, critical[0]), np.append(Y, critical[1])
+        ax.plot(X, Y, label="lines of constant quality (model)", gid=f"quality:{x:g}", **_DIAGRAM_STYLE["quality"])
+        ax.annotate(f"x = {x:g}", xy=(X[0], Y[0]), xytext=(0, 4), textcoords="offset points", ha="center",
+                    va="bottom", fontsize=7, color="0.35", gid=f"quality-label:{x:g}")
+
+
+def _label_on_curve(ax, X, Y, target_y, text, colour, gid, log_y):
+    """Text on the curve (X, Y) at its point nearest ``target_y``, on a white patch."""
+    ok = np.isfinite(X) & np.isfinite(Y)
+    if not np.any(ok):
+        return None
+    yy = np.log(Y[ok]) if log_y else Y[ok]
+    k = int(np.argmin(np.abs(yy - (np.log(target_y) if log_y else target_y))))
+    x, y = X[ok][k], Y[ok][k]
+    # along the curve: its direction on screen between the neighbouring points
+    lo, hi = max(k - 2, 0), min(k + 2, int(np.sum(ok)) - 1)
+    (x0, y0), (x1, y1) = ax.transData.transform([(X[ok][lo], Y[ok][lo]), (X[ok][hi], Y[ok][hi])])
+    angle = float(np.degrees(np.arctan2(y1 - y0, x1 - x0))) if (x1, y1) != (x0, y0) else 0.0
+    angle = (angle + 90.0) % 180.0 - 90.0      # upright text ...
+    if angle < -80.0:
+        angle += 180.0                         # ... and a steep line's label read from bottom to top
+    return ax.text(x, y, text, fontsize=7.5, color=colour, ha="center", va="center", gid=gid, rotation=angle,
+                   rotation_mode="anchor", zorder=6,
+                   bbox=dict(boxstyle="round,pad=0.15", facecolor="white", edgecolor="none", alpha=0.85))
+
+
+def _check_step(step, caller):
+    """A StepResult of one inlet, or a clear error."""
+    if not hasattr(step, "inlet") or not hasattr(step, "outlet") or not hasattr(step, "reference"):
+        raise InputError(f"{caller}(step=...) takes a StepResult from thermo_roots.steps (throttle, compress, "
+                         f"expand, heat_at_constant_volume), got {type(step).__name__}.")
+    if np.ndim(step.outlet.T):
+        raise InputError(f"{caller}(step=...) draws one step; this StepResult holds {np.size(step.outlet.T)} "
+                         "(an array inlet); pass a step of a single inlet state.")
+
+
+def _draw_step(ax, step, xy, caller):
+    """The step's inlet → outlet arrow for the model and, dashed, for the reference."""
+    _check_step(step, caller)
+    M = step.inlet.model.fluid.molar_mass
+    ends = [xy(_state_columns(s, M)) for s in (step.inlet, step.outlet)]
+    (x0, y0), (x1, y1) = [(float(a[0]), float(b[0])) for a, b in ends]
+    st = _DIAGRAM_STYLE["step"]
+    ax.annotate("", xy=(x1, y1), xytext=(x0, y0), gid="step:model", zorder=7,
+                arrowprops=dict(arrowstyle="-|>", color=st["color"], linewidth=st["linewidth"], mutation_scale=16,
+                                shrinkA=0, shrinkB=0))
+    if getattr(step, "isentropic_outlet", None) is not None:     # compressor, expander: the ideal machine too
+        sx, sy = (float(a[0]) for a in xy(_state_columns(step.isentropic_outlet, M)))
+        ax.plot([x0, sx], [y0, sy], color=st["color"], linewidth=1.0, linestyle=(0, (1, 1.5)), marker="x",
+                markevery=[1], markersize=7, zorder=7, gid="step:isentropic",
+                label="isentropic outlet (×), model")
+    ax.plot([x0], [y0], color=st["color"], markeredgecolor=st["color"], zorder=8, gid="step-inlet",
+            label=f"{step.kind} inlet", **_DIAGRAM_STYLE["inlet"])
+    ax.plot([x1], [y1], color=st["color"], markeredgecolor=st["color"], zorder=8, gid="step-outlet",
+            label=f"{step.kind} outlet (model)", **_DIAGRAM_STYLE["outlet"])
+    x_lo, x_hi = ax.get_xlim()       # the curves are drawn: the labels point into the plot
+
+    def left_half(x):
+        return x < x_lo + 0.7 * (x_hi - x_lo)
+
+    def left_third(x):
+        return x < x_lo + 0.3 * (x_hi - x_lo)
+
+    out = step.outlet
+    text = f"outlet {float(out.T) - _ZERO_CELSIUS:.1f} °C, {float(out.P) * _BAR:.4g} bar"
+    if getattr(step, "isentropic_outlet", None) is not None:
+        text += f"\nisentropic efficiency {step.efficiency:g}"
+    if np.isfinite(float(out.quality)):
+        text += f"\nquality {float(out.quality):.3f}"
+    ref_out = step.reference.outlet
+    if bool(np.all(step.reference.available)) and ref_out is not None and np.isfinite(float(ref_out.T)):
+        text += f"\nreference equation: {float(ref_out.T) - _ZERO_CELSIUS:.1f} °C"
+        if np.isfinite(float(ref_out.quality)):
+            text += f", quality {float(ref_out.quality):.3f}"
+    inlet = step.inlet
+    ax.annotate(f"inlet {float(inlet.T) - _ZERO_CELSIUS:.1f} °C, {float(inlet.P) * _BAR:.4g} bar",
+                xy=(x0, y0), xytext=(8 if left_third(x0) else -8, 4), textcoords="offset points",
+                ha="left" if left_third(x0) else "right", va="bottom", fontsize=8,
+                color=st["color"], gid="step-inlet-label", zorder=8,
+                bbox=dict(boxstyle="round,pad=0.2", facecolor="white", edgecolor="none", alpha=0.85))
+    ax.annotate(text, xy=(x1, y1), xytext=(8 if left_half(x1) else -8, -6), textcoords="offset points", fontsize=8,
+                color=st["color"], ha="left" if left_half(x1) else "right", va="top", gid="step-outlet-label", zorder=8,
+                bbox=dict(boxstyle="round,pad=0.2", facecolor="white", edgecolor="none", alpha=0.85))
+    ref = step.reference
+    drawn = False
+    if bool(np.all(ref.available)) and ref.inlet is not None and ref.outlet is not None:
+        r_ends = [xy(_reference_columns(s, M)) for s in (ref.inlet, ref.outlet)]
+        (r0x, r0y), (r1x, r1y) = [(float(a[0]), float(b[0])) for a, b in r_ends]
+        if all(np.isfinite(v) for v in (r0x, r0y, r1x, r1y)):
+            rs = _DIAGRAM_STYLE["reference_step"]
+            ax.annotate("", xy=(r1x, r1y), xytext=(r0x, r0y), gid="step:reference", zorder=6.5,
+                        arrowprops=dict(arrowstyle="-|>", color=rs["color"], linewidth=rs["linewidth"],
+                                        linestyle=rs["linestyle"], mutation_scale=13, shrinkA=0, shrinkB=0))
+            drawn = True
+    handles = [(Line2D([], [], color=st["color"], linewidth=st["linewidth"], marker=">"),
+                f"{step.kind}, model: inlet (circle) → outlet (square)"
+                + (" — the ends; the heating path between them is not drawn" if step.kind == "constant-volume heat"
+                   else ""))]
+    if drawn:
+        rs = _DIAGRAM_STYLE["reference_step"]
+        handles.append((Line2D([], [], color=rs["color"], linewidth=rs["linewidth"], linestyle=rs["linestyle"],
+                               marker=">"), f"{step.kind}, reference equation (its own solve)"))
+    return handles, drawn
+
+
+def _draw_triple_line(ax, model, kind):
+    """The triple point as a line (P–h: its pressure; T–s: its temperature) with "solid below"."""
+    fluid = model.fluid
+    if not fluid.T_triple:
+        return
+    low, high = ax.get_ylim()
+    if kind == "ts":
+        if not low < fluid.T_triple - _ZERO_CELSIUS < high:
+            return
+        ax.axhline(fluid.T_triple - _ZERO_CELSIUS, color="#5a3e1b", linewidth=0.9, linestyle=(0, (6, 2, 1, 2)),
+                   label="triple point: solid below (not modelled)", gid="triple-point", zorder=1.5)
+        return
+    if library_reason(fluid):
+        try:
+            P = float(saturation(model, T=fluid.T_triple).P)
+        except (ValueError, ArithmeticError):
+            P = math.nan     # below the model's lowest saturation temperature
+    else:
+        P = reference_limits(fluid)["P_triple"]
+    if np.isfinite(P) and low < P * _BAR < high:
+        ax.axhline(P * _BAR, color="#5a3e1b", linewidth=0.9, linestyle=(0, (6, 2, 1, 2)),
+                   label="triple point: solid below (not modelled)", gid="triple-point", zorder=1.5)
+
+
+def _step_footer(step, reference_drawn):
+    """(text, colour) blocks printed under a diagram with a step: the step's warnings that
+    concern the outlet (not the general note on two-phase heat capacities), why the
+    reference's step is missing if it is (``reference_drawn`` False; True also where the
+    whole overlay is off, which is said once), and the caution."""
+    blocks = []
+    notes = [w for w in getattr(step, "warnings", ()) if w and "have no single value" not in w]
+    if notes:
+        blocks.append(("Warning: " + " ".join(notes), "#a3123a"))
+    if not reference_drawn:
+        reason = np.asarray(step.reference.reason).flat[0] or "unavailable"
+        blocks.append((f"The reference equation's step is not drawn ({reason}).", "0.3"))
+    from .steps import CONSTANT_VOLUME, VESSEL_CAUTION
+
+    if step.kind == CONSTANT_VOLUME:
+        blocks.append((VESSEL_CAUTION, "#a3123a"))
+    blocks.append(("Caution: " + CAUTION, "0.25"))
+    return blocks
+
+
+def _draw_footer(ax, blocks, fontsize=7.0):
+    """Text blocks under the axes, one after another, wrapped to the axes' width."""
+    width_pt = ax.get_position().width * ax.figure.get_figwidth() * 72.0
+    chars = max(40, int(width_pt / (0.52 * fontsize)))
+    offset = 34.0
+    for text, colour in blocks:
+        lines = textwrap.wrap(text, chars)
+        ax.annotate("\n".join(lines), xy=(0.0, 0.0), xycoords="axes fraction", xytext=(0.0, -offset),
+                    textcoords="offset points", ha="left", va="top", fontsize=fontsize, color=colour,
+                    annotation_clip=False, gid="diagram-note")
+        offset += (len(lines) + 0.6) * fontsize * 1.25
+
+
+def _property_diagram(model, ax, *, kind, lines, quality_lines, reference, step):
+    caller = "plot_pressure_enthalpy" if kind == "ph" else "plot_temperature_entropy"
+    _check_diagram_model(model, caller)
+    fluid = model.fluid
+    M = fluid.molar_mass
+    label = model_label(model)
+    with_reference = bool(reference) and not library_reason(fluid)
+    ax = _new_axes(ax, size=(10.5, 6.4) if step is None else (10.5, 7.6))
+    T_lo, P_lo = _diagram_range(model, fluid, with_reference)
+    T_grid = _saturation_grid(fluid, T_lo)
+    if kind == "ph":
+        def xy(cols):
+            return cols[0] / 1e3, cols[3] * _BAR
+    else:
+        def xy(cols):
+            return cols[1] / 1e3, cols[2] - _ZERO_CELSIUS
+
+    # the model's dome and its critical point
+    colour = model_style(0)["color"]
+    crit = xy(_state_columns(solve(model, T=fluid.Tc, v=model.v_c), M))
+    critical = (float(crit[0][0]), float(crit[1][0]))
+    for q, side in ((0.0, "liquid"), (1.0, "vapor")):
+        X, Y = xy(_state_columns(solve(model, T=T_grid, quality=q), M))
+        ax.plot(np.append(X, critical[0]), np.append(Y, critical[1]), color=colour,
+                label=f"saturated liquid and vapor, {label}", gid=f"dome-{side}:{label}", **_DIAGRAM_STYLE["dome"])
+    ax.plot([critical[0]], [critical[1]], label=f"critical point, {label}", gid="critical-point",
+            **dict(STYLE["critical_point"], color=colour), zorder=6)
+    _draw_quality_lines(ax, model, T_grid, quality_lines, xy, critical, caller)
+
+    # isotherms (P–h) or isobars (T–s), each labelled on its curve; the ranges hold the step
+    P_hi = 2.5 * fluid.Pc
+    T_hi = 1.3 * fluid.Tc
+    P_floor = 0.5 * P_lo      # the bottom of the pressure axis
+    T_floor = T_lo - 5.0      # the bottom of the temperature axis
+    if step is not None:
+        _check_step(step, caller)
+        if step.inlet.model.fluid != fluid:
+            raise InputError(f"{caller}(step=...) got a step of {step.inlet.model.fluid.name} on a diagram of "
+                             f"{fluid.name}; draw a step of the diagram's own fluid.")
+        ends = [(float(s.T), float(s.P)) for s in (step.inlet, step.outlet)]
+        P_floor = min(P_floor, 0.7 * min(P for _, P in ends))
+        P_hi = max(P_hi, 1.3 * max(P for _, P in ends))
+        T_floor = min(T_floor, min(T for T, _ in ends) - 5.0)
+        T_hi = max(T_hi, max(T for T, _ in ends) + 5.0)
+    if kind == "ph":
+        fixed, unit = "T", "K"
+        if lines is None:
+            c_lo, c_hi = T_lo - _ZERO_CELSIUS, 1.25 * fluid.Tc - _ZERO_CELSIUS
+            d = _nice_step(c_hi - c_lo, 6)
+            values = np.arange(np.ceil(c_lo / d) * d, c_hi + 1e-9, d) + _ZERO_CELSIUS
+        else:
+            values = _diagram_lines(lines, "T", caller, unit)
+        grid = np.geomspace(P_floor, P_hi, 160)
+        T_hi = max(T_hi, float(np.max(values)))
+    else:
+        fixed, unit = "P", "Pa"
+        if lines is None:
+            decades = np.arange(np.floor(np.log10(P_lo)), np.ceil(np.log10(2.0 * fluid.Pc)) + 1)
+            candidates = np.ravel(10.0 ** decades[:, None] * np.array([1.0, 2.0, 5.0]))
+            values = candidates[(candidates >= 1.5 * P_lo) & (candidates <= 2.0 * fluid.Pc)]
+            if values.size > 7:
+                values = values[::2]
+        else:
+            values = _diagram_lines(lines, "P", caller, unit)
+        grid = np.linspace(T_floor + 5.0, T_hi, 160)
+        P_hi = max(P_hi, float(np.max(values)))
+    colours = _temperature_colours(len(values))
+    name = "isotherm" if kind == "ph" else "isobar"
+    curves = []
+    for value, c in zip(values, colours):
+        cols = _model_curve(model, fixed, float(value), grid)
+        X, Y = xy(cols)
+        ax.plot(X, Y, color=c, label=f"{name}s, {label} (labelled)", gid=f"{name}:{value:g}", **_DIAGRAM_STYLE["line"])
+        curves.append((value, X, Y, c))
+        if with_reference:
+            rX, rY = xy(_reference_curve(fluid, fixed, float(value), grid))
+            ax.plot(rX, rY, label=f"reference equation (CoolProp): dome and {name}s", gid=f"reference-{name}:{value:g}",
+                    **dict(_DIAGRAM_STYLE["reference"], linewidth=0.8))
+    if with_reference:
+        limits = reference_limits(fluid)
+        ref_T = T_grid[T_grid < limits["Tc"]]
+        for q, side in ((0.0, "liquid"), (1.0, "vapor")):
+            rX, rY = xy(_reference_columns(reference_state(fluid, T=ref_T, quality=np.full(ref_T.shape, q),
+                                                           with_saturation=False), M))
+            ax.plot(rX, rY, label=f"reference equation (CoolProp): dome and {name}s", gid=f"reference-dome-{side}",
+                    **_DIAGRAM_STYLE["reference"])
+    extra, footer = [], []
+    if reference and not with_reference:       # said under the plot, clear of the curves
+        footer.append((f"No reference overlay: {library_reason(fluid)}.", "0.3"))
+    if step is not None:
+        extra, drawn = _draw_step(ax, step, xy, caller)
+        footer += _step_footer(step, drawn or not with_reference)
+
+    # axes, then the labels (their place depends on the limits)
+    if kind == "ph":
+        ax.set_yscale("log")
+        ax.set_ylim(P_floor * _BAR, P_hi * _BAR)
+        plain_log_ticks(ax.yaxis)
+        ax.set_xlabel("Specific enthalpy h [kJ/kg]")
+        ax.set_ylabel("Pressure P [bar] (log scale)")
+        title = "pressure–enthalpy diagram"
+        target = (P_floor * P_lo) ** 0.5 * _BAR      # under the dome's foot, on the vapor side
+    else:
+        ax.set_ylim(T_floor - _ZERO_CELSIUS, T_hi - _ZERO_CELSIUS)
+        ax.set_xlabel("Specific entropy s [kJ/(kg K)]")
+        ax.set_ylabel("Temperature T [°C]")
+        title = "temperature–entropy diagram"
+        target = T_lo + 0.85 * (T_hi - T_lo) - _ZERO_CELSIUS
+    for k, (value, X, Y, c) in enumerate(curves):
+        text = f"{value - _ZERO_CELSIUS:.0f} °C" if kind == "ph" else f"{value * _BAR:.4g} bar"
+        # neighbouring isobars run close together on the vapor side: their labels alternate in height
+        at = target if kind == "ph" else target - (k % 2) * 0.12 * (T_hi - T_floor)
+        _label_on_curve(ax, X, Y, at, text, c, f"{name}-label:{value:g}", kind == "ph")
+    _draw_triple_line(ax, model, kind)
+    ax.grid(True, which="major", color="0.92")
+    ax.set_axisbelow(True)
+    ax.set_title(f"{fluid.name} — {title}, {label}" + (" vs reference equation (CoolProp)" if with_reference else ""))
+    extra.append((Line2D([], [], color="0.3", **_DIAGRAM_STYLE["line"]),
+                  f"{name}s coloured cold (dark) to hot (yellow)" if kind == "ph" else
+                  f"{name}s coloured low (dark) to high pressure (yellow)"))
+    _deduplicated_legend(ax, extra=extra, loc="upper left", bbox_to_anchor=(1.02, 1.0), borderaxespad=0.0,
+                         fontsize=8, frameon=False)
+    if footer:
+        _draw_footer(ax, footer)
+    return ax
+
+
+def plot_pressure_enthalpy(model, ax=None, *, T_lines=None, quality_lines=(0.2, 0.4, 0.6, 0.8), reference=True,
+                           step=None):
+    """Pressure–enthalpy diagram of one model: dome, isotherms, lines of constant quality, a step.
+
+    The model's saturated liquid and vapor enthalpies (its own saturation, joined at its
+    critical point), isotherms through the liquid, across the dome at the saturation
+    pressure and through the vapor (each labelled in °C on its curve), lines of constant
+    vapor quality inside the dome, and where the fluid has a library name the reference
+    equation's dome and isotherms dashed in black. A process step (a throttle's vertical
+    line, a compressor's rise) is drawn as an arrow from inlet to outlet, the reference's
+    own step dashed beside it; with a step the plot carries the caution and the step's
+    warnings (e.g. solid forming below the triple point).
+
+    Parameters
+    ----------
+    model : CubicModel
+        One cubic model of a fluid with ideal-gas data (a library fluid, or a user fluid
+        with ``cp0``).
+    ax : matplotlib Axes, optional
+    T_lines : sequence of float or str, optional
+        Isotherm temperatures [K] ("40 degC" accepted); default about six round °C values
+        from the bottom of the dome to 1.25 Tc.
+    quality_lines : sequence of float
+        Vapor qualities [-] strictly between 0 and 1; () for none.
+    reference : bool
+        Overlay the reference equation (skipped, with a note, for a user fluid).
+    step : StepResult, optional
+        From :func:`thermo_roots.steps.throttle`, ``compress``, ``expand`` or
+        ``heat_at_constant_volume`` of this model.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        Specific enthalpy [kJ/kg] on x, pressure [bar] on a log y axis. Lines carry gids:
+        ``dome-liquid:<model>``, ``dome-vapor:<model>``, ``isotherm:<T in K>``,
+        ``quality:<x>``, ``reference-dome-liquid``/``-vapor``, ``reference-isotherm:<T>``;
+        labels ``isotherm-label:<T>``; arrows ``step:model`` and ``step:reference``.
+
+    References
+    ----------
+    Hunter, J. D. (2007), Comput. Sci. Eng. 9, 90-95 (Matplotlib).
+    Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp, the reference).
+    """
+    return _property_diagram(model, ax, kind="ph", lines=T_lines, quality_lines=quality_lines, reference=reference,
+                             step=step)
+
+
+def plot_temperature_entropy(model, ax=None, *, P_lines=None, quality_lines=(0.2, 0.4, 0.6, 0.8), reference=True,
+                             step=None):
+    """Temperature–entropy diagram of one model: dome, isobars, lines of constant quality, a step.
+
+    The same picture as :func:`plot_pressure_enthalpy` on temperature [°C] against specific
+    entropy [kJ/(kg K)], with isobars (labelled in bar on their curves) instead of
+    isotherms; an isentropic compressor or expander is a vertical arrow here.
+
+    Parameters
+    ----------
+    model : CubicModel
+    ax : matplotlib Axes, optional
+    P_lines : sequence of float or str, optional
+        Isobar pressures [Pa] ("10 bar" accepted); default round values (1, 2, 5 times a
+        power of ten) from the bottom of the dome to 2 Pc.
+    quality_lines : sequence of float
+        Vapor qualities [-] strictly between 0 and 1; () for none.
+    reference : bool
+    step : StepResult, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        gids as in :func:`plot_pressure_enthalpy`, with ``isobar:<P in Pa>`` and
+        ``isobar-label:<P>``.
+
+    References
+    ----------
+    Hunter, J. D. (2007), Comput. Sci. Eng. 9, 90-95 (Matplotlib).
+    Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp, the reference).
+    """
+    return _property_diagram(model, ax, kind="ts", lines=P_lines, quality_lines=quality_lines, reference=reference,
+                             step=step)
