@@ -1,5 +1,6 @@
-"""Layer 8: matplotlib pictures of isotherms, saturation, compressibility, accuracy maps and
-closed-vessel heat-ups.
+"""Layer 8: matplotlib pictures of isotherms, saturation, compressibility, accuracy maps,
+closed-vessel heat-ups, and pressure-enthalpy and temperature-entropy diagrams with a
+process step drawn on them.
 
 Every function takes ``ax=`` (a new figure when None) and returns the Axes. Display units,
 the same in every plot: pressure in bar, temperature in K with a °C scale alongside,
