@@ -36,7 +36,8 @@ def test_prefilled_gauge_state_matches_the_library_and_coolprop():
 
 @pytest.mark.parametrize("pair", [p for _, p in PAIRS], ids=lambda p: "-".join(p))
 def test_every_pair_gives_the_library_state(pair):
-    values = {"T": "10 degC", "P": "6 bar", "v": "1.2 L/mol", "rho": "300 kg/m^3", "quality": "0.25"}
+    values = {"T": "10 degC", "P": "6 bar", "v": "1.2 L/mol", "rho": "300 kg/m^3", "quality": "0.25",
+              "h": "600 kJ/kg", "s": "2.4 kJ/(kg K)"}
     panel = StatePanel(fluid="propane", model="SRK", **{q: values[q] for q in pair})
     state = panel.solve()
     assert panel.error is None, panel.error

@@ -774,6 +774,7 @@ def _from_P_energy(model, flat, problems, branch, name):
                                   f"phase at this {name} cannot be placed." for k in no_sat])
     single = ~np.isfinite(quality) & problems.ok
     scale = R * Tc if name == "h" else R
+    convergence = None
 
     def branch_volume(Tx, Px, seg):
         roots = _roots_for(model, Tx, Px)
@@ -808,6 +809,7 @@ def _from_P_energy(model, flat, problems, branch, name):
             result = find_root(gap, bracket=(lo[j], hi[j]), args=(P[j], target[j], segment[j]), xtol=0.0,
                                rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
             ok = np.asarray(result.converged)
+            convergence = (result, j)
             T[j[ok]] = np.asarray(result.root)[ok]
             v[j[ok]] = branch_volume(T[j[ok]], P[j[ok]], segment[j[ok]])
             problems.flag_at(j[~ok], [f"the temperature at P = {P[k]:.6g} Pa and {name} = {target[k]:.6g} "
@@ -816,7 +818,7 @@ def _from_P_energy(model, flat, problems, branch, name):
     phase = np.asarray(_single_phase(model, T_safe, P, np.where(np.isfinite(v), v, 1.0)), dtype=object)
     phase[np.isfinite(quality)] = "two-phase"
     return dict(T=T, P=P, v=v, phase=phase, quality=quality, v_liquid=v_l, v_vapor=v_v,
-                roots=_roots_for(model, T_safe, P))
+                roots=_roots_for(model, T_safe, P), convergence=convergence)
 
 
 def _from_u_v(model, flat, problems, branch=None):

@@ -20,7 +20,7 @@ from ..quantities import QUANTITIES
 from ..units import read_unit, registry, split_value
 
 #: The knowns the state panel offers as fields (v and rho each take either basis).
-FIELDS = ("T", "P", "v", "rho", "quality")
+FIELDS = ("T", "P", "v", "rho", "quality", "h", "s")
 #: Unit choices per field: (label shown, unit text the units layer reads), from the table of
 #: quantities (``QUANTITIES[name].input_units``, which a field of any other quantity uses).
 UNITS = {name: QUANTITIES[name].input_units for name in FIELDS}

@@ -23,8 +23,11 @@ PAIRS = (
     ("pressure and density", ("P", "rho")),
     ("temperature and vapor quality", ("T", "quality")),
     ("pressure and vapor quality", ("P", "quality")),
+    ("pressure and enthalpy", ("P", "h")),
+    ("pressure and entropy", ("P", "s")),
 )
-_DEFAULTS = {"T": "20 degC", "P": "8 bar", "v": "0.5 L/mol", "rho": "500 kg/m^3", "quality": "0.5"}
+_DEFAULTS = {"T": "20 degC", "P": "8 bar", "v": "0.5 L/mol", "rho": "500 kg/m^3", "quality": "0.5",
+             "h": "600 kJ/kg", "s": "2.4 kJ/(kg K)"}
 #: Significant digits shown per column of the collected table (the DataFrame keeps them all).
 _DIGITS = {"rho deviation [%]": 3}
 #: Columns of the collected table, in order.
