@@ -733,6 +733,16 @@ def _from_quality(model, flat, problems, branch=None):
                 convergence=None if result is None else (result, np.arange(np.size(result.root))))
 
 
+def _coldest_temperature(model):
+    """The cold end [K] of the energy inversions' brackets: as cold as the model's saturation
+    reaches, and no colder than half the triple point (1 K for the ideal gas)."""
+    if isinstance(model, IdealGas):
+        return 1.0
+    from .saturation import lowest_saturation_temperature
+
+    return max(1.01 * lowest_saturation_temperature(model), 0.5 * (model.fluid.T_triple or 0.2 * model.fluid.Tc))
+
+
 def _from_P_energy(model, flat, problems, branch, name):
     """(P, h) or (P, s) -> T: at fixed P both rise with T (dh/dT = cp > 0, ds/dT = cp/T), so
     each phase's segment is bracketed: below P_c, liquid from the model's lowest temperature
@@ -746,12 +756,7 @@ def _from_P_energy(model, flat, problems, branch, name):
     v, v_l, v_v = np.full(n, np.nan), np.full(n, np.nan), np.full(n, np.nan)
     Tc, Pc = model.fluid.Tc, model.fluid.Pc
     ideal = isinstance(model, IdealGas)
-    if ideal:
-        T_lo = 1.0
-    else:   # as cold as the model's saturation reaches, and no colder than half the triple point
-        from .saturation import lowest_saturation_temperature
-
-        T_lo = max(1.01 * lowest_saturation_temperature(model), 0.5 * (model.fluid.T_triple or 0.2 * Tc))
+    T_lo = _coldest_temperature(model)
     segment = np.full(n, "stable", dtype=object)
     lo, hi = np.full(n, T_lo), np.full(n, 4.0 * Tc)
     sub = (P < Pc) & (not ideal)
@@ -828,13 +833,7 @@ def _from_u_v(model, flat, problems, branch=None):
     """
     v, target = flat["v"], flat["u"]
     Tc = model.fluid.Tc
-    ideal = isinstance(model, IdealGas)
-    if ideal:
-        T_lo = 1.0
-    else:
-        from .saturation import lowest_saturation_temperature
-
-        T_lo = max(1.01 * lowest_saturation_temperature(model), 0.5 * (model.fluid.T_triple or 0.2 * Tc))
+    T_lo = _coldest_temperature(model)
     scale = R * Tc
 
     def u_at(Tx, vx):
@@ -1185,12 +1184,6 @@ def _scalar_view(result):
                                converged=bool(np.asarray(result.converged).reshape(-1)[0]), status=status,
                                iterations=int(np.asarray(result.iterations).reshape(-1)[0]),
                                evaluations=int(np.asarray(result.evaluations).reshape(-1)[0]))
-
-
-def _first(x, mask):
-    x = np.asarray(x, dtype=float)
-    sel = x[np.broadcast_to(mask, x.shape)] if x.ndim else np.array([float(x)])
-    return float(sel.flat[0]) if sel.size else float(x.flat[0])
 
 
 def _unit(name):
