@@ -9,7 +9,7 @@ from .errors import (ConvergenceError, DomainError, InputError, ThermoRootsError
                      WrongTypeError)
 from .roots import find_root
 from .fluids import Fluid, fluid_names, get_fluid
-from .models import (MODELS, R, CubicFamily, CubicModel, IdealGas, PengRobinson, PengRobinson78,
+from .models import (MODELS, R, CubicFamily, CubicModel, IdealGas, Model, PengRobinson, PengRobinson78,
                      RedlichKwong, SoaveRedlichKwong, VanDerWaals)
 from .units import to_si
 from .inversion import CAUTION, Root, Saturation, State, saturation, solve, volume_roots
@@ -40,7 +40,7 @@ def __getattr__(name):
 __version__ = "0.1.0"
 
 __all__ = [
-    "CAUTION", "ConvergenceError", "CubicFamily", "CubicModel", "DomainError", "Fluid", "IdealGas",
+    "CAUTION", "ConvergenceError", "CubicFamily", "CubicModel", "DomainError", "Fluid", "IdealGas", "Model",
     "InputError", "MODELS", "PengRobinson", "PengRobinson78", "R", "RedlichKwong", "Root", "Saturation",
     "SoaveRedlichKwong", "State", "ThermoRootsError", "UnknownFluidError", "VanDerWaals", "WrongTypeError", "find_root",
     "fluid_names", "get_fluid", "saturation", "solve", "to_si", "volume_roots", "__version__",

@@ -176,11 +176,19 @@ PR78 = CubicFamily("Peng-Robinson 1978", 1.0 + SQRT2, 1.0 - SQRT2, _soave_alpha(
 
 # --------------------------------------------------------------------------- models
 
-class _Model:
-    """Behaviour shared by every model: Z and the fluid it belongs to."""
+class Model:
+    """Behaviour shared by every model: Z and the fluid it belongs to.
+
+    What the layers below may ask of any model, the ideal gas included, without asking
+    which model it is: ``pressure``, ``dP_dv``, ``dP_dT``, ``ln_phi``, ``residual_bundle``,
+    ``compressibility``, the attributes ``fluid``, ``b``, ``c``, ``v_min``, ``v_c`` and
+    ``has_saturation`` (False when the model has no liquid, so no saturation line, dome
+    or quality).
+    """
 
     short_name = ""
     reference_state = "reference"   # the ideal gas has no saturation to fix another zero on
+    has_saturation = True
     fluid: Fluid
 
     def compressibility(self, T, v):
@@ -192,7 +200,11 @@ class _Model:
         return f"{type(self).__name__}({self.fluid.name!r})"
 
 
-class IdealGas(_Model):
+#: The old private name of :class:`Model`.
+_Model = Model
+
+
+class IdealGas(Model):
     """The ideal gas, P v = R T. No residual properties; ln phi = 0.
 
     References
@@ -202,9 +214,11 @@ class IdealGas(_Model):
 
     name = "ideal gas"
     short_name = "IG"
+    has_saturation = False   # no liquid: no saturation line, dome or quality
     b = 0.0
     c = 0.0
     v_min = 0.0
+    v_c = 0.0                # no liquid branch: below Tc every volume reads as vapor
 
     def __init__(self, fluid: Fluid | str):
         self.fluid = as_fluid(fluid, f"{type(self).__name__}(fluid)")
@@ -234,7 +248,7 @@ class IdealGas(_Model):
         return Helmholtz(zero, zero, zero, zero, zero, zero)
 
 
-class CubicModel(_Model):
+class CubicModel(Model):
     """One generalized two-parameter cubic equation of state for a pure fluid.
 
     Parameters

@@ -222,7 +222,7 @@ def _lowest_gibbs(model, T, P, roots):
 def phase_codes(model, T, P, v):
     """Phase code of single-phase states: above Tc by pressure, below Tc by v against v_c."""
     Tc, Pc = model.fluid.Tc, model.fluid.Pc
-    v_c = getattr(model, "v_c", 0.0)
+    v_c = model.v_c
     code = np.where(v < v_c, LIQUID, VAPOR).astype(np.int8)   # NaN reads as vapor
     above = T >= Tc
     code[above & (P >= Pc)] = SUPERCRITICAL
