@@ -122,6 +122,8 @@ def test_co2_vent_below_the_triple_point_warns_of_dry_ice(co2):
     result = tr.throttle(co2, tr.solve(co2, P=20e5, quality=0.0), "1 bar")
     text = " ".join(result.warnings)
     assert "dry ice" in text and "triple-point pressure" in text
+    # said once: the step's sentence replaces the outlet state's own triple-point sentence
+    assert sum("dry ice" in w for w in result.warnings) == 1
     assert result.outlet.T < state.Ttriple()
     # the reference equation has no fluid state there: unavailable, with the reason
     assert not result.reference.available

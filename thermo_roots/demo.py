@@ -297,8 +297,6 @@ def step_text(item: Equipment, model_name: str = "PR") -> str:
     if item.efficiency is not None:
         line += f"; work {result.work_mass / 1e3:.1f} kJ/kg"
     notes = [w for w in result.warnings if "two-phase region" not in w]
-    if any(w.startswith("Solid may form") for w in notes):   # the step's own sentence says it better
-        notes = [w for w in notes if "below the triple point of" not in w]
     return "\n".join([line] + [f"  warning: {w}" for w in notes])
 
 

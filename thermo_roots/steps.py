@@ -376,6 +376,9 @@ def _outlet_warnings(model, outlet, P_out):
     P_triple = _triple_pressure(model)
     low = P_triple is not None and np.any(np.asarray(P_out) < P_triple)
     if cold or low:
+        # The step's sentence below says more (pressure too, in °C and bar): the outlet
+        # state's own triple-point sentence would repeat it.
+        notes = [w for w in notes if "below the triple point of" not in w]
         where = []
         if cold:
             where.append(f"the outlet temperature {np.min(T) - 273.15:.4g} °C is below the triple-point "
