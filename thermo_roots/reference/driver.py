@@ -54,9 +54,9 @@ def _new_abstract_state(library_name: str):
         return CoolProp.AbstractState("HEOS", library_name)
     except ValueError as error:
         raise UnknownFluidError(
-            f"library_name={library_name!r} is not a fluid of CoolProp's library ({error}); use a name from "
-            "thermo_roots.fluid_names() (get_fluid finds it by its usual name), or library_name=None for a fluid without a reference "
-            "equation.") from None
+            f"library_name={library_name!r} is not a fluid of CoolProp's library; use a name from "
+            "thermo_roots.fluid_names() (get_fluid finds it by its usual name), or library_name=None for a fluid "
+            f"without a reference equation (CoolProp: {error}).") from None
 
 
 @functools.lru_cache(maxsize=None)
@@ -186,7 +186,7 @@ def _reference_chunk(library_name: str, pair: str, a, b, with_saturation: bool =
 
     Module-level and fed only with a name and arrays, so it can be sent to worker processes.
     Returns a dict of arrays: T, P, v, quality, P_sat (at T), T_sat (at P), v_liquid,
-    v_vapor (saturated, at T), phase and reason ("" where available).
+    v_vapor (saturated, at T), h, s, u, cp, w, phase and reason ("" where available).
     """
     CoolProp, inputs, phases = _coolprop()
     a, b = np.broadcast_arrays(np.asarray(a, dtype=float).ravel(), np.asarray(b, dtype=float).ravel())
@@ -196,52 +196,83 @@ def _reference_chunk(library_name: str, pair: str, a, b, with_saturation: bool =
     out["reason"] = np.full(n, "", dtype=object)
     state, limits = _abstract_state(library_name)
     key = inputs[pair]
-    first, second = pair.split(",")
     for i in range(n):
         x, y = float(a[i]), float(b[i])
-        if not (math.isfinite(x) and math.isfinite(y)):
-            out["reason"][i] = "the model state is not finite (it did not solve)"
-            continue
-        T = x if first == "T" else math.nan
-        P = x if first == "P" else (y if second == "P" else math.nan)
-        reason = _limit_reason(limits, T, P)
-        if not reason and second == "v" and y <= 0.0:
-            reason = f"v = {y:.6g} m³/mol is not positive"
-        if not reason and first == "v" and x <= 0.0:
-            reason = f"v = {x:.6g} m³/mol is not positive"
-        if not reason and second == "quality" and not 0.0 <= y <= 1.0:
-            reason = f"quality = {y:.6g} is outside [0, 1]"
-        if not reason and second == "quality":
-            critical = limits["Tc"] if first == "T" else limits["Pc"]
-            if x > critical:
-                unit = "K" if first == "T" else "Pa"
-                reason = (f"{first} = {x:.6g} {unit} is above the reference's critical value "
-                          f"{critical:.6g} {unit}: no saturation there")
+        reason = _knowns_reason(pair, x, y, limits)
+        if not reason:
+            try:
+                state.update(key, *_update_arguments(pair, x, y))
+                reason = _read_state(out, i, state, limits, phases)
+            except ValueError as error:
+                reason = _failure_reason(pair, x, y, limits, error)
         if reason:
             out["reason"][i] = reason
-            continue
-        try:
-            state.update(key, *_update_arguments(pair, x, y))
-            T, P = state.T(), state.p()
-            reason = _limit_reason(limits, T, P) or _solid_reason(state, limits, T, P)
-            if reason:
-                out["reason"][i] = reason
-                continue
-            out["T"][i], out["P"][i], out["v"][i] = T, P, 1.0 / state.rhomolar()
-            phase = phases.get(state.phase(), "")
-            if phase == "two-phase":
-                out["quality"][i] = state.Q()
-            out["phase"][i] = phase
-            _caloric_into(out, i, state, phase)
-        except ValueError as error:
-            below = (f"; P = {P:.6g} Pa is below the reference's triple-point pressure {limits['P_triple']:.6g} Pa, "
-                     "where the cold states are solid (not part of the reference equation)"
-                     if P == P and P < limits["P_triple"] else "")
-            out["reason"][i] = f"the reference equation failed here: {error}{below}"
-            continue
-        if with_saturation:
-            _saturation_into(out, i, state, limits, T, P)
+        elif with_saturation:
+            _saturation_into(out, i, state, limits, out["T"][i], out["P"][i])
     return out
+
+
+def _knowns_reason(pair, x, y, limits):
+    """Why the knowns (x, y) of ``pair`` cannot go to the reference at all, or "" (checked
+    before CoolProp is called, so the reason can say exactly what is wrong)."""
+    if not (math.isfinite(x) and math.isfinite(y)):
+        return "the model state is not finite (it did not solve)"
+    first, second = pair.split(",")
+    T = x if first == "T" else math.nan
+    P = x if first == "P" else (y if second == "P" else math.nan)
+    reason = _limit_reason(limits, T, P)
+    for name, value in ((second, y), (first, x)):
+        if not reason and name == "v" and value <= 0.0:
+            reason = f"v = {value:.6g} m³/mol is not positive"
+    if not reason and second == "quality":
+        critical = limits["Tc"] if first == "T" else limits["Pc"]
+        unit = "K" if first == "T" else "Pa"
+        if not 0.0 <= y <= 1.0:
+            reason = f"quality = {y:.6g} is outside [0, 1]"
+        elif x > critical:
+            reason = (f"{first} = {x:.6g} {unit} is above the reference's critical value "
+                      f"{critical:.6g} {unit}: no saturation there")
+    return reason
+
+
+def _read_state(out, i, state, limits, phases):
+    """Store the state CoolProp has just solved in row i, or return why it is not a state
+    of the reference equation (outside its limits, or solid)."""
+    T, P = state.T(), state.p()
+    reason = _limit_reason(limits, T, P) or _solid_reason(state, limits, T, P)
+    if reason:
+        return reason
+    out["T"][i], out["P"][i], out["v"][i] = T, P, 1.0 / state.rhomolar()
+    phase = phases.get(state.phase(), "")
+    if phase == "two-phase":
+        out["quality"][i] = state.Q()
+    out["phase"][i] = phase
+    _caloric_into(out, i, state, phase)
+    return ""
+
+
+def _knowns_text(pair, x, y):
+    """ "P = 5e+05 Pa, h = 1.2e+04 J/mol": the knowns of a reference state in SI units."""
+    parts = []
+    for name, value in zip(pair.split(","), (x, y)):
+        unit = quantity(name).si_label
+        parts.append(f"{name} = {value:.6g}" + ("" if unit == "-" else f" {unit}"))
+    return ", ".join(parts)
+
+
+def _failure_reason(pair, x, y, limits, error):
+    """A plain sentence for a state CoolProp refused: what failed, at which knowns, what to
+    try; CoolProp's own text after it in parentheses, for whoever wants the detail."""
+    first, second = pair.split(",")
+    P = x if first == "P" else (y if second == "P" else math.nan)
+    detail = str(error).strip() or type(error).__name__
+    if P == P and P < limits["P_triple"]:
+        advice = (f"P is below the reference's triple-point pressure {limits['P_triple']:.6g} Pa, where the "
+                  "cold states are solid (not part of the reference equation); give a pressure above it")
+    else:
+        advice = ("the state lies outside the reference equation's range, or its solver found no solution "
+                  "there; check the knowns against reference_limits(fluid), or try a state nearby")
+    return f"the reference equation found no state at {_knowns_text(pair, x, y)}: {advice} (CoolProp: {detail})"
 
 
 def _saturation_into(out, i, state, limits, T, P):
