@@ -106,3 +106,10 @@ def test_every_public_name_keeps_its_import_path():
                  "_newton_saturation", "_newton_saturation_numpy", "_window_saturation"):
         assert hasattr(old, name), name
     assert tr.saturation is saturation
+
+
+def test_anything_but_a_model_is_refused_with_an_example(propane):
+    with pytest.raises(tr.InputError, match=r"model object, not the class PengRobinson"):
+        tr.saturation(tr.PengRobinson, T=300.0)
+    with pytest.raises(tr.InputError, match=r"model object as its first argument"):
+        tr.saturation("PR", T=300.0)

@@ -15,7 +15,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ...errors import ConvergenceError, DomainError, InputError
-from ...models import _scalar_or_array
+from ...models import Model, _scalar_or_array
 from ...roots import find_root
 from ...units import to_si
 from .._problems import Problems, check_errors_option, si_array
@@ -111,9 +111,10 @@ def saturation(model, T=None, P=None, errors="nan"):
     Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
     Computational Aspects, 2nd ed., ch. 11 (equal fugacity; d ln phi / d ln P = Z - 1).
     """
-    from ..state import _check_model   # state.py imports this package: import at call time
+    if not isinstance(model, Model):   # the check is inline: this call is on the fast path
+        from ..state import _check_model   # state.py imports this package: import at call time
 
-    _check_model(model, "saturation")
+        _check_model(model, "saturation")
     if not model.has_saturation:
         raise DomainError(f"The {model.name} has no saturation (no liquid); choose a cubic model such as "
                           "PengRobinson.")
