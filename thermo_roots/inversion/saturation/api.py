@@ -130,22 +130,7 @@ def saturation(model, T=None, P=None, errors="nan"):
     flat = np.atleast_1d(x).ravel()
     problems = Problems(flat.size, x.shape, strict=x.shape == () or errors == "raise")
     critical = model.fluid.Tc if name == "T" else model.fluid.Pc
-    problems.flag(~np.isfinite(flat), lambda i: f"{name} = {flat[i]:.6g} {unit} is not a finite number.", InputError)
-    problems.flag(~(flat > 0.0), lambda i: f"{name} must be above zero absolute: got {flat[i]:.6g} {unit}.")
-    problems.flag(flat > critical, lambda i: (
-        f"No saturation at {name} = {flat[i]:.6g} {unit}: it exists only for 0 < {name} <= {critical:.6g} {unit} "
-        f"(the critical {'temperature Tc' if name == 'T' else 'pressure Pc'}). Above it the fluid is "
-        "supercritical; use solve()."))
-    if name == "T" and np.any(flat < 0.35 * model.fluid.Tc):
-        T_min = lowest_saturation_temperature(model)
-        problems.flag(flat < T_min, lambda i: _below_floor_message(model, flat[i]))
-    if name == "P" and np.any(flat < 1e-90 * critical):
-        T_min = lowest_saturation_temperature(model)
-        P_min = _raw_saturation_pressure(model, np.array([T_min]), strict=False)[0][0]
-        problems.flag(flat <= P_min, lambda i: (
-            f"P = {flat[i]:.3g} Pa is below the lowest saturation pressure {model.name} serves for "
-            f"{model.fluid.name} ({P_min:.3g} Pa, at T = {T_min:.4g} K); the fluid would be solid long "
-            "before. Give a higher pressure."))
+    _flag_outside_the_dome(model, name, unit, flat, problems)
     ok = problems.ok
     good = np.where(ok, flat, critical)   # placeholders where flagged, NaN in the result
     if name == "T":
@@ -249,6 +234,37 @@ def _reshaped(solved, shape):
     return P.reshape(shape), v_l.reshape(shape), v_v.reshape(shape), result
 
 
+def _flag_outside_the_dome(model, name, unit, flat, problems):
+    """Flag every T [K] or P [Pa] of ``flat`` without a saturation state: not finite, not
+    above zero, above the critical point, or below the model's floor."""
+    critical = model.fluid.Tc if name == "T" else model.fluid.Pc
+    problems.flag(~np.isfinite(flat), lambda i: f"{name} = {flat[i]:.6g} {unit} is not a finite number.", InputError)
+    problems.flag(~(flat > 0.0), lambda i: f"{name} must be above zero absolute: got {flat[i]:.6g} {unit}.")
+    problems.flag(flat > critical, lambda i: (
+        f"No saturation at {name} = {flat[i]:.6g} {unit}: it exists only for 0 < {name} <= {critical:.6g} {unit} "
+        f"(the critical {'temperature Tc' if name == 'T' else 'pressure Pc'}). Above it the fluid is "
+        "supercritical; use solve()."))
+    # the floor is found once per model; only values anywhere near it make that worth it
+    if name == "T" and np.any(flat < 0.35 * model.fluid.Tc):
+        T_min = lowest_saturation_temperature(model)
+        problems.flag(flat < T_min, lambda i: _below_floor_message(model, flat[i]))
+    if name == "P" and np.any(flat < 1e-90 * critical):
+        T_min, P_min = _lowest_saturation_state(model)
+        problems.flag(flat <= P_min, lambda i: _below_lowest_pressure_message(model, flat[i], T_min, P_min))
+
+
+def _lowest_saturation_state(model):
+    """(T [K], P [Pa]) of the model's floor: its lowest saturation temperature and pressure."""
+    T_min = lowest_saturation_temperature(model)
+    return T_min, _raw_saturation_pressure(model, np.array([T_min]), strict=False)[0][0]
+
+
+def _below_lowest_pressure_message(model, P, T_min, P_min):
+    return (f"P = {P:.3g} Pa is below the lowest saturation pressure {model.name} serves for "
+            f"{model.fluid.name} ({P_min:.3g} Pa, at T = {T_min:.4g} K); the fluid would be solid long "
+            "before. Give a higher pressure.")
+
+
 def _compiled_saturation_pressure(model, T):
     """:func:`saturation_pressure` for a 1-D float64 array T [K] in one compiled pass (see
     :func:`.fast._compiled_newton`), the window solver finishing what it leaves; None where
@@ -310,14 +326,10 @@ def saturation_temperature(model, P, strict=True):
     below = P < model.fluid.Pc
     result = None
     if np.any(below):
-        T_floor = lowest_saturation_temperature(model)
-        P_floor = _raw_saturation_pressure(model, np.array([T_floor]), strict=False)[0][0]
+        T_floor, P_floor = _lowest_saturation_state(model)
         reachable = below & (P > P_floor)
         if strict and np.any(below & ~reachable):
-            raise DomainError(
-                f"P = {P[below & ~reachable].flat[0]:.3g} Pa is below the lowest saturation pressure "
-                f"{model.name} serves for {model.fluid.name} ({P_floor:.3g} Pa, at T = {T_floor:.4g} K); "
-                "the fluid would be solid long before. Give a higher pressure.")
+            raise DomainError(_below_lowest_pressure_message(model, P[below & ~reachable].flat[0], T_floor, P_floor))
         T[below & ~reachable], v_l[below & ~reachable], v_v[below & ~reachable] = np.nan, np.nan, np.nan
         Pb = P[reachable]
         if Pb.size:
