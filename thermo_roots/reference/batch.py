@@ -98,8 +98,9 @@ def evaluate_reference(library_name: str, pair: str, a, b, *, with_saturation: b
     ----------
     library_name : str
         CoolProp's fluid name.
-    pair : {"T,P", "T,v", "P,v", "T,quality", "P,quality"}
-        Which knowns ``a`` and ``b`` are (SI: T [K], P [Pa], v [m^3/mol], quality [-]).
+    pair : str, one of :data:`REFERENCE_PAIRS` ("T,P", "T,v", "P,v", "T,quality", "P,quality", "P,h", "P,s", "v,u")
+        Which knowns ``a`` and ``b`` are (SI: T [K], P [Pa], v [m^3/mol], quality [-],
+        h and u [J/mol], s [J/(mol K)]).
     a, b : array_like
         The knowns, broadcast together and flattened.
     with_saturation : bool
