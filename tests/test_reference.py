@@ -314,3 +314,74 @@ def test_fit_volume_shift_arguments_are_checked(propane):
         ref.fit_volume_shift(tr.PengRobinson, None)
     with pytest.raises(tr.DomainError, match="between 0 and 1"):
         ref.fit_volume_shift(tr.PengRobinson, propane, Tr=float("nan"))
+
+
+# --------------------------------------------------------------------------- readable reasons
+
+def test_a_refused_state_below_the_triple_point_pressure_reads_as_a_sentence(co2):
+    # CO2's triple point is at 0.51795 MPa (Span & Wagner 1996, J. Phys. Chem. Ref. Data 25,
+    # 1509; from memory): at 2 bar no liquid or vapor of -10 kJ/mol exists, CoolProp refuses
+    state = ref.reference_state(co2, P=2e5, h=-1e4, with_saturation=False)
+    assert not state.available
+    reason = str(state.reason)
+    plain, _, library = reason.partition(" (CoolProp: ")
+    # first what failed and where, in SI with Unicode units, then what to try
+    assert plain.startswith("the reference equation found no state at P = 200000 Pa, h = -10000 J/mol: ")
+    assert "triple-point pressure" in plain and "give a pressure above it" in plain
+    # CoolProp's own text comes last, in parentheses
+    assert library.endswith(")") and len(library) > 10 and "CoolProp" not in plain
+
+
+def test_a_refused_state_elsewhere_says_what_to_check(co2):
+    # an entropy far below any state of CO2 at 50 bar: outside the equation's range
+    state = ref.reference_state(co2, P=5e6, s=-1e5, with_saturation=False)
+    plain, sep, library = str(state.reason).partition(" (CoolProp: ")
+    assert sep and library.endswith(")")
+    assert plain.startswith("the reference equation found no state at P = 5e+06 Pa, s = -100000 J/(mol K): ")
+    assert "reference_limits(fluid)" in plain and "try a state nearby" in plain
+
+
+def test_an_unknown_library_name_puts_coolprops_text_last():
+    fluid = tr.Fluid("made-up", 400.0, 4e6, 0.2, 0.05, library_name="NoSuchFluid")
+    with pytest.raises(tr.UnknownFluidError) as raised:
+        ref.reference_limits(fluid)
+    text = str(raised.value)
+    assert text.startswith("library_name='NoSuchFluid' is not a fluid of CoolProp's library; use a name from ")
+    assert text.index("fluid_names()") < text.index("(CoolProp: ") and text.endswith(").")
+
+
+# --------------------------------------------------------------------------- import paths
+
+def test_every_public_name_keeps_its_import_path():
+    # the split of reference.py into a package keeps every name where callers found it
+    import importlib
+
+    old_names = ("AUTO_PROGRESS_ABOVE", "CONSTANT_TOLERANCE", "CrossCheck", "DEFAULT_CHUNK", "INTERRUPTED",
+                 "LARGE_DEVIATION_K", "LARGE_DEVIATION_LEGEND", "LARGE_DEVIATION_PERCENT", "LARGE_DEVIATION_STYLE",
+                 "REFERENCE_PAIRS", "ReferenceSaturation", "ReferenceState", "constant_warnings", "cross_check",
+                 "evaluate_reference", "fit_volume_shift", "library_reason", "reference_limits",
+                 "reference_saturation", "reference_state", "state_pair", "whole_number",
+                 # private names other modules and tests import
+                 "_check_run_options", "_given", "_reference_chunk", "_abstract_state", "_library_limits",
+                 "_fluid_name")
+    module = importlib.import_module("thermo_roots.reference")
+    missing = [name for name in old_names if not hasattr(module, name)]
+    assert not missing
+    for name in ("CrossCheck", "ReferenceSaturation", "ReferenceState", "cross_check", "fit_volume_shift",
+                 "reference_limits", "reference_saturation", "reference_state"):
+        assert getattr(tr, name) is getattr(module, name), name
+
+
+def test_replacing_the_chunk_evaluator_on_the_package_is_honoured(co2, monkeypatch):
+    # the batch runner reads thermo_roots.reference._reference_chunk at each run
+    calls = []
+    real = ref._reference_chunk
+
+    def counted(*args):
+        calls.append(args[1])
+        return real(*args)
+
+    monkeypatch.setattr(ref, "_reference_chunk", counted)
+    values, completed = ref.evaluate_reference("CarbonDioxide", "T,P", [300.0, 310.0], [1e5, 1e5],
+                                               with_saturation=False, chunk_size=1)
+    assert calls == ["T,P", "T,P"] and completed == 2 and np.all(np.isfinite(values["v"]))

@@ -69,3 +69,47 @@ def test_scalar_in_scalar_out(propane):
     sat = tr.saturation(tr.PengRobinson(propane), T="25 degC")
     assert isinstance(sat.P, float) and isinstance(sat.v_liquid, float)
     assert "Saturation" in sat._repr_html_()
+
+
+def test_a_model_without_a_liquid_has_no_saturation(propane):
+    # saturation() asks the model protocol (has_saturation), not which class the model is:
+    # a model that declares no liquid is refused like the ideal gas
+    class NoLiquid(tr.PengRobinson):
+        has_saturation = False
+
+    for model in (tr.IdealGas(propane), NoLiquid(propane)):
+        with pytest.raises(tr.DomainError, match="no saturation"):
+            tr.saturation(model, T=300.0)
+
+
+def test_a_large_array_without_problems_has_empty_reasons(propane):
+    # the compiled path (256 temperatures and more) reports no reason anywhere, as the
+    # general path does, without filling an array of its own
+    T = np.linspace(0.5, 0.95, 300) * propane.Tc
+    sat = tr.saturation(tr.PengRobinson(propane), T=T)
+    assert sat.reason.shape == T.shape and set(sat.reason.tolist()) == {""}
+    assert tr.saturation(tr.PengRobinson(propane), T=T[:10]).reason.tolist() == [""] * 10
+
+
+def test_every_public_name_keeps_its_import_path():
+    # the split into api / window / fast / table keeps the old module's names importable
+    import importlib
+
+    old = importlib.import_module("thermo_roots.inversion.saturation")
+    from thermo_roots.inversion.saturation import (SATURATION_FLOOR, Saturation,  # noqa: F401
+                                                   lowest_saturation_temperature, saturation, saturation_pressure,
+                                                   saturation_temperature, spinodal_volumes)
+    from thermo_roots.inversion import Saturation as S2, saturation as s2, spinodal_volumes as sv2
+
+    assert (S2, s2, sv2) == (old.Saturation, old.saturation, old.spinodal_volumes)
+    for name in ("FAST_TR_MAX", "ACCEL_MIN_SIZE", "fugacity_gap_z", "_SETTINGS", "_TABLE_START", "_start_tables",
+                 "_newton_saturation", "_newton_saturation_numpy", "_window_saturation"):
+        assert hasattr(old, name), name
+    assert tr.saturation is saturation
+
+
+def test_anything_but_a_model_is_refused_with_an_example(propane):
+    with pytest.raises(tr.InputError, match=r"model object, not the class PengRobinson"):
+        tr.saturation(tr.PengRobinson, T=300.0)
+    with pytest.raises(tr.InputError, match=r"model object as its first argument"):
+        tr.saturation("PR", T=300.0)

@@ -1,6 +1,6 @@
 """The fast saturation path (bracketed Newton in ln P) gives the proven solver's answers.
 
-The proven solver is the spinodal-window solve of thermo_roots.inversion.saturation
+The proven solver is the spinodal-window solve of thermo_roots.inversion.saturation.window
 (Chandrupatla's method on a bracket guaranteed by the physics, tests/inversion/
 test_saturation.py). The fast path must agree with it to 1e-12 relative in P, satisfy
 equal fugacity by the model's own ln_phi to 1e-10, and hand every temperature it does not
@@ -16,7 +16,11 @@ import pytest
 
 import thermo_roots as tr
 
-sat = importlib.import_module("thermo_roots.inversion.saturation")
+# the pieces of the saturation package: the proven window solver, the fast path and its table
+sat_window = importlib.import_module("thermo_roots.inversion.saturation.window")
+sat_fast = importlib.import_module("thermo_roots.inversion.saturation.fast")
+sat_table = importlib.import_module("thermo_roots.inversion.saturation.table")
+sat_api = importlib.import_module("thermo_roots.inversion.saturation.api")
 
 CUBICS = [tr.VanDerWaals, tr.RedlichKwong, tr.SoaveRedlichKwong, tr.PengRobinson, tr.PengRobinson78]
 
@@ -35,8 +39,8 @@ def _random_Tr(name, n, low=0.35, high=0.99):
 
 def _numpy_fast(model, T):
     """The numpy loop's per-temperature outputs (without T's range)."""
-    return sat._newton_saturation_numpy(model, T, sat._TABLE_START,
-                                        *sat._start_tables(model.delta1, model.delta2), sat._SETTINGS)[:8]
+    return sat_fast._newton_saturation_numpy(model, T, sat_table._TABLE_START,
+                                        *sat_table._start_tables(model.delta1, model.delta2), sat_fast._SETTINGS)[:8]
 
 
 @pytest.mark.parametrize("cls", CUBICS, ids=lambda c: c.short_name)
@@ -48,7 +52,7 @@ def test_fast_path_agrees_with_the_window_solver_to_1e_12(cls):
         assert ok.all(), fluid.name   # the fast path covers Tr 0.35-0.99 for every library fluid
         assert started.all(), fluid.name   # and its roots start from the table and pass the check
         assert evaluations.max() <= 3, fluid.name   # the corresponding-states start is that good
-        P_ref, vl_ref, vv_ref, result = sat._window_saturation(m, T)
+        P_ref, vl_ref, vv_ref, result = sat_window._window_saturation(m, T)
         assert np.all(result.converged)
         np.testing.assert_allclose(P, P_ref, rtol=1e-12, atol=0, err_msg=fluid.name)
         assert np.all(np.abs(lnP - np.log(P)) <= 4 * np.finfo(float).eps * np.maximum(1, np.abs(lnP))), fluid.name
@@ -88,14 +92,14 @@ def test_gap_in_z_is_the_difference_of_the_models_ln_phi(cls, co2):
     m = cls(co2)
     rng = np.random.default_rng(21)
     T = rng.uniform(0.35, 0.99, 2000) * co2.Tc
-    P = sat._window_saturation(m, T)[0] * np.exp(rng.uniform(-0.5, 0.5, T.size))   # on and off saturation
+    P = sat_window._window_saturation(m, T)[0] * np.exp(rng.uniform(-0.5, 0.5, T.size))   # on and off saturation
     v = tr.volume_roots(m, T, P)
     three = np.isfinite(v[:, 2])
     T, P, v = T[three], P[three], v[three]
     a, _ = m.attraction(T)
     to_z = P / (tr.R * T)
     zl, zv = (v[:, 0] + m.c) * to_z, (v[:, 2] + m.c) * to_z
-    ours = sat.fugacity_gap_z(zl, zv, a / (m.b * tr.R * T), m.b * to_z, m.delta1, m.delta2)
+    ours = sat_fast.fugacity_gap_z(zl, zv, a / (m.b * tr.R * T), m.b * to_z, m.delta1, m.delta2)
     theirs = m.ln_phi(T, v[:, 0], P) - m.ln_phi(T, v[:, 2], P)
     # the terms of ln phi are of size ln(1/B) ~ 40 at the lowest pressures: rounding of those
     np.testing.assert_allclose(ours, theirs, rtol=0, atol=2e-13)
@@ -109,35 +113,35 @@ def test_newton_error_constant_is_small_below_tr_0_99(cls):
     for fluid in _fluids(every=7):
         m = cls(fluid)
         T = np.concatenate([np.linspace(0.35, 0.99, 12), [0.99]]) * fluid.Tc
-        x = np.log(sat._window_saturation(m, T)[0])
+        x = np.log(sat_window._window_saturation(m, T)[0])
         h = 1e-4
-        g = [sat._fugacity_gap(x + k * h, m, T) for k in (-1, 0, 1)]
+        g = [sat_window._fugacity_gap(x + k * h, m, T) for k in (-1, 0, 1)]
         d1, d2 = (g[2] - g[0]) / (2 * h), (g[2] - 2 * g[1] + g[0]) / h**2
         assert np.max(np.abs(d2 / (2 * d1))) < 50.0, fluid.name
-        assert sat._ACCEPT_STEP**2 * 50.0 < 1e-16
+        assert sat_fast._ACCEPT_STEP**2 * 50.0 < 1e-16
 
 
 def test_tr_from_0_99_goes_to_the_window_solver(co2):
     m = tr.PengRobinson(co2)
     T = np.array([0.5, 0.98, 0.99, 0.995, 0.999999, 1 - 1e-9]) * co2.Tc
-    P, v_l, v_v, fast = sat._newton_saturation(m, T)
+    P, v_l, v_v, fast = sat_fast._newton_saturation(m, T)
     np.testing.assert_array_equal(fast.converged, [True, True, False, False, False, False])
     assert np.all(np.isnan(P[2:])) and np.all(fast.evaluations[2:] == 0)
-    P_all, _, _, result = sat.saturation_pressure(m, T)
+    P_all, _, _, result = sat_api.saturation_pressure(m, T)
     assert result.method == "newton+chandrupatla" and np.all(result.converged)
-    np.testing.assert_array_equal(P_all[2:], sat._window_saturation(m, T[2:])[0])
-    np.testing.assert_allclose(P_all[:2], sat._window_saturation(m, T[:2])[0], rtol=1e-12)
+    np.testing.assert_array_equal(P_all[2:], sat_window._window_saturation(m, T[2:])[0])
+    np.testing.assert_allclose(P_all[:2], sat_window._window_saturation(m, T[:2])[0], rtol=1e-12)
 
 
 def test_what_the_fast_path_does_not_finish_goes_to_the_window_solver(co2, monkeypatch):
     m = tr.SoaveRedlichKwong(co2)
     T = np.linspace(0.4, 0.98, 30) * co2.Tc
-    reference = sat._window_saturation(m, T)
+    reference = sat_window._window_saturation(m, T)
     # an iteration limit of zero: nothing finishes, everything is solved by the window
-    settings = list(sat._SETTINGS)
+    settings = list(sat_fast._SETTINGS)
     settings[3] = 0.0
-    monkeypatch.setattr(sat, "_SETTINGS", tuple(settings))
-    P, v_l, v_v, result = sat.saturation_pressure(m, T)
+    monkeypatch.setattr(sat_fast, "_SETTINGS", tuple(settings))
+    P, v_l, v_v, result = sat_api.saturation_pressure(m, T)
     assert result.method == "chandrupatla" and np.all(result.converged)
     np.testing.assert_array_equal(P, reference[0])
     np.testing.assert_array_equal(v_v, reference[2])
@@ -149,17 +153,17 @@ def test_a_poor_start_still_converges_by_the_bracket(propane, monkeypatch):
     m = tr.PengRobinson(propane)
     T = np.linspace(0.35, 0.985, 40) * propane.Tc
     good = _numpy_fast(m, T)
-    table, volumes = sat._start_tables(m.delta1, m.delta2)
+    table, volumes = sat_table._start_tables(m.delta1, m.delta2)
     for shift in (3.0, -3.0):
-        poor = sat._newton_saturation_numpy(m, T, sat._TABLE_START, table + shift, volumes, sat._SETTINGS)
+        poor = sat_fast._newton_saturation_numpy(m, T, sat_table._TABLE_START, table + shift, volumes, sat_fast._SETTINGS)
         assert poor[4].all() and poor[6].min() > good[6].max()
         np.testing.assert_allclose(poor[1], good[1], rtol=1e-12)
     # and with two evaluations at most, the ones that did not finish go to the window solver
-    settings = list(sat._SETTINGS)
+    settings = list(sat_fast._SETTINGS)
     settings[3] = 2.0
-    monkeypatch.setattr(sat, "_SETTINGS", tuple(settings))
-    monkeypatch.setattr(sat, "_start_tables", lambda d1, d2: (table + 3.0, volumes))
-    P, _, _, result = sat.saturation_pressure(m, T)
+    monkeypatch.setattr(sat_fast, "_SETTINGS", tuple(settings))
+    monkeypatch.setattr(sat_fast, "_start_tables", lambda d1, d2: (table + 3.0, volumes))
+    P, _, _, result = sat_api.saturation_pressure(m, T)
     assert np.all(result.converged) and "chandrupatla" in result.method
     np.testing.assert_allclose(P, good[1], rtol=1e-12)
 
@@ -170,12 +174,12 @@ def test_outside_the_table_goes_to_the_window_solver():
     odd = tr.Fluid("odd", 300.0, 5e6, -0.7, 0.03)
     m = tr.PengRobinson(odd)
     T = np.array([0.985, 0.5]) * odd.Tc
-    _, _, _, fast = sat._newton_saturation(m, T)
+    _, _, _, fast = sat_fast._newton_saturation(m, T)
     np.testing.assert_array_equal(fast.converged, [False, True])
     assert fast.evaluations[0] == 0
-    P, _, _, result = sat.saturation_pressure(m, T)
+    P, _, _, result = sat_api.saturation_pressure(m, T)
     assert np.all(result.converged) and result.method == "newton+chandrupatla"
-    np.testing.assert_allclose(P, sat._window_saturation(m, T)[0], rtol=1e-12)
+    np.testing.assert_allclose(P, sat_window._window_saturation(m, T)[0], rtol=1e-12)
 
 
 def test_public_saturation_uses_the_fast_path_and_counts_its_work(co2):
@@ -196,10 +200,10 @@ def test_table_volumes_are_the_solved_saturated_volumes(cls):
     for fluid in _fluids(every=9):
         m = cls(fluid)
         T = _random_Tr(fluid.name + "volumes", 40, high=0.98) * fluid.Tc
-        P, v_l, v_v, result = sat._window_saturation(m, T)
+        P, v_l, v_v, result = sat_window._window_saturation(m, T)
         assert np.all(result.converged)
         a, _ = m.attraction(T)
-        ln_pr, rl, zv = sat._start_values(T / fluid.Tc, a / m.a_c, sat._TABLE_START, *sat._start_tables(m.delta1, m.delta2))
+        ln_pr, rl, zv = sat_table._start_values(T / fluid.Tc, a / m.a_c, sat_table._TABLE_START, *sat_table._start_tables(m.delta1, m.delta2))
         to_z = P / (tr.R * T)
         np.testing.assert_allclose(ln_pr, np.log(P / fluid.Pc), rtol=0, atol=1e-7, err_msg=fluid.name)
         np.testing.assert_allclose(rl, (v_l + m.c) / m.b, rtol=1e-6, err_msg=fluid.name)
@@ -209,7 +213,7 @@ def test_table_volumes_are_the_solved_saturated_volumes(cls):
 def _three_root_state(m, Tr):
     """(T, P, c2, c1, c0, B) and the sorted Z roots at Tr and 0.9 Psat, where the cubic has three."""
     T = np.array([Tr * m.fluid.Tc])
-    P = 0.9 * sat._window_saturation(m, T)[0]
+    P = 0.9 * sat_window._window_saturation(m, T)[0]
     c2, c1, c0, B = m.cubic_coefficients(T, P)
     v = tr.volume_roots(m, T, P)[0]
     assert np.all(np.isfinite(v))
@@ -219,13 +223,13 @@ def _three_root_state(m, Tr):
 def _table_roots_both(m, T, P, zl, zv, coefficients):
     """The check on both sides: numpy's _table_roots and, if numba is there, its compiled twin."""
     zl, zv = np.ravel(zl), np.ravel(zv)
-    out = [sat._table_roots(m, T, P, zl / coefficients[3], zv, sat._ROOT_STEPS, sat._ROOT_TOL)]
+    out = [sat_fast._table_roots(m, T, P, zl / coefficients[3], zv, sat_fast._ROOT_STEPS, sat_fast._ROOT_TOL)]
     try:
         from thermo_roots import _accel_kernels as kernels
     except ImportError:
         return out
     c2, c1, c0, B = (float(np.ravel(x)[0]) for x in coefficients)
-    zl_c, zv_c, good = kernels.table_roots(float(zl[0]), float(zv[0]), c2, c1, c0, B, sat._ROOT_STEPS, sat._ROOT_TOL)
+    zl_c, zv_c, good = kernels.table_roots(float(zl[0]), float(zv[0]), c2, c1, c0, B, sat_fast._ROOT_STEPS, sat_fast._ROOT_TOL)
     return out + [(np.array([zl_c]), np.array([zv_c]), np.array([good]))]
 
 
@@ -245,7 +249,7 @@ def test_root_check_accepts_the_outer_roots_and_rejects_wrong_starts(cls, co2):
         for _, _, good in _table_roots_both(m, T, P, zl0, zv0, coefficients):
             assert not good.any(), (zl0, zv0)
     # where the cubic has one root only (well above the window), no start passes
-    P_high = 3.0 * sat._window_saturation(m, T)[0]
+    P_high = 3.0 * sat_window._window_saturation(m, T)[0]
     high = m.cubic_coefficients(T, P_high)
     z_one = (tr.volume_roots(m, T, P_high)[0, 0] + m.c) * P_high / (tr.R * T)
     assert not np.isfinite(tr.volume_roots(m, T, P_high)[0, 1])
@@ -258,11 +262,11 @@ def test_a_wrong_table_start_falls_back_to_the_closed_form(propane):
     closed-form roots serve, and the answer is the same as from the right starts."""
     m = tr.PengRobinson(propane)
     T = np.linspace(0.35, 0.985, 60) * propane.Tc
-    table, volumes = sat._start_tables(m.delta1, m.delta2)
+    table, volumes = sat_table._start_tables(m.delta1, m.delta2)
     wrong = volumes.copy()
     wrong[:, 1] = 0.0
-    good = sat._newton_saturation_numpy(m, T, sat._TABLE_START, table, volumes, sat._SETTINGS)
-    poor = sat._newton_saturation_numpy(m, T, sat._TABLE_START, table, wrong, sat._SETTINGS)
+    good = sat_fast._newton_saturation_numpy(m, T, sat_table._TABLE_START, table, volumes, sat_fast._SETTINGS)
+    poor = sat_fast._newton_saturation_numpy(m, T, sat_table._TABLE_START, table, wrong, sat_fast._SETTINGS)
     assert good[7].all() and not poor[7].any() and poor[4].all()
     for k in (1, 2, 3):
         np.testing.assert_allclose(poor[k], good[k], rtol=1e-12)
@@ -276,13 +280,13 @@ def test_root_rate_is_the_slope_of_the_closed_form_roots(cls, co2):
     common practice)."""
     m = cls(co2)
     T = np.linspace(0.4, 0.98, 25) * co2.Tc
-    P = sat._window_saturation(m, T)[0]
+    P = sat_window._window_saturation(m, T)[0]
     c2, c1, _, B = m.cubic_coefficients(T, P)
     a, _ = m.attraction(T)
     A = a / (m.b * tr.R * T) * B
     h = 1e-6
     z = [(tr.volume_roots(m, T, P * np.exp(k * h)) + m.c) * (P * np.exp(k * h) / (tr.R * T))[:, None] for k in (-1, 0, 1)]
     for col in (0, 2):
-        rate = sat._root_rate(z[1][:, col], c2, c1, A, B, m.delta1 + m.delta2, m.delta1 * m.delta2)
+        rate = sat_fast._root_rate(z[1][:, col], c2, c1, A, B, m.delta1 + m.delta2, m.delta1 * m.delta2)
         central = (z[2][:, col] - z[0][:, col]) / (2 * h)
         np.testing.assert_allclose(rate, central, rtol=1e-6, atol=1e-9)

@@ -1,0 +1,39 @@
+"""Layer 6: the reference equation of state, and how far a model is from it.
+
+In pieces along its seams:
+
+- :mod:`.driver` -- the only code that talks to CoolProp: one state object per thread and
+  fluid, one state at a time, failures turned into readable "unavailable" reasons;
+- :mod:`.batch` -- the batch runner: chunks, progress, interruption, ``executor=``;
+- :mod:`.states` -- :func:`reference_state` and :class:`ReferenceState`, the fluid's
+  constants against the reference equation's;
+- :mod:`.saturation_line` -- :func:`reference_saturation`;
+- :mod:`.comparison` -- :func:`cross_check`, :class:`CrossCheck` and its large deviations;
+- :mod:`.volume_shift` -- :func:`fit_volume_shift`.
+
+Every name importable from ``thermo_roots.reference`` before the split still is, and
+``thermo_roots.reference._reference_chunk`` stays the one place to replace the chunk
+evaluator (the batch runner reads it here).
+
+References
+----------
+Bell, I. H., Wronski, J., Quoilin, S. & Lemort, V. (2014), Ind. Eng. Chem. Res. 53,
+2498-2508 (CoolProp).
+Span, R. (2000), Multiparameter Equations of State, Springer (form of the reference equations).
+"""
+
+from .driver import (REFERENCE_PAIRS, _abstract_state, _fluid_name, _library_limits, _reference_chunk,
+                     library_reason, reference_limits)
+from .batch import (AUTO_PROGRESS_ABOVE, DEFAULT_CHUNK, INTERRUPTED, _check_run_options, _given,
+                    evaluate_reference, whole_number)
+from .states import CONSTANT_TOLERANCE, ReferenceState, constant_warnings, reference_state
+from .saturation_line import ReferenceSaturation, reference_saturation
+from .comparison import (LARGE_DEVIATION_K, LARGE_DEVIATION_LEGEND, LARGE_DEVIATION_PERCENT,
+                         LARGE_DEVIATION_STYLE, CrossCheck, cross_check, state_pair)
+from .volume_shift import fit_volume_shift
+
+__all__ = ["AUTO_PROGRESS_ABOVE", "CONSTANT_TOLERANCE", "CrossCheck", "DEFAULT_CHUNK", "INTERRUPTED",
+           "LARGE_DEVIATION_K", "LARGE_DEVIATION_LEGEND", "LARGE_DEVIATION_PERCENT", "LARGE_DEVIATION_STYLE",
+           "REFERENCE_PAIRS", "ReferenceSaturation", "ReferenceState", "constant_warnings", "cross_check",
+           "evaluate_reference", "fit_volume_shift", "library_reason", "reference_limits", "reference_saturation",
+           "reference_state", "state_pair", "whole_number"]
