@@ -85,8 +85,8 @@ class Measure:
     @property
     def label(self) -> str:
         """The colour bar's label: "Molar volume deviation from reference [%]"."""
-        kind = "deviation" if self.relative else "difference, model − reference,"
-        return f"{self.what[:1].upper() + self.what[1:]} {kind} [{self.unit}]"
+        what = self.what[:1].upper() + self.what[1:]
+        return f"{what} deviation [{self.unit}]" if self.relative else f"{what}, model − reference [{self.unit}]"
 
 
 #: The measure of each quantity an accuracy map takes (``quantity=``); see the module's notes.

@@ -4,7 +4,8 @@ process step drawn on them.
 
 Every function takes ``ax=`` (a new figure when None) and returns the Axes. Display units,
 the same in every plot: pressure in bar, temperature in K with a °C scale alongside,
-molar volume in L/mol, density in kg/m³, deviations in percent. One style table,
+molar volume in L/mol, density in kg/m³, deviations in percent (an enthalpy's in kJ/kg, its
+zero being a convention). One style table,
 :data:`STYLE`, sets colours, line styles and markers; models differ by line style and
 marker as well as by colour, so the plots stay readable in greyscale.
 
@@ -30,7 +31,6 @@ from matplotlib.patches import Patch
 from .accuracy import model_label
 from .errors import InputError
 from .inversion import CAUTION, saturation, solve
-from .models import IdealGas
 from .reference import library_reason, reference_limits, reference_saturation, reference_state
 from .units import to_si
 
@@ -245,14 +245,14 @@ def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=N
     """
     models, fluid, labels, ax = _prepare(model, ax, size=(10.0, 5.4))   # room for the legend on the right
     T = float(to_si(T, "T"))
-    cubic = [m for m in models if not isinstance(m, IdealGas)]
+    cubic = [m for m in models if m.has_saturation]
     subcritical = T < fluid.Tc and bool(cubic)
     sats = {id(m): saturation(m, T=T) for m in cubic} if subcritical else {}
     if v_range is None:
         v_lo = 1.02 * max(m.v_min for m in models) if cubic else 1e-5
         if v_lo <= 0:
             v_lo = 1e-5
-        v_c = max(getattr(m, "v_c", 0.0) for m in models) or 8.314 * fluid.Tc / fluid.Pc / 3
+        v_c = max(m.v_c for m in models) or 8.314 * fluid.Tc / fluid.Pc / 3
         v_hi = max([40.0 * v_c] + [3.0 * s.v_vapor for s in sats.values()])
         if P_marker is not None:
             v_hi = max(v_hi, 3.0 * 8.314462618 * T / float(to_si(P_marker, "P")))
@@ -266,7 +266,7 @@ def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=N
             P = np.where(v > m.v_min, m.pressure(T, v), np.nan)
         ax.plot(v * _LITRE, P * _BAR, color=style["color"], linestyle=style["linestyle"],
                 linewidth=style["linewidth"], label=f"{label} isotherm", gid=f"isotherm:{label}")
-        if isinstance(m, IdealGas):
+        if not m.has_saturation:
             continue
         _draw_dome(ax, m, label, style)
         if subcritical:
@@ -374,7 +374,7 @@ def plot_saturation_curve(model, ax=None, *, T=None, reference=True, n=80):
     lo, hi = (lo, fluid.Tc) if T is None else (float(to_si(T[0], "T")), float(to_si(T[1], "T")))
     Ts = np.linspace(lo, hi, n)
     for i, (m, label) in enumerate(zip(models, labels)):
-        if isinstance(m, IdealGas):
+        if not m.has_saturation:
             continue
         st = model_style(i)
         P = saturation(m, T=Ts).P
@@ -507,10 +507,12 @@ def _last_finite(x, y):
 
 def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours=True, norm=None,
                       colorbar=True, title=None, legend=True):
-    """Heat map of the molar-volume deviation from the reference over temperature and pressure.
+    """Heat map of one quantity's deviation from the reference over temperature and pressure.
 
-    Diverging colours centred at zero (red: the model's volume too large, density too low;
-    blue: too small), labelled contour lines at ±1, 2, 5, 10, 20 %, grey where the
+    The quantity is the map's (``accuracy_map(..., quantity=)``: molar volume, enthalpy,
+    isobaric heat capacity, speed of sound). Diverging colours centred at zero (red: the
+    model's value too large, for v its density too low; blue: too small), labelled contour
+    lines at ±1, 2, 5, 10, 20 of the deviation's unit (% or kJ/kg), grey where the
     reference gives no single-phase value, crosses where the model's phase differs from
     the reference's, and the saturation curves of the reference and the model on top.
 
@@ -521,7 +523,8 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
         Which model's label (or position); default the first.
     ax : matplotlib Axes, optional
     limit : float, optional
-        Colour limits ±limit [%]; default the 95th percentile of |deviation|, at least 1 %.
+        Colour limits ±limit [the deviation's unit: % or kJ/kg]; default the 95th percentile of
+        |deviation|, at least 1.
     contours : bool
         Draw the labelled contour lines.
     norm : matplotlib.colors.Normalize, optional
@@ -549,7 +552,7 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
     mesh = ax.pcolormesh(_edges(Ts, False), _edges(Ps, log_P) * _BAR, np.ma.masked_invalid(dev),
                          cmap=STYLE["colormap"], norm=norm, shading="flat", gid=f"deviation:{label}")
     if colorbar:
-        _deviation_colorbar(ax.figure, mesh, ax)
+        _deviation_colorbar(ax.figure, mesh, ax, amap)
     if contours and Ts.size > 2 and Ps.size > 2:
         # contour the vapor side and the dense side apart: across the saturation line the
         # deviation jumps, and one contour of both would stack every level along it
@@ -563,7 +566,8 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
             if levels:
                 lines = ax.contour(Ts, Ps * _BAR, np.ma.masked_invalid(part), levels=levels, colors="black",
                                    linewidths=0.6)
-                ax.clabel(lines, fmt=lambda x: f"{x:+g} %", fontsize=7)
+                unit = " %" if _map_measure(amap).relative else ""    # kJ/kg: the colour bar says it
+                ax.clabel(lines, fmt=lambda x: f"{x:+g}{unit}", fontsize=7)
     differ = pts[pts["phase_model"] != pts["phase_reference"]]
     extra = []
     if len(differ):
@@ -582,7 +586,7 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
     ax.set_ylabel("Pressure P [bar]" + (" (log scale)" if log_P else ""))
     _celsius_axis(ax)
     ax.set_title(title if title is not None else
-                 f"{amap.fluid.name} — {label}: deviation of molar volume from the reference equation")
+                 f"{amap.fluid.name} — {label}: deviation of {_map_measure(amap).what} from the reference equation")
     if legend:
         _deduplicated_legend(ax, extra=extra, loc="upper center", bbox_to_anchor=(0.5, -0.11), ncol=3,
                              fontsize=7.5, frameon=False)
@@ -604,8 +608,8 @@ def plot_accuracy_maps(accuracy_map, models=None, *, figure=None, limit=None, co
     figure : matplotlib Figure, optional
         Drawn into (cleared first); default a new figure sized for the maps.
     limit : float, optional
-        Colour limits ±limit [%]; default the 95th percentile of |deviation| over all the
-        maps shown, at least 1 %.
+        Colour limits ±limit [the deviation's unit: % or kJ/kg]; default the 95th percentile of
+        |deviation| over all the maps shown, at least 1.
     contours : bool
     ncols : int
         Maps per row.
@@ -635,8 +639,9 @@ def plot_accuracy_maps(accuracy_map, models=None, *, figure=None, limit=None, co
         plot_accuracy_map(amap, label, ax=ax, contours=contours, norm=norm, colorbar=False, legend=False,
                           title=label)
     used = axes[:len(chosen)]
-    _deviation_colorbar(figure, used[0].collections[0], used)
-    figure.suptitle(f"{amap.fluid.name} — deviation of the models' molar volume from the reference equation")
+    _deviation_colorbar(figure, used[0].collections[0], used, amap)
+    figure.suptitle(f"{amap.fluid.name} — deviation of the models' {_map_measure(amap).what} from the reference "
+                    "equation")
     entries = {}
     for ax in used:
         handles, names = ax.get_legend_handles_labels()
@@ -664,25 +669,31 @@ def _map_model(amap, model):
 
 
 def _deviation_grid(amap, label):
-    """(the model's points, its deviation [%] on the map's (P, T) grid, NaN where none)."""
+    """(the model's points, its deviation [the measure's unit] on the map's (P, T) grid, NaN where none)."""
     pts = amap.points[amap.points["model"] == label]
     Ts, Ps = np.asarray(amap.points.attrs["T_grid"]), np.asarray(amap.points.attrs["P_grid"])
-    grid = pts.pivot_table(index="P", columns="T", values="deviation_percent").reindex(index=Ps, columns=Ts)
+    grid = pts.pivot_table(index="P", columns="T", values="deviation").reindex(index=Ps, columns=Ts)
     return pts, grid.to_numpy()
 
 
 def _deviation_norm(grids, limit=None):
-    """Diverging colour scale centred at 0, ±limit [%] (default the 95th percentile of |dev|)."""
+    """Diverging colour scale centred at 0, ±limit (default the 95th percentile of |dev|, at least 1)."""
     if limit is None:
         finite = np.abs(np.concatenate([g[np.isfinite(g)] for g in grids]))
         limit = max(1.0, float(np.percentile(finite, 95))) if finite.size else 1.0
     return mcolors.TwoSlopeNorm(vcenter=0.0, vmin=-limit, vmax=limit)
 
 
-def _deviation_colorbar(figure, mesh, axes):
+def _deviation_colorbar(figure, mesh, axes, amap):
+    how = _map_measure(amap)
     bar = figure.colorbar(mesh, ax=axes, extend="both")
-    bar.set_label("Molar volume deviation from reference [%]\n(+ : model volume too large, density too low)")
+    bar.set_label(f"{how.label}\n({how.sign})")
     return bar
+
+
+def _map_measure(amap):
+    """The map's :class:`~thermo_roots.accuracy.Measure`."""
+    return amap.measure
 
 
 def _saturation_overlay(ax, amap, index, label, Ts):
@@ -693,7 +704,7 @@ def _saturation_overlay(ax, amap, index, label, Ts):
     ref = reference_saturation(fluid, T=Tsat)
     ax.plot(Tsat, np.asarray(ref.P) * _BAR, label="saturation, reference", **_outlined(**STYLE["reference"]))
     m = _map_model_object(amap, index, label)
-    if m is not None and not isinstance(m, IdealGas):
+    if m is not None and m.has_saturation:
         st = model_style(index)
         ax.plot(Tsat, saturation(m, T=Tsat).P * _BAR, label=f"saturation, {label}", gid=f"saturation:{label}",
                 **_outlined(color=st["color"], linestyle=st["linestyle"], linewidth=1.6))
@@ -869,7 +880,7 @@ def _model_curve(model, fixed, value, grid):
 
     def ends():
         limit = fluid.Tc if fixed == "T" else fluid.Pc
-        if isinstance(model, IdealGas) or value >= limit:
+        if not model.has_saturation or value >= limit:
             return None
         try:
             saturation(model, **{fixed: value})
@@ -907,7 +918,7 @@ def _check_diagram_model(model, caller):
     if not hasattr(model, "fluid"):
         raise InputError(f"{caller}(model=...) takes a model such as thermo_roots.PengRobinson(fluid), "
                          f"got {model!r}.")
-    if isinstance(model, IdealGas):
+    if not model.has_saturation:
         raise InputError(f"{caller} draws a saturation dome, which the ideal gas ({model!r}) does not have; "
                          "give a cubic model, e.g. thermo_roots.PengRobinson(fluid).")
     solve(model, T=model.fluid.Tc, P=model.fluid.Pc).h   # raises DomainError naming cp0 when h is unknown
