@@ -139,3 +139,26 @@ def test_panel_maps_the_chosen_quantity():
     assert panel.solve().quantity == "cp" and "Isobaric heat capacity against" in panel.summary.value
     with pytest.raises(tr.InputError, match="allowed"):
         AccuracyPanel(quantity="density")
+
+
+def test_contours_do_not_ring_a_point_whose_phase_differs():
+    # SRK puts CO2's saturation line off the reference's, so on this grid one point near the
+    # line is vapor in the model and liquid in the reference: its enthalpy "deviation" is a
+    # latent heat, and contours through it would stack every level around one cell
+    amap = acc.accuracy_map("CO2", ["SRK"], T=np.linspace(223.15, 393.15, 14), P=np.geomspace(6e5, 150e5, 12),
+                            quantity="h", progress=False)
+    pts = amap.points
+    differ = pts[pts["phase_model"] != pts["phase_reference"]]
+    assert len(differ) >= 1
+    ax = plots.plot_accuracy_map(amap)
+    Ts, Ps = np.asarray(pts.attrs["T_grid"]), np.asarray(pts.attrs["P_grid"])
+    dT, dlogP = np.diff(Ts).min(), np.diff(np.log(Ps)).min()
+    vertices = np.concatenate([p.vertices for c in ax.collections[1:] if hasattr(c, "get_paths")
+                               for p in c.get_paths() if len(p.vertices)] or [np.empty((0, 2))])
+    assert len(vertices) > 0
+    for T0, P0 in zip(differ["T"], differ["P"]):
+        # with the point left out, no contour comes nearer to it than the diagonal between its
+        # neighbours (matplotlib still contours the other half of each cell touching it)
+        near = np.abs(vertices[:, 0] - T0) / dT + np.abs(np.log(vertices[:, 1] / (P0 * 1e-5))) / dlogP < 0.95
+        assert not near.any()
+    matplotlib.pyplot.close("all")

@@ -303,7 +303,7 @@ def accuracy_map(fluid, models=("PR", "SRK"), T=None, P=None, *, quantity="v", n
     check_points(n)
     check_log(log)
     _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size)
-    if not getattr(fluid, "library_name", None):
+    if not fluid.library_name:
         raise InputError(f"Fluid {fluid.name!r} has no reference equation (no library_name); an accuracy map "
                          "needs a library fluid (get_fluid).")
     instances = resolve_models(fluid, models)

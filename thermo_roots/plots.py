@@ -124,7 +124,7 @@ def _temperature_text(T):
 
 
 def _has_reference(fluid):
-    return bool(getattr(fluid, "library_name", None))
+    return bool(fluid.library_name)
 
 
 def _note(ax, text):
@@ -558,8 +558,13 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
         # deviation jumps, and one contour of both would stack every level along it
         phase = pts.pivot_table(index="P", columns="T", values="phase_reference", aggfunc="first")
         phase = phase.reindex(index=Ps, columns=Ts).to_numpy()
+        # nor through a point where the model's phase differs (marked with a cross): its
+        # deviation measures where the saturation line lies, and every level would ring it
+        agree = (pts.assign(agree=pts["phase_model"] == pts["phase_reference"])
+                 .pivot_table(index="P", columns="T", values="agree", aggfunc="first")
+                 .reindex(index=Ps, columns=Ts).to_numpy() == True)  # noqa: E712 (NaN where no point)
         for side in (phase == "vapor", (phase == "liquid") | (phase == "supercritical")):
-            part = np.where(side, dev, np.nan)
+            part = np.where(side & agree, dev, np.nan)
             if np.sum(np.isfinite(part)) < 4:
                 continue
             levels = [x for x in STYLE["deviation_levels"] if np.nanmin(part) < x < np.nanmax(part)]
@@ -715,7 +720,7 @@ def _map_model_object(amap, index, label):
     """The model object the map was computed with, or None for a map that does not carry its
     models: then no model saturation curve is drawn rather than one rebuilt from a label,
     which would be another model's for a custom cubic."""
-    objects = getattr(amap, "model_objects", ())
+    objects = amap.model_objects
     return objects[index] if len(objects) == len(amap.models) else None
 
 
@@ -993,7 +998,7 @@ def _draw_step(ax, step, xy, caller):
     ax.annotate("", xy=(x1, y1), xytext=(x0, y0), gid="step:model", zorder=7,
                 arrowprops=dict(arrowstyle="-|>", color=st["color"], linewidth=st["linewidth"], mutation_scale=16,
                                 shrinkA=0, shrinkB=0))
-    if getattr(step, "isentropic_outlet", None) is not None:     # compressor, expander: the ideal machine too
+    if step.isentropic_outlet is not None:     # compressor, expander: the ideal machine too
         sx, sy = (float(a[0]) for a in xy(_state_columns(step.isentropic_outlet, M)))
         ax.plot([x0, sx], [y0, sy], color=st["color"], linewidth=1.0, linestyle=(0, (1, 1.5)), marker="x",
                 markevery=[1], markersize=7, zorder=7, gid="step:isentropic",
@@ -1012,7 +1017,7 @@ def _draw_step(ax, step, xy, caller):
 
     out = step.outlet
     text = f"outlet {float(out.T) - _ZERO_CELSIUS:.1f} °C, {float(out.P) * _BAR:.4g} bar"
-    if getattr(step, "isentropic_outlet", None) is not None:
+    if step.isentropic_outlet is not None:
         text += f"\nisentropic efficiency {step.efficiency:g}"
     if np.isfinite(float(out.quality)):
         text += f"\nquality {float(out.quality):.3f}"
@@ -1082,7 +1087,7 @@ def _step_footer(step, reference_drawn):
     reference's step is missing if it is (``reference_drawn`` False; True also where the
     whole overlay is off, which is said once), and the caution."""
     blocks = []
-    notes = [w for w in getattr(step, "warnings", ()) if w and "have no single value" not in w]
+    notes = [w for w in step.warnings if w and "have no single value" not in w]
     if notes:
         blocks.append(("Warning: " + " ".join(notes), "#a3123a"))
     if not reference_drawn:
