@@ -136,3 +136,19 @@ def test_state_tables_carry_the_caloric_cross_check():
 
 def test_fill_point_asks_the_model_whether_it_has_saturation():
     assert sw.fill_point(tr.IdealGas(tr.get_fluid("CO2")), 1e-4) is None
+
+
+def test_isenthalp_reference_over_workers_and_csv_round_trip(pr_propane, valve, tmp_path):
+    from concurrent.futures import ThreadPoolExecutor
+
+    inlet, serial = valve
+    with ThreadPoolExecutor(2) as pool:
+        spread = sw.isenthalp(pr_propane, inlet=inlet, P=("10 bar", "2 bar"), n=9, reference=True, progress=False,
+                              executor=pool, chunk_size=2)
+    np.testing.assert_allclose(spread["reference_T"], serial["reference_T"], rtol=1e-12)
+    path = tmp_path / "valve.csv"
+    sw.to_csv(spread, path)
+    back = sw.read_csv(path)
+    np.testing.assert_allclose(back["deviation_T_K"], spread["deviation_T_K"], rtol=1e-12)
+    assert back.attrs["reference_h"] == pytest.approx(spread.attrs["reference_h"], rel=1e-15)
+    assert list(back["reference_phase"]) == list(spread["reference_phase"])

@@ -1,5 +1,7 @@
 """Layer 7: sweeps of many states into pandas tables, with the reference beside them.
 
+Along an isotherm, an isobar, an isochore (a closed vessel heated), a (T, P) grid, the
+saturation curve, an isenthalp (a valve's path) and an isentrope (an ideal compressor's).
 Every function returns a :class:`pandas.DataFrame`, one row per state. Conventions:
 
 * Column names are plain (``T``, ``P``, ``v``, ``rho_mass``, ``reference_v``,
@@ -17,8 +19,13 @@ Every function returns a :class:`pandas.DataFrame`, one row per state. Conventio
   units); a tuple ``(start, stop)`` or :func:`between` gives ``n`` evenly spaced values
   (logarithmically for pressures and volumes, linearly for temperatures, unless
   ``log=`` says otherwise); a single number or text is one value.
+* Where the fluid has ideal-gas data the tables carry the caloric columns h, s, u, cp, cv,
+  w, mu_jt, kappa_T (molar, SI; :data:`CALORIC_COLUMNS`), and with the reference its h, s,
+  cp, w and the deviations (``deviation_h`` [J/mol], ``deviation_s`` [J/(mol K)], the
+  others in %).
 * ``reference=True`` adds the cross-check with the reference equation per state
-  (see :func:`thermo_roots.reference.cross_check`): ``progress`` shows a bar,
+  (see :func:`thermo_roots.reference.cross_check`; for an isenthalp or an isentrope the
+  reference equation's own (P, h) or (P, s) solve instead): ``progress`` shows a bar,
   ``executor`` spreads the work over threads, processes or a cluster's workers (any
   :class:`concurrent.futures.Executor`, e.g. a Dask client's ``get_executor()``), and an interruption (Ctrl-C, the
   notebook's stop button) returns the rows finished so far with
