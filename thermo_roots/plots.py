@@ -795,6 +795,99 @@ def plot_isochore(frame, ax=None):
     return ax
 
 
+# --------------------------------------------------------------------------- isenthalp and isentrope
+
+def plot_energy_path(frame, ax=None):
+    """Temperature against pressure along an isenthalp (a valve) or an isentrope (an ideal
+    compressor or expander), the model and, where the table has them, the reference
+    equation's own (P, h) or (P, s) states; vapor quality on the right where a part is
+    two-phase.
+
+    Takes the table of :func:`thermo_roots.sweeps.isenthalp` or
+    :func:`thermo_roots.sweeps.isentrope`. The first row is marked as the start.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+    ax : matplotlib Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The temperature axes; the quality axes, when drawn, is its twin on the right.
+    """
+    a = frame.attrs
+    kind = "h" if "h" in a and "isenthalp" in str(a.get("table", "")) else "s" if "s" in a else None
+    if kind is None or "T" not in frame or "P" not in frame:
+        raise InputError("plot_energy_path takes the table of sweeps.isenthalp or sweeps.isentrope "
+                         "(it needs the columns T and P and attrs['h'] or attrs['s']).")
+    ax = _new_axes(ax, size=(8.0, 5.6))
+    st = model_style(0)
+    label = a.get("model_short_name") or a.get("model", "model")
+    P, T = frame["P"].to_numpy(dtype=float), frame["T"].to_numpy(dtype=float)
+    ax.plot(P * _BAR, T, color=st["color"], linestyle=st["linestyle"], linewidth=st["linewidth"],
+            marker=st["marker"], markersize=4, markerfacecolor="white", label=f"temperature, {label}", gid="model")
+    ax.plot(P[:1] * _BAR, T[:1], label=f"start: {P[0] * _BAR:.4g} bar, {_temperature_text(T[0])}", gid="start",
+            **STYLE["fill_point"])
+    has_reference = "reference_T" in frame
+    if has_reference:
+        ok = frame["reference_available"].to_numpy(dtype=bool)
+        ax.plot(P[ok] * _BAR, frame["reference_T"].to_numpy(dtype=float)[ok], label="temperature, reference "
+                "equation (its own solve)", gid="reference", **STYLE["reference"])
+        if not ok.any():
+            _note(ax, f"reference unavailable: {frame['reference_reason'].iloc[0]}")
+    T_triple = (a.get("fluid_constants") or {}).get("T_triple")
+    if T_triple and np.nanmin(T) < T_triple:
+        # below the triple point the real fluid freezes (dry ice for CO2) and may block the line
+        limits = ax.get_ylim()
+        ax.axhspan(0.0, T_triple, color="#dfe9f5", zorder=0, gid="below-triple-point",
+                   label=f"below the triple point, {T_triple:.5g} K: solid may form (not modelled)")
+        ax.axhline(T_triple, color="#4a6fa5", linewidth=1.0, zorder=1)
+        ax.set_ylim(*limits)
+    quality = frame["quality"].to_numpy(dtype=float)
+    extra = []
+    if np.isfinite(quality).any():
+        q_ax = ax.twinx()
+        q_ax.plot(P * _BAR, quality, label=f"vapor quality, {label}", gid="quality", **STYLE["quality"])
+        if has_reference:
+            q_ax.plot(P * _BAR, frame["reference_quality"].to_numpy(dtype=float), color="black", linewidth=0.9,
+                      linestyle=(0, (1, 1)), label="vapor quality, reference", gid="reference-quality")
+        q_ax.set_ylim(0.0, _quality_top(np.concatenate([quality, frame["reference_quality"].to_numpy(dtype=float)])
+                                        if has_reference else quality))
+        q_ax.set_ylabel("Vapor quality [-] (dotted)")
+        extra = list(zip(*q_ax.get_legend_handles_labels()))
+    if P.min() > 0 and P.max() / P.min() > 5:
+        ax.set_xscale("log")
+        plain_log_ticks(ax.xaxis)
+    ax.set_xlabel("Pressure P [bar]" + (" (log scale)" if ax.get_xscale() == "log" else ""))
+    ax.set_ylabel("Temperature T [K]")
+    if extra:       # the right side holds the quality: the °C scale goes left of the kelvin one
+        sec = ax.secondary_yaxis(-0.13, functions=(lambda k: k - _ZERO_CELSIUS, lambda c: c + _ZERO_CELSIUS))
+        sec.set_ylabel("Temperature [°C]")
+    else:
+        _celsius_axis(ax, "y")
+    ax.grid(True, which="both", color="0.92")
+    value = float(a[kind])
+    M = (a.get("fluid_constants") or {}).get("molar_mass")
+    if kind == "h":
+        what = "isenthalp (valve, expansion device)"
+        text = f"h = {value / 1e3:.5g} kJ/mol" + (f" = {value / M / 1e3:.5g} kJ/kg" if M else "")
+    else:
+        what = "isentrope (ideal compressor or expander)"
+        text = f"s = {value:.5g} J/(mol K)" + (f" = {value / M / 1e3:.5g} kJ/(kg K)" if M else "")
+    compared = frame[np.isfinite(frame["deviation_T_K"])] if has_reference else frame.iloc[:0]
+    if len(compared) > 1:
+        end = compared.iloc[-1]         # the last state both sides have
+        text += (f"\nat {end['P'] * _BAR:.4g} bar: {label} {end['T'] - _ZERO_CELSIUS:.2f} °C, reference "
+                 f"{end['reference_T'] - _ZERO_CELSIUS:.2f} °C (model − reference {end['deviation_T_K']:+.2f} K)")
+    ax.set_title(f"{a.get('fluid', '')} — {label}: {what}\n{text}")
+    legend = _deduplicated_legend(ax, extra=extra, loc="upper center", bbox_to_anchor=(0.5, -0.12), ncol=2,
+                                  fontsize=8, frameon=False)
+    rows = -(-len(legend.get_texts()) // 2)
+    height_pt = ax.get_position().height * ax.figure.get_figheight() * 72.0
+    _caution(ax, y=-0.15 - rows * 16.0 / height_pt)
+    return ax
+
 # --------------------------------------------------------------------------- P–h and T–s diagrams
 
 #: Lines of the two property diagrams (kept apart from :data:`STYLE`, which the other plots share).

@@ -11,7 +11,8 @@ Every function returns a :class:`pandas.DataFrame`, one row per state. Conventio
 * ``frame.attrs`` also records ``fluid`` (name), ``fluid_constants`` (Tc [K], Pc [Pa],
   omega, molar_mass [kg/mol], library_name), ``model`` (name), ``model_short_name``,
   ``volume_shift`` [m^3/mol], ``table`` (what sweep), ``version`` (of thermo_roots),
-  ``caution`` and ``interrupted``; with the reference, ``reference_warnings`` when the
+  ``caution``, ``interrupted`` and ``warnings`` (the solve's sentences, e.g. states below
+  the triple point where solid may form); with the reference, ``reference_warnings`` when the
   fluid's constants differ from its reference equation's (also issued as a warning).
 * Arguments are checked before any work: ``n`` a whole number of at least 2, ``log``
   None, True or False, ``reference`` True or False, ``model`` a model built for a fluid.
@@ -200,7 +201,7 @@ def _attrs(model, table: str, **extra) -> dict:
         "table": table,
         "fluid": fluid.name,
         "fluid_constants": {"Tc": fluid.Tc, "Pc": fluid.Pc, "omega": fluid.omega, "molar_mass": fluid.molar_mass,
-                            "library_name": fluid.library_name},
+                            "library_name": fluid.library_name, "T_triple": fluid.T_triple},
         "model": model.name,
         "model_short_name": model.short_name,
         "volume_shift": float(model.c),
@@ -273,6 +274,7 @@ def state_frame(state, *, reference=False, progress="auto", executor=None, chunk
             data[name] = np.atleast_1d(np.asarray(getattr(state, name), dtype=float)).ravel()
     frame = pd.DataFrame(data)
     attrs = _attrs(state.model, table, **(extra_attrs or {}))
+    attrs["warnings"] = list(state.warnings)     # e.g. below the triple point: solid may form
     if reference:
         check = cross_check(state, progress=progress, executor=executor, chunk_size=chunk_size,
                             on_interrupt="partial")
