@@ -23,7 +23,7 @@ def propane():
 
 @pytest.fixture(scope="module")
 def maps(propane):
-    return {q: acc.accuracy_map(propane, ["PR", "SRK"], quantity=q, **GRID) for q in ("v", "h", "cp", "w")}
+    return {q: acc.accuracy_map(propane, ["PR", "SRK"], quantity=q, **GRID) for q in ("v", "h", "s", "cp", "w")}
 
 
 @pytest.mark.parametrize("quantity", ["cp", "w"])
@@ -79,6 +79,18 @@ def test_h_map_equals_the_cross_checks_difference(maps, propane):
     np.testing.assert_allclose(sample["deviation"], check.deviation_h / propane.molar_mass / 1e3, rtol=1e-10)
 
 
+def test_s_map_is_the_cross_checks_difference_per_kilogram(maps, propane):
+    pts = maps["s"].points
+    assert pts.attrs["deviation_unit"] == "J/(kg K)" and "deviation_percent" not in pts
+    sample = pts[pts["model"] == "PR"].iloc[::4]
+    check = cross_check(tr.solve(tr.PengRobinson(propane), T=sample["T"].to_numpy(), P=sample["P"].to_numpy()),
+                        with_saturation=False)
+    np.testing.assert_allclose(sample["deviation"], check.deviation_s / propane.molar_mass, rtol=1e-10)
+    row = pts.iloc[2]
+    s_ref = CP.PropsSI("Smolar", "T", row["T"], "P", row["P"], "HEOS::Propane")     # CoolProp directly
+    assert row["s_reference"] == pytest.approx(s_ref, rel=1e-9)
+
+
 def test_v_map_keeps_its_columns(maps):
     amap = maps["v"]
     assert tuple(amap.points.columns) == acc.POINT_COLUMNS and amap.quantity == "v"
@@ -87,7 +99,7 @@ def test_v_map_keeps_its_columns(maps):
 
 @pytest.mark.parametrize("bad", ["rho", "H", "", None, 3])
 def test_unknown_quantities_are_refused_with_the_allowed_list(bad):
-    with pytest.raises(tr.InputError, match="allowed: 'v', 'h', 'cp', 'w'"):
+    with pytest.raises(tr.InputError, match="allowed: 'v', 'h', 's', 'cp', 'w'"):
         acc.accuracy_map("propane", ["PR"], T=[300.0], P=[1e5], quantity=bad)
 
 
@@ -102,6 +114,7 @@ def test_h_map_needs_the_reference_equations_zero(propane):
 
 @pytest.mark.parametrize("quantity, words", [("v", "Molar volume deviation [%]"),
                                              ("h", "Enthalpy, model − reference [kJ/kg]"),
+                                             ("s", "Entropy, model − reference [J/(kg K)]"),
                                              ("cp", "Isobaric heat capacity deviation [%]"),
                                              ("w", "Speed of sound deviation [%]")])
 def test_colour_bar_and_titles_name_the_quantity(maps, quantity, words):

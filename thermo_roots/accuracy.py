@@ -2,8 +2,8 @@
 
 :func:`accuracy_map` solves every model on one (T, P) grid, evaluates the fluid's
 reference equation once on the same grid, and returns the deviations of one quantity
-(``quantity=``: the molar volume, the enthalpy, the isobaric heat capacity or the speed of
-sound) point by point and summarised per region.
+(``quantity=``: the molar volume, the enthalpy, the entropy, the isobaric heat capacity or
+the speed of sound) point by point and summarised per region.
 
 How each quantity's deviation is measured (:data:`MEASURES`):
 
@@ -14,10 +14,12 @@ How each quantity's deviation is measured (:data:`MEASURES`):
   grow without bound there and change with the choice of zero, while the difference does
   neither: with the model on the reference equation's own zero (the default) and the same
   ideal-gas part, it is the cubic's error in the residual (departure) enthalpy.
+* s: likewise the difference per kilogram, in J/(kg K) (an error of 5 kJ/kg in h at 300 K
+  goes with about 17 J/(kg K) in s).
 
 The summary's ``percent_within_1`` and ``percent_within_5`` are the percentage of a region's
 points within 1 and 5 of the measure's unit: 1 % and 5 % for v, cp, w; 1 kJ/kg and 5 kJ/kg
-for h.
+for h; 1 and 5 J/(kg K) for s.
 
 References
 ----------
@@ -54,7 +56,7 @@ class Measure:
     Attributes
     ----------
     quantity : str
-        A name of the table of quantities ("v", "h", "cp", "w").
+        A name of the table of quantities ("v", "h", "s", "cp", "w").
     what : str
         The quantity in words, for titles ("molar volume").
     relative : bool
@@ -93,6 +95,7 @@ class Measure:
 MEASURES = {
     "v": Measure("v", "molar volume", True, "%", sign="+ : model volume too large, density too low"),
     "h": Measure("h", "enthalpy", False, "kJ/kg", 1e-3, sign="+ : model enthalpy too high"),
+    "s": Measure("s", "entropy", False, "J/(kg K)", 1.0, sign="+ : model entropy too high"),
     "cp": Measure("cp", "isobaric heat capacity", True, "%", sign="+ : model cp too large"),
     "w": Measure("w", "speed of sound", True, "%", sign="+ : model speed of sound too high"),
 }
@@ -103,8 +106,8 @@ def measure(quantity) -> Measure:
     if isinstance(quantity, str) and quantity in MEASURES:
         return MEASURES[quantity]
     raise InputError(f"quantity={quantity!r} is not one an accuracy map measures; allowed: "
-                     f"{', '.join(map(repr, MEASURES))} (molar volume, enthalpy, isobaric heat capacity, "
-                     "speed of sound). Try quantity='cp'.")
+                     f"{', '.join(map(repr, MEASURES))} (molar volume, enthalpy, entropy, isobaric heat "
+                     "capacity, speed of sound). Try quantity='cp'.")
 
 
 def point_columns(quantity: str = "v") -> tuple:
@@ -206,7 +209,7 @@ class AccuracyMap:
     model_objects : tuple
         The models themselves, in the same order (plots draw their saturation curves).
     quantity : str
-        The quantity mapped ("v", "h", "cp", "w"); :attr:`measure` says how.
+        The quantity mapped ("v", "h", "s", "cp", "w"); :attr:`measure` says how.
     """
 
     fluid: Fluid
@@ -274,11 +277,11 @@ def accuracy_map(fluid, models=("PR", "SRK"), T=None, P=None, *, quantity="v", n
         default from 0.5 Tc or the triple point, whichever is higher, to 1.5 Tc.
     P : range, optional
         Pressures [Pa]; default Pc/100 to 3 Pc, logarithmic.
-    quantity : {"v", "h", "cp", "w"}
-        What to compare: molar volume (default), enthalpy, isobaric heat capacity or speed of
-        sound; the deviation is in % for v, cp, w and in kJ/kg for h (see :data:`MEASURES`).
-        For h the models must keep the reference equation's own zero (``reference_state=
-        "reference"``, the default).
+    quantity : {"v", "h", "s", "cp", "w"}
+        What to compare: molar volume (default), enthalpy, entropy, isobaric heat capacity or
+        speed of sound; the deviation is in % for v, cp, w, in kJ/kg for h and in J/(kg K)
+        for s (see :data:`MEASURES`). For h and s the models must keep the reference
+        equation's own zero (``reference_state="reference"``, the default).
     n : int
         Points per (start, stop) range.
     log : bool, optional

@@ -31,7 +31,7 @@ class AccuracyPanel(w.VBox):
         Pressure range, text with units or pascal; the grid is logarithmic in pressure.
     n_T, n_P : int
         Grid points in temperature and in pressure.
-    quantity : {"v", "h", "cp", "w"}
+    quantity : {"v", "h", "s", "cp", "w"}
         The quantity mapped first (the selector ``quantity`` changes it): molar volume,
         enthalpy, isobaric heat capacity or speed of sound; see
         :data:`thermo_roots.accuracy.MEASURES` for how each deviation is measured.
@@ -191,8 +191,8 @@ class AccuracyPanel(w.VBox):
         best_rows = [(str(region), str(r.model), fmt(r.mean_abs_deviation, 3)) for region, r in best.iterrows()]
         what = how.what[:1].upper() + how.what[1:]
         measured = ("100 (model − reference) / reference" if how.relative else
-                    "model − reference per kilogram (an enthalpy's zero is a convention, so a percentage of it "
-                    "would mean nothing)")
+                    f"model − reference per kilogram (the zero of {how.what} is a convention, so a percentage "
+                    "of it would mean nothing)")
         self.summary.value = block(
             table(rows, header=("model", "region", "points", "wrong phase", f"mean |dev| [{unit}]",
                                 f"max |dev| [{unit}]", f"within 1 {unit}", f"within 5 {unit}"),
