@@ -707,13 +707,19 @@ def saturation_curve(model, T=None, *, n=DEFAULT_POINTS, log=None, reference=Fal
     reference : bool
         Add reference_P, reference_v_liquid, reference_v_vapor, reference_rho_mass_liquid,
         reference_rho_mass_vapor, deviation_P_percent, deviation_rho_liquid_percent,
-        deviation_rho_vapor_percent, reference_available and reference_reason.
+        deviation_rho_vapor_percent, reference_available and reference_reason; where the
+        fluid has ideal-gas data also reference_h_liquid, reference_h_vapor,
+        reference_h_vaporization, reference_s_liquid, reference_s_vapor,
+        deviation_h_vaporization_percent (the latent heat; it falls to zero at Tc, so the
+        percentage grows there).
 
     Returns
     -------
     pandas.DataFrame
         Columns T, P (saturation pressure), v_liquid, v_vapor, rho_mass_liquid,
-        rho_mass_vapor, Z_liquid, Z_vapor.
+        rho_mass_vapor, Z_liquid, Z_vapor; where the fluid has ideal-gas data (a library
+        fluid, or ``cp0=``) also h_liquid, h_vapor, h_vaporization (the latent heat,
+        h_vapor - h_liquid) [J/mol], s_liquid, s_vapor [J/(mol K)].
 
     References
     ----------
@@ -729,6 +735,13 @@ def saturation_curve(model, T=None, *, n=DEFAULT_POINTS, log=None, reference=Fal
     v_l, v_v, P = (np.atleast_1d(np.asarray(x, dtype=float)) for x in (sat.v_liquid, sat.v_vapor, sat.P))
     frame = pd.DataFrame({"T": Ts, "P": P, "v_liquid": v_l, "v_vapor": v_v, "rho_mass_liquid": M / v_l,
                           "rho_mass_vapor": M / v_v, "Z_liquid": P * v_l / (R * Ts), "Z_vapor": P * v_v / (R * Ts)})
+    caloric = fluid.ideal_gas is not None
+    if caloric:
+        ends = [solve(model, T=Ts, quality=np.full(Ts.shape, q)) for q in (0.0, 1.0)]
+        for side, st in zip(("liquid", "vapor"), ends):
+            frame[f"h_{side}"] = np.atleast_1d(np.asarray(st.h, dtype=float))
+            frame[f"s_{side}"] = np.atleast_1d(np.asarray(st.s, dtype=float))
+        frame["h_vaporization"] = frame["h_vapor"] - frame["h_liquid"]
     if reference:
         ref = reference_saturation(fluid, T=Ts)
         r_vl, r_vv, r_P = (np.atleast_1d(np.asarray(x, dtype=float)) for x in (ref.v_liquid, ref.v_vapor, ref.P))
@@ -739,6 +752,16 @@ def saturation_curve(model, T=None, *, n=DEFAULT_POINTS, log=None, reference=Fal
             frame["deviation_P_percent"] = 100.0 * (P / r_P - 1.0)
             frame["deviation_rho_liquid_percent"] = 100.0 * (r_vl / v_l - 1.0)
             frame["deviation_rho_vapor_percent"] = 100.0 * (r_vv / v_v - 1.0)
+        if caloric:
+            sides = [reference_state(fluid, T=Ts, quality=np.full(Ts.shape, q), with_saturation=False)
+                     for q in (0.0, 1.0)]
+            for side, rs in zip(("liquid", "vapor"), sides):
+                frame[f"reference_h_{side}"] = np.atleast_1d(np.asarray(rs.h, dtype=float))
+                frame[f"reference_s_{side}"] = np.atleast_1d(np.asarray(rs.s, dtype=float))
+            frame["reference_h_vaporization"] = frame["reference_h_vapor"] - frame["reference_h_liquid"]
+            with np.errstate(invalid="ignore", divide="ignore"):
+                frame["deviation_h_vaporization_percent"] = 100.0 * (frame["h_vaporization"] /
+                                                                    frame["reference_h_vaporization"] - 1.0)
         frame["reference_available"] = np.atleast_1d(ref.available)
         frame["reference_reason"] = np.atleast_1d(np.asarray(ref.reason, dtype=object))
     return _finish(frame, _attrs(model, "saturation curve"))
