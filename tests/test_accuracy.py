@@ -41,7 +41,7 @@ def _mean(amap, label_start, region="liquid"):
     exact = rows[rows["model"] == label_start]
     row = exact if len(exact) else rows
     assert len(row) == 1, (label_start, list(s["model"]))
-    return float(row["mean_abs_percent"].iloc[0])
+    return float(row["mean_abs_deviation"].iloc[0])
 
 
 def test_points_columns_units_and_values():
@@ -66,7 +66,7 @@ def test_points_columns_units_and_values():
     best = amap.best_by_region()
     assert set(best.index) <= set(acc.REGIONS)
     liquid = s[s["region"] == "liquid"]
-    assert best.loc["liquid", "model"] == liquid.loc[liquid["mean_abs_percent"].idxmin(), "model"]
+    assert best.loc["liquid", "model"] == liquid.loc[liquid["mean_abs_deviation"].idxmin(), "model"]
     assert "Caution" in amap._repr_html_()
 
 
@@ -149,9 +149,9 @@ def test_summary_shares_and_disagreements_are_consistent(maps):
         within_1 = ((part["deviation_percent"].abs() <= 1.0) & agree).mean()
         assert row["percent_within_1"] == pytest.approx(100.0 * within_1)
         assert 0.0 <= row["percent_within_1"] <= row["percent_within_5"] <= 100.0
-        assert row["max_abs_percent"] >= row["mean_abs_percent"]
+        assert row["max_abs_deviation"] >= row["mean_abs_deviation"]
     assert isinstance(amap.best_by_region(), pd.DataFrame)
-    assert np.isfinite(amap.summary["mean_abs_percent"]).all()
+    assert np.isfinite(amap.summary["mean_abs_deviation"]).all()
 
 
 def test_shares_are_percentages_a_person_can_read():
@@ -161,7 +161,7 @@ def test_shares_are_percentages_a_person_can_read():
     row = amap.summary.iloc[0]
     assert row["region"] == "vapor" and row["percent_within_1"] == pytest.approx(100.0)
     best = amap.best_by_region()
-    assert list(best.columns) == ["model", "mean_abs_percent", "percent_within_5", "points"]
+    assert list(best.columns) == ["model", "mean_abs_deviation", "percent_within_5", "points"]
     assert best.loc["vapor", "percent_within_5"] == pytest.approx(100.0)
     assert not any("within_5_percent" in c or "within_1_percent" in c for c in amap.summary.columns)
 

@@ -4,7 +4,8 @@ process step drawn on them.
 
 Every function takes ``ax=`` (a new figure when None) and returns the Axes. Display units,
 the same in every plot: pressure in bar, temperature in K with a °C scale alongside,
-molar volume in L/mol, density in kg/m³, deviations in percent. One style table,
+molar volume in L/mol, density in kg/m³, deviations in percent (an enthalpy's in kJ/kg, its
+zero being a convention). One style table,
 :data:`STYLE`, sets colours, line styles and markers; models differ by line style and
 marker as well as by colour, so the plots stay readable in greyscale.
 
@@ -30,7 +31,6 @@ from matplotlib.patches import Patch
 from .accuracy import model_label
 from .errors import InputError
 from .inversion import CAUTION, saturation, solve
-from .models import IdealGas
 from .reference import library_reason, reference_limits, reference_saturation, reference_state
 from .units import to_si
 
@@ -124,7 +124,7 @@ def _temperature_text(T):
 
 
 def _has_reference(fluid):
-    return bool(getattr(fluid, "library_name", None))
+    return bool(fluid.library_name)
 
 
 def _note(ax, text):
@@ -245,14 +245,14 @@ def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=N
     """
     models, fluid, labels, ax = _prepare(model, ax, size=(10.0, 5.4))   # room for the legend on the right
     T = float(to_si(T, "T"))
-    cubic = [m for m in models if not isinstance(m, IdealGas)]
+    cubic = [m for m in models if m.has_saturation]
     subcritical = T < fluid.Tc and bool(cubic)
     sats = {id(m): saturation(m, T=T) for m in cubic} if subcritical else {}
     if v_range is None:
         v_lo = 1.02 * max(m.v_min for m in models) if cubic else 1e-5
         if v_lo <= 0:
             v_lo = 1e-5
-        v_c = max(getattr(m, "v_c", 0.0) for m in models) or 8.314 * fluid.Tc / fluid.Pc / 3
+        v_c = max(m.v_c for m in models) or 8.314 * fluid.Tc / fluid.Pc / 3
         v_hi = max([40.0 * v_c] + [3.0 * s.v_vapor for s in sats.values()])
         if P_marker is not None:
             v_hi = max(v_hi, 3.0 * 8.314462618 * T / float(to_si(P_marker, "P")))
@@ -266,7 +266,7 @@ def plot_isotherm(model, T, *, P_marker=None, reference=True, ax=None, v_range=N
             P = np.where(v > m.v_min, m.pressure(T, v), np.nan)
         ax.plot(v * _LITRE, P * _BAR, color=style["color"], linestyle=style["linestyle"],
                 linewidth=style["linewidth"], label=f"{label} isotherm", gid=f"isotherm:{label}")
-        if isinstance(m, IdealGas):
+        if not m.has_saturation:
             continue
         _draw_dome(ax, m, label, style)
         if subcritical:
@@ -374,7 +374,7 @@ def plot_saturation_curve(model, ax=None, *, T=None, reference=True, n=80):
     lo, hi = (lo, fluid.Tc) if T is None else (float(to_si(T[0], "T")), float(to_si(T[1], "T")))
     Ts = np.linspace(lo, hi, n)
     for i, (m, label) in enumerate(zip(models, labels)):
-        if isinstance(m, IdealGas):
+        if not m.has_saturation:
             continue
         st = model_style(i)
         P = saturation(m, T=Ts).P
@@ -507,10 +507,12 @@ def _last_finite(x, y):
 
 def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours=True, norm=None,
                       colorbar=True, title=None, legend=True):
-    """Heat map of the molar-volume deviation from the reference over temperature and pressure.
+    """Heat map of one quantity's deviation from the reference over temperature and pressure.
 
-    Diverging colours centred at zero (red: the model's volume too large, density too low;
-    blue: too small), labelled contour lines at ±1, 2, 5, 10, 20 %, grey where the
+    The quantity is the map's (``accuracy_map(..., quantity=)``: molar volume, enthalpy,
+    isobaric heat capacity, speed of sound). Diverging colours centred at zero (red: the
+    model's value too large, for v its density too low; blue: too small), labelled contour
+    lines at ±1, 2, 5, 10, 20 of the deviation's unit (% or kJ/kg), grey where the
     reference gives no single-phase value, crosses where the model's phase differs from
     the reference's, and the saturation curves of the reference and the model on top.
 
@@ -521,7 +523,8 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
         Which model's label (or position); default the first.
     ax : matplotlib Axes, optional
     limit : float, optional
-        Colour limits ±limit [%]; default the 95th percentile of |deviation|, at least 1 %.
+        Colour limits ±limit [the deviation's unit: % or kJ/kg]; default the 95th percentile of
+        |deviation|, at least 1.
     contours : bool
         Draw the labelled contour lines.
     norm : matplotlib.colors.Normalize, optional
@@ -549,21 +552,27 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
     mesh = ax.pcolormesh(_edges(Ts, False), _edges(Ps, log_P) * _BAR, np.ma.masked_invalid(dev),
                          cmap=STYLE["colormap"], norm=norm, shading="flat", gid=f"deviation:{label}")
     if colorbar:
-        _deviation_colorbar(ax.figure, mesh, ax)
+        _deviation_colorbar(ax.figure, mesh, ax, amap)
     if contours and Ts.size > 2 and Ps.size > 2:
         # contour the vapor side and the dense side apart: across the saturation line the
         # deviation jumps, and one contour of both would stack every level along it
         phase = pts.pivot_table(index="P", columns="T", values="phase_reference", aggfunc="first")
         phase = phase.reindex(index=Ps, columns=Ts).to_numpy()
+        # nor through a point where the model's phase differs (marked with a cross): its
+        # deviation measures where the saturation line lies, and every level would ring it
+        agree = (pts.assign(agree=pts["phase_model"] == pts["phase_reference"])
+                 .pivot_table(index="P", columns="T", values="agree", aggfunc="first")
+                 .reindex(index=Ps, columns=Ts).to_numpy() == True)  # noqa: E712 (NaN where no point)
         for side in (phase == "vapor", (phase == "liquid") | (phase == "supercritical")):
-            part = np.where(side, dev, np.nan)
+            part = np.where(side & agree, dev, np.nan)
             if np.sum(np.isfinite(part)) < 4:
                 continue
             levels = [x for x in STYLE["deviation_levels"] if np.nanmin(part) < x < np.nanmax(part)]
             if levels:
                 lines = ax.contour(Ts, Ps * _BAR, np.ma.masked_invalid(part), levels=levels, colors="black",
                                    linewidths=0.6)
-                ax.clabel(lines, fmt=lambda x: f"{x:+g} %", fontsize=7)
+                unit = " %" if _map_measure(amap).relative else ""    # kJ/kg: the colour bar says it
+                ax.clabel(lines, fmt=lambda x: f"{x:+g}{unit}", fontsize=7)
     differ = pts[pts["phase_model"] != pts["phase_reference"]]
     extra = []
     if len(differ):
@@ -582,7 +591,7 @@ def plot_accuracy_map(accuracy_map, model=None, ax=None, *, limit=None, contours
     ax.set_ylabel("Pressure P [bar]" + (" (log scale)" if log_P else ""))
     _celsius_axis(ax)
     ax.set_title(title if title is not None else
-                 f"{amap.fluid.name} — {label}: deviation of molar volume from the reference equation")
+                 f"{amap.fluid.name} — {label}: deviation of {_map_measure(amap).what} from the reference equation")
     if legend:
         _deduplicated_legend(ax, extra=extra, loc="upper center", bbox_to_anchor=(0.5, -0.11), ncol=3,
                              fontsize=7.5, frameon=False)
@@ -604,8 +613,8 @@ def plot_accuracy_maps(accuracy_map, models=None, *, figure=None, limit=None, co
     figure : matplotlib Figure, optional
         Drawn into (cleared first); default a new figure sized for the maps.
     limit : float, optional
-        Colour limits ±limit [%]; default the 95th percentile of |deviation| over all the
-        maps shown, at least 1 %.
+        Colour limits ±limit [the deviation's unit: % or kJ/kg]; default the 95th percentile of
+        |deviation| over all the maps shown, at least 1.
     contours : bool
     ncols : int
         Maps per row.
@@ -635,8 +644,9 @@ def plot_accuracy_maps(accuracy_map, models=None, *, figure=None, limit=None, co
         plot_accuracy_map(amap, label, ax=ax, contours=contours, norm=norm, colorbar=False, legend=False,
                           title=label)
     used = axes[:len(chosen)]
-    _deviation_colorbar(figure, used[0].collections[0], used)
-    figure.suptitle(f"{amap.fluid.name} — deviation of the models' molar volume from the reference equation")
+    _deviation_colorbar(figure, used[0].collections[0], used, amap)
+    figure.suptitle(f"{amap.fluid.name} — deviation of the models' {_map_measure(amap).what} from the reference "
+                    "equation")
     entries = {}
     for ax in used:
         handles, names = ax.get_legend_handles_labels()
@@ -664,25 +674,31 @@ def _map_model(amap, model):
 
 
 def _deviation_grid(amap, label):
-    """(the model's points, its deviation [%] on the map's (P, T) grid, NaN where none)."""
+    """(the model's points, its deviation [the measure's unit] on the map's (P, T) grid, NaN where none)."""
     pts = amap.points[amap.points["model"] == label]
     Ts, Ps = np.asarray(amap.points.attrs["T_grid"]), np.asarray(amap.points.attrs["P_grid"])
-    grid = pts.pivot_table(index="P", columns="T", values="deviation_percent").reindex(index=Ps, columns=Ts)
+    grid = pts.pivot_table(index="P", columns="T", values="deviation").reindex(index=Ps, columns=Ts)
     return pts, grid.to_numpy()
 
 
 def _deviation_norm(grids, limit=None):
-    """Diverging colour scale centred at 0, ±limit [%] (default the 95th percentile of |dev|)."""
+    """Diverging colour scale centred at 0, ±limit (default the 95th percentile of |dev|, at least 1)."""
     if limit is None:
         finite = np.abs(np.concatenate([g[np.isfinite(g)] for g in grids]))
         limit = max(1.0, float(np.percentile(finite, 95))) if finite.size else 1.0
     return mcolors.TwoSlopeNorm(vcenter=0.0, vmin=-limit, vmax=limit)
 
 
-def _deviation_colorbar(figure, mesh, axes):
+def _deviation_colorbar(figure, mesh, axes, amap):
+    how = _map_measure(amap)
     bar = figure.colorbar(mesh, ax=axes, extend="both")
-    bar.set_label("Molar volume deviation from reference [%]\n(+ : model volume too large, density too low)")
+    bar.set_label(f"{how.label}\n({how.sign})")
     return bar
+
+
+def _map_measure(amap):
+    """The map's :class:`~thermo_roots.accuracy.Measure`."""
+    return amap.measure
 
 
 def _saturation_overlay(ax, amap, index, label, Ts):
@@ -693,7 +709,7 @@ def _saturation_overlay(ax, amap, index, label, Ts):
     ref = reference_saturation(fluid, T=Tsat)
     ax.plot(Tsat, np.asarray(ref.P) * _BAR, label="saturation, reference", **_outlined(**STYLE["reference"]))
     m = _map_model_object(amap, index, label)
-    if m is not None and not isinstance(m, IdealGas):
+    if m is not None and m.has_saturation:
         st = model_style(index)
         ax.plot(Tsat, saturation(m, T=Tsat).P * _BAR, label=f"saturation, {label}", gid=f"saturation:{label}",
                 **_outlined(color=st["color"], linestyle=st["linestyle"], linewidth=1.6))
@@ -704,7 +720,7 @@ def _map_model_object(amap, index, label):
     """The model object the map was computed with, or None for a map that does not carry its
     models: then no model saturation curve is drawn rather than one rebuilt from a label,
     which would be another model's for a custom cubic."""
-    objects = getattr(amap, "model_objects", ())
+    objects = amap.model_objects
     return objects[index] if len(objects) == len(amap.models) else None
 
 
@@ -778,6 +794,99 @@ def plot_isochore(frame, ax=None):
     _caution(ax, y=-0.15 - rows * 16.0 / height_pt)
     return ax
 
+
+# --------------------------------------------------------------------------- isenthalp and isentrope
+
+def plot_energy_path(frame, ax=None):
+    """Temperature against pressure along an isenthalp (a valve) or an isentrope (an ideal
+    compressor or expander), the model and, where the table has them, the reference
+    equation's own (P, h) or (P, s) states; vapor quality on the right where a part is
+    two-phase.
+
+    Takes the table of :func:`thermo_roots.sweeps.isenthalp` or
+    :func:`thermo_roots.sweeps.isentrope`. The first row is marked as the start.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+    ax : matplotlib Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The temperature axes; the quality axes, when drawn, is its twin on the right.
+    """
+    a = frame.attrs
+    kind = "h" if "h" in a and "isenthalp" in str(a.get("table", "")) else "s" if "s" in a else None
+    if kind is None or "T" not in frame or "P" not in frame:
+        raise InputError("plot_energy_path takes the table of sweeps.isenthalp or sweeps.isentrope "
+                         "(it needs the columns T and P and attrs['h'] or attrs['s']).")
+    ax = _new_axes(ax, size=(8.0, 5.6))
+    st = model_style(0)
+    label = a.get("model_short_name") or a.get("model", "model")
+    P, T = frame["P"].to_numpy(dtype=float), frame["T"].to_numpy(dtype=float)
+    ax.plot(P * _BAR, T, color=st["color"], linestyle=st["linestyle"], linewidth=st["linewidth"],
+            marker=st["marker"], markersize=4, markerfacecolor="white", label=f"temperature, {label}", gid="model")
+    ax.plot(P[:1] * _BAR, T[:1], label=f"start: {P[0] * _BAR:.4g} bar, {_temperature_text(T[0])}", gid="start",
+            **STYLE["fill_point"])
+    has_reference = "reference_T" in frame
+    if has_reference:
+        ok = frame["reference_available"].to_numpy(dtype=bool)
+        ax.plot(P[ok] * _BAR, frame["reference_T"].to_numpy(dtype=float)[ok], label="temperature, reference "
+                "equation (its own solve)", gid="reference", **STYLE["reference"])
+        if not ok.any():
+            _note(ax, f"reference unavailable: {frame['reference_reason'].iloc[0]}")
+    T_triple = (a.get("fluid_constants") or {}).get("T_triple")
+    if T_triple and np.nanmin(T) < T_triple:
+        # below the triple point the real fluid freezes (dry ice for CO2) and may block the line
+        limits = ax.get_ylim()
+        ax.axhspan(0.0, T_triple, color="#dfe9f5", zorder=0, gid="below-triple-point",
+                   label=f"below the triple point, {T_triple:.5g} K: solid may form (not modelled)")
+        ax.axhline(T_triple, color="#4a6fa5", linewidth=1.0, zorder=1)
+        ax.set_ylim(*limits)
+    quality = frame["quality"].to_numpy(dtype=float)
+    extra = []
+    if np.isfinite(quality).any():
+        q_ax = ax.twinx()
+        q_ax.plot(P * _BAR, quality, label=f"vapor quality, {label}", gid="quality", **STYLE["quality"])
+        if has_reference:
+            q_ax.plot(P * _BAR, frame["reference_quality"].to_numpy(dtype=float), color="black", linewidth=0.9,
+                      linestyle=(0, (1, 1)), label="vapor quality, reference", gid="reference-quality")
+        q_ax.set_ylim(0.0, _quality_top(np.concatenate([quality, frame["reference_quality"].to_numpy(dtype=float)])
+                                        if has_reference else quality))
+        q_ax.set_ylabel("Vapor quality [-] (dotted)")
+        extra = list(zip(*q_ax.get_legend_handles_labels()))
+    if P.min() > 0 and P.max() / P.min() > 5:
+        ax.set_xscale("log")
+        plain_log_ticks(ax.xaxis)
+    ax.set_xlabel("Pressure P [bar]" + (" (log scale)" if ax.get_xscale() == "log" else ""))
+    ax.set_ylabel("Temperature T [K]")
+    if extra:       # the right side holds the quality: the °C scale goes left of the kelvin one
+        sec = ax.secondary_yaxis(-0.13, functions=(lambda k: k - _ZERO_CELSIUS, lambda c: c + _ZERO_CELSIUS))
+        sec.set_ylabel("Temperature [°C]")
+    else:
+        _celsius_axis(ax, "y")
+    ax.grid(True, which="both", color="0.92")
+    value = float(a[kind])
+    M = (a.get("fluid_constants") or {}).get("molar_mass")
+    if kind == "h":
+        what = "isenthalp (valve, expansion device)"
+        text = f"h = {value / 1e3:.5g} kJ/mol" + (f" = {value / M / 1e3:.5g} kJ/kg" if M else "")
+    else:
+        what = "isentrope (ideal compressor or expander)"
+        text = f"s = {value:.5g} J/(mol K)" + (f" = {value / M / 1e3:.5g} kJ/(kg K)" if M else "")
+    compared = frame[np.isfinite(frame["deviation_T_K"])] if has_reference else frame.iloc[:0]
+    if len(compared) > 1:
+        end = compared.iloc[-1]         # the last state both sides have
+        text += (f"\nat {end['P'] * _BAR:.4g} bar: {label} {end['T'] - _ZERO_CELSIUS:.2f} °C, reference "
+                 f"{end['reference_T'] - _ZERO_CELSIUS:.2f} °C (model − reference {end['deviation_T_K']:+.2f} K)")
+    ax.set_title(f"{a.get('fluid', '')} — {label}: {what}\n{text}")
+    legend = _deduplicated_legend(ax, extra=extra, loc="upper center", bbox_to_anchor=(0.5, -0.12), ncol=2,
+                                  fontsize=8, frameon=False)
+    rows = -(-len(legend.get_texts()) // 2)
+    height_pt = ax.get_position().height * ax.figure.get_figheight() * 72.0
+    _caution(ax, y=-0.15 - rows * 16.0 / height_pt)
+    return ax
 
 # --------------------------------------------------------------------------- P–h and T–s diagrams
 
@@ -869,7 +978,7 @@ def _model_curve(model, fixed, value, grid):
 
     def ends():
         limit = fluid.Tc if fixed == "T" else fluid.Pc
-        if isinstance(model, IdealGas) or value >= limit:
+        if not model.has_saturation or value >= limit:
             return None
         try:
             saturation(model, **{fixed: value})
@@ -907,7 +1016,7 @@ def _check_diagram_model(model, caller):
     if not hasattr(model, "fluid"):
         raise InputError(f"{caller}(model=...) takes a model such as thermo_roots.PengRobinson(fluid), "
                          f"got {model!r}.")
-    if isinstance(model, IdealGas):
+    if not model.has_saturation:
         raise InputError(f"{caller} draws a saturation dome, which the ideal gas ({model!r}) does not have; "
                          "give a cubic model, e.g. thermo_roots.PengRobinson(fluid).")
     solve(model, T=model.fluid.Tc, P=model.fluid.Pc).h   # raises DomainError naming cp0 when h is unknown
@@ -982,7 +1091,7 @@ def _draw_step(ax, step, xy, caller):
     ax.annotate("", xy=(x1, y1), xytext=(x0, y0), gid="step:model", zorder=7,
                 arrowprops=dict(arrowstyle="-|>", color=st["color"], linewidth=st["linewidth"], mutation_scale=16,
                                 shrinkA=0, shrinkB=0))
-    if getattr(step, "isentropic_outlet", None) is not None:     # compressor, expander: the ideal machine too
+    if step.isentropic_outlet is not None:     # compressor, expander: the ideal machine too
         sx, sy = (float(a[0]) for a in xy(_state_columns(step.isentropic_outlet, M)))
         ax.plot([x0, sx], [y0, sy], color=st["color"], linewidth=1.0, linestyle=(0, (1, 1.5)), marker="x",
                 markevery=[1], markersize=7, zorder=7, gid="step:isentropic",
@@ -1001,7 +1110,7 @@ def _draw_step(ax, step, xy, caller):
 
     out = step.outlet
     text = f"outlet {float(out.T) - _ZERO_CELSIUS:.1f} °C, {float(out.P) * _BAR:.4g} bar"
-    if getattr(step, "isentropic_outlet", None) is not None:
+    if step.isentropic_outlet is not None:
         text += f"\nisentropic efficiency {step.efficiency:g}"
     if np.isfinite(float(out.quality)):
         text += f"\nquality {float(out.quality):.3f}"
@@ -1071,7 +1180,7 @@ def _step_footer(step, reference_drawn):
     reference's step is missing if it is (``reference_drawn`` False; True also where the
     whole overlay is off, which is said once), and the caution."""
     blocks = []
-    notes = [w for w in getattr(step, "warnings", ()) if w and "have no single value" not in w]
+    notes = [w for w in step.warnings if w and "have no single value" not in w]
     if notes:
         blocks.append(("Warning: " + " ".join(notes), "#a3123a"))
     if not reference_drawn:

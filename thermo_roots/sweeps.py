@@ -1,5 +1,7 @@
 """Layer 7: sweeps of many states into pandas tables, with the reference beside them.
 
+Along an isotherm, an isobar, an isochore (a closed vessel heated), a (T, P) grid, the
+saturation curve, an isenthalp (a valve's path) and an isentrope (an ideal compressor's).
 Every function returns a :class:`pandas.DataFrame`, one row per state. Conventions:
 
 * Column names are plain (``T``, ``P``, ``v``, ``rho_mass``, ``reference_v``,
@@ -9,7 +11,8 @@ Every function returns a :class:`pandas.DataFrame`, one row per state. Conventio
 * ``frame.attrs`` also records ``fluid`` (name), ``fluid_constants`` (Tc [K], Pc [Pa],
   omega, molar_mass [kg/mol], library_name), ``model`` (name), ``model_short_name``,
   ``volume_shift`` [m^3/mol], ``table`` (what sweep), ``version`` (of thermo_roots),
-  ``caution`` and ``interrupted``; with the reference, ``reference_warnings`` when the
+  ``caution``, ``interrupted`` and ``warnings`` (the solve's sentences, e.g. states below
+  the triple point where solid may form); with the reference, ``reference_warnings`` when the
   fluid's constants differ from its reference equation's (also issued as a warning).
 * Arguments are checked before any work: ``n`` a whole number of at least 2, ``log``
   None, True or False, ``reference`` True or False, ``model`` a model built for a fluid.
@@ -17,8 +20,13 @@ Every function returns a :class:`pandas.DataFrame`, one row per state. Conventio
   units); a tuple ``(start, stop)`` or :func:`between` gives ``n`` evenly spaced values
   (logarithmically for pressures and volumes, linearly for temperatures, unless
   ``log=`` says otherwise); a single number or text is one value.
+* Where the fluid has ideal-gas data the tables carry the caloric columns h, s, u, cp, cv,
+  w, mu_jt, kappa_T (molar, SI; :data:`CALORIC_COLUMNS`), and with the reference its h, s,
+  cp, w and the deviations (``deviation_h`` [J/mol], ``deviation_s`` [J/(mol K)], the
+  others in %).
 * ``reference=True`` adds the cross-check with the reference equation per state
-  (see :func:`thermo_roots.reference.cross_check`): ``progress`` shows a bar,
+  (see :func:`thermo_roots.reference.cross_check`; for an isenthalp or an isentrope the
+  reference equation's own (P, h) or (P, s) solve instead): ``progress`` shows a bar,
   ``executor`` spreads the work over threads, processes or a cluster's workers (any
   :class:`concurrent.futures.Executor`, e.g. a Dask client's ``get_executor()``), and an interruption (Ctrl-C, the
   notebook's stop button) returns the rows finished so far with
@@ -43,9 +51,9 @@ import pandas as pd
 
 from .errors import DomainError, InputError
 from .inversion import CAUTION, saturation, solve
-from .models import CubicModel, IdealGas, R
+from .models import Model, R
 from .reference import (CrossCheck, _check_run_options, _given, cross_check, library_reason, reference_limits,
-                        reference_saturation, whole_number)
+                        reference_saturation, reference_state, whole_number)
 from .roots import find_root
 from .quantities import QUANTITIES
 from .units import to_si
@@ -104,9 +112,9 @@ def check_log(log, name: str = "log"):
 
 def check_model(model, where: str):
     """A TypeError unless ``model`` is a model built for a fluid (the message says how)."""
-    if isinstance(model, (CubicModel, IdealGas)):
+    if isinstance(model, Model):
         return
-    if isinstance(model, type) and issubclass(model, (CubicModel, IdealGas)):
+    if isinstance(model, type) and issubclass(model, Model):
         hint = f" This is the class; build the model for a fluid: {model.__name__}(get_fluid('propane'))."
     elif isinstance(model, str):
         hint = " A text is not a model; build one, e.g. PengRobinson(get_fluid('propane'))."
@@ -176,7 +184,7 @@ def _unit_of(column: str) -> str:
         return "%"
     if column.endswith("_K"):
         return "K"
-    base = column.removeprefix("reference_")
+    base = column.removeprefix("reference_").removeprefix("deviation_")
     for name in _NAMES_LONGEST_FIRST:
         if base == name or base.startswith(name + "_"):
             return QUANTITIES[name].si_label
@@ -193,10 +201,10 @@ def _attrs(model, table: str, **extra) -> dict:
         "table": table,
         "fluid": fluid.name,
         "fluid_constants": {"Tc": fluid.Tc, "Pc": fluid.Pc, "omega": fluid.omega, "molar_mass": fluid.molar_mass,
-                            "library_name": fluid.library_name},
+                            "library_name": fluid.library_name, "T_triple": fluid.T_triple},
         "model": model.name,
         "model_short_name": model.short_name,
-        "volume_shift": float(getattr(model, "c", 0.0)),
+        "volume_shift": float(model.c),
         "version": _version(),
         "caution": CAUTION,
         "interrupted": False,
@@ -266,10 +274,12 @@ def state_frame(state, *, reference=False, progress="auto", executor=None, chunk
             data[name] = np.atleast_1d(np.asarray(getattr(state, name), dtype=float)).ravel()
     frame = pd.DataFrame(data)
     attrs = _attrs(state.model, table, **(extra_attrs or {}))
+    attrs["warnings"] = list(state.warnings)     # e.g. below the triple point: solid may form
     if reference:
         check = cross_check(state, progress=progress, executor=executor, chunk_size=chunk_size,
                             on_interrupt="partial")
-        for name in CrossCheck.FIELDS:
+        caloric = CrossCheck.CALORIC_FIELDS if state.model.fluid.ideal_gas is not None else ()
+        for name in CrossCheck.FIELDS + caloric:
             frame[_REFERENCE_RENAME.get(name, name)] = np.atleast_1d(np.asarray(getattr(check, name))).ravel()
         if check.warnings:
             attrs["reference_warnings"] = list(check.warnings)
@@ -445,6 +455,193 @@ def isochore(model, v=None, *, rho=None, rho_mass=None, T=None, n=DEFAULT_POINTS
     return _finish(frame, dict(frame.attrs))
 
 
+# --------------------------------------------------------------------------- isenthalp and isentrope
+
+#: Reference columns of an isenthalp or isentrope table (the reference equation's own (P, h) or
+#: (P, s) solve at each pressure), in order.
+ENERGY_REFERENCE_COLUMNS = ("reference_available", "reference_reason", "reference_T", "reference_v",
+                            "reference_rho_mass", "reference_Z", "reference_phase", "reference_quality",
+                            "reference_h", "reference_s", "reference_cp", "reference_w", "deviation_T_K",
+                            "deviation_v_percent", "deviation_rho_percent", "phase_agrees", "deviation_h",
+                            "deviation_s", "deviation_cp_percent", "deviation_w_percent")
+
+
+def isenthalp(model, h=None, *, h_mass=None, inlet=None, P=None, n=DEFAULT_POINTS, log=None, reference=False,
+              progress="auto", executor=None, chunk_size=None) -> pd.DataFrame:
+    """States at one enthalpy along pressure: the path through a valve, an expansion device or
+    a pressure regulator (a throttle exchanges no heat and no work, so h is the same at the
+    outlet as at the inlet).
+
+    Parameters
+    ----------
+    model : Model
+        A model of a fluid with ideal-gas heat capacity data (a library fluid, or ``cp0=``).
+    h, h_mass : float or str
+        Exactly one of these or ``inlet``: the molar enthalpy [J/mol] or the specific enthalpy
+        [J/kg]; text with either basis ("250 kJ/kg", "18 kJ/mol": the unit decides). On the
+        model's reference state (the reference equation's own by default).
+    inlet : State
+        A scalar state of this model (e.g. ``solve(model, T="30 degC", P="10 bar")``): its h is
+        kept, and the reference starts from its own inlet at the same knowns.
+    P : range, optional
+        Pressures [Pa]; default from the inlet's pressure down to a tenth of it (without an
+        inlet: Pc/100 to Pc), logarithmic.
+    n, log : int, bool
+        Points and spacing of a (start, stop) range.
+    reference : bool
+        Add the reference equation's own (P, h) solve at each pressure
+        (:data:`ENERGY_REFERENCE_COLUMNS`): its T, v, phase, quality, h, s, cp, w, and the
+        model's deviations from them (deviation_T_K = T - reference_T [K]; deviation_h,
+        deviation_s in J/mol and J/(mol K); the others in %). With ``inlet`` the reference's h
+        is its own at the inlet's knowns, so the two columns of T compare the same valve;
+        without one it is the same number (on the reference equation's zero).
+    progress, executor, chunk_size
+        For the reference evaluations (module conventions).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns as in :func:`state_frame`, ascending or descending in P as given;
+        ``attrs["h"]`` [J/mol] (and ``attrs["reference_h"]`` with the reference).
+
+    References
+    ----------
+    Smith, J. M., Van Ness, H. C. & Abbott, M. M. (2005), Introduction to Chemical Engineering
+    Thermodynamics, 7th ed., sec. 7.3 (throttling processes).
+    """
+    return _energy_sweep(model, "h", h, h_mass, inlet, P, 0.1, n=n, log=log, reference=reference,
+                         progress=progress, executor=executor, chunk_size=chunk_size, where="isenthalp")
+
+
+def isentrope(model, s=None, *, s_mass=None, inlet=None, P=None, n=DEFAULT_POINTS, log=None, reference=False,
+              progress="auto", executor=None, chunk_size=None) -> pd.DataFrame:
+    """States at one entropy along pressure: the path of an ideal (reversible, adiabatic)
+    compressor or expander.
+
+    Parameters
+    ----------
+    model : Model
+    s, s_mass : float or str
+        Exactly one of these or ``inlet``: the molar entropy [J/(mol K)] or the specific entropy
+        [J/(kg K)]; text with either basis ("1.2 kJ/(kg K)").
+    inlet : State
+        A scalar state of this model: its s is kept, and the reference starts from its own
+        inlet at the same knowns.
+    P : range, optional
+        Pressures [Pa]; default from the inlet's pressure up to ten times it (without an inlet:
+        Pc/100 to Pc), logarithmic.
+    n, log, reference, progress, executor, chunk_size
+        As in :func:`isenthalp` (the reference's own (P, s) solve).
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``attrs["s"]`` [J/(mol K)] (and ``attrs["reference_s"]`` with the reference).
+
+    References
+    ----------
+    Smith, J. M., Van Ness, H. C. & Abbott, M. M. (2005), Introduction to Chemical Engineering
+    Thermodynamics, 7th ed., sec. 7.3 (turbines and compressors).
+    """
+    return _energy_sweep(model, "s", s, s_mass, inlet, P, 10.0, n=n, log=log, reference=reference,
+                         progress=progress, executor=executor, chunk_size=chunk_size, where="isentrope")
+
+
+def _energy_sweep(model, name, value, value_mass, inlet, P, ratio, *, n, log, reference, progress, executor,
+                  chunk_size, where):
+    """The table of an isenthalp (name "h") or an isentrope ("s") along pressure."""
+    from .inversion import State
+
+    _check_sweep(model, where, n=n, log=log, reference=reference, progress=progress, executor=executor,
+                 chunk_size=chunk_size)
+    given = {k: x for k, x in ((name, value), (f"{name}_mass", value_mass), ("inlet", inlet)) if x is not None}
+    if len(given) != 1:
+        raise InputError(f"{where}() takes exactly one of {name}, {name}_mass, inlet; got "
+                         f"{', '.join(given) or 'none'}. E.g. {where}(model, inlet=solve(model, T='30 degC', "
+                         f"P='10 bar')) or {where}(model, {QUANTITIES[name + '_mass'].name}="
+                         f"'{QUANTITIES[name + '_mass'].example}').")
+    fluid = model.fluid
+    M = fluid.molar_mass
+    if inlet is not None:
+        if not isinstance(inlet, State) or np.ndim(inlet.T):
+            raise TypeError(f"inlet must be one state of the model, e.g. solve(model, T='30 degC', P='10 bar'); "
+                            f"got {_given(inlet)}.")
+        if inlet.model is not model:
+            raise InputError(f"inlet was solved with {inlet.model!r}, not with {model!r}; solve it with the "
+                             "model of the sweep.")
+        fixed = float(getattr(inlet, name))
+        P_default = (float(inlet.P), ratio * float(inlet.P))
+    else:
+        key, x = next(iter(given.items()))
+        fixed = _scalar(x, name, M) if key == name else _scalar(x, key, M) * M   # J/kg · kg/mol = J/mol
+        P_default = (fluid.Pc / 100.0, fluid.Pc)
+    if not np.isfinite(fixed):
+        raise InputError(f"{where}() needs a finite {name}; got {fixed!r}.")
+    if reference and inlet is None and model.reference_state != "reference":
+        raise InputError(f"{where}(reference=True) with {name} given as a number compares it with the reference "
+                         f"equation's {name} at the same number, which is on another zero than this model's "
+                         f"reference_state={model.reference_state!r}; give inlet= (the reference then starts from "
+                         "its own inlet) or use a model with reference_state='reference'.")
+    Ps = _values(P_default if P is None else P, "P", molar_mass=M, n=n, log=log)
+    state = solve(model, P=Ps, **{name: np.full(Ps.shape, fixed)})
+    unit = QUANTITIES[name].si_label
+    extra = {name: fixed}
+    frame = state_frame(state, table=f"{where} at {name} = {fixed:.6g} {unit}", extra_attrs=extra)
+    attrs = dict(frame.attrs)
+    if reference:
+        ref_fixed = _reference_energy(fluid, name, inlet, fixed)
+        attrs[f"reference_{name}"] = ref_fixed
+        ref = reference_state(fluid, P=Ps, with_saturation=False, progress=progress, executor=executor,
+                              chunk_size=chunk_size, **{name: np.full(Ps.shape, ref_fixed)})
+        for column, values in _energy_reference_columns(frame, ref, M).items():
+            frame[column] = values
+        if ref.warnings:
+            attrs["reference_warnings"] = list(ref.warnings)
+            for note in ref.warnings:
+                warnings.warn(note, UserWarning, stacklevel=3)
+    return _finish(frame, attrs)
+
+
+def _reference_energy(fluid, name, inlet, fixed):
+    """The reference equation's h or s of the sweep: its own at the inlet's knowns, else ``fixed``."""
+    if inlet is None or library_reason(fluid):
+        return fixed
+    if inlet.phase == "two-phase":
+        knowns = {"T": inlet.T, "quality": inlet.quality}
+    else:
+        knowns = {"T": inlet.T, "P": inlet.P}
+    start = reference_state(fluid, with_saturation=False, **knowns)
+    return float(getattr(start, name)) if start.available else np.nan
+
+
+def _energy_reference_columns(frame, ref, M) -> dict:
+    """The columns of :data:`ENERGY_REFERENCE_COLUMNS` from a reference state along the sweep."""
+    def col(x, dtype=float):
+        return np.atleast_1d(np.asarray(x, dtype=dtype)).ravel()
+
+    available = col(ref.available, bool)
+    T, v, P = col(ref.T), col(ref.v), col(ref.P)
+    phase = col(ref.phase, object)
+    model = {k: frame[k].to_numpy(dtype=float) if k in frame else np.full(len(frame), np.nan)
+             for k in ("T", "v", "h", "s", "cp", "w")}
+    with np.errstate(invalid="ignore", divide="ignore"):
+        out = {
+            "reference_available": available, "reference_reason": col(ref.reason, object),
+            "reference_T": T, "reference_v": v, "reference_rho_mass": M / v, "reference_Z": P * v / (R * T),
+            "reference_phase": phase, "reference_quality": col(ref.quality),
+            "reference_h": col(ref.h), "reference_s": col(ref.s), "reference_cp": col(ref.cp),
+            "reference_w": col(ref.w),
+            "deviation_T_K": model["T"] - T,
+            "deviation_v_percent": 100.0 * (model["v"] - v) / v,
+            "deviation_rho_percent": 100.0 * (v / model["v"] - 1.0),
+            "phase_agrees": available & (frame["phase"].to_numpy(dtype=object) == phase),
+            "deviation_h": model["h"] - col(ref.h), "deviation_s": model["s"] - col(ref.s),
+            "deviation_cp_percent": 100.0 * (model["cp"] - col(ref.cp)) / col(ref.cp),
+            "deviation_w_percent": 100.0 * (model["w"] - col(ref.w)) / col(ref.w),
+        }
+    return out
+
+
 def _fill_temperature(saturated_volume, v, T_lo, T_hi):
     """T where a saturated volume of T equals v, in [T_lo, T_hi] (None when no sign change)."""
     def gap(T):
@@ -463,7 +660,7 @@ def fill_point(model, v, T_range=None):
     Returns {"kind": "liquid-full" | "vapor-full", "T" [K], "P" [Pa]} or None when the
     vessel crosses no saturation line within ``T_range`` [K] (default 0.3 Tc to Tc).
     """
-    if isinstance(model, IdealGas):
+    if not model.has_saturation:
         return None
     Tc = model.fluid.Tc
     lo, hi = T_range if T_range is not None else (0.3 * Tc, Tc)
@@ -510,13 +707,19 @@ def saturation_curve(model, T=None, *, n=DEFAULT_POINTS, log=None, reference=Fal
     reference : bool
         Add reference_P, reference_v_liquid, reference_v_vapor, reference_rho_mass_liquid,
         reference_rho_mass_vapor, deviation_P_percent, deviation_rho_liquid_percent,
-        deviation_rho_vapor_percent, reference_available and reference_reason.
+        deviation_rho_vapor_percent, reference_available and reference_reason; where the
+        fluid has ideal-gas data also reference_h_liquid, reference_h_vapor,
+        reference_h_vaporization, reference_s_liquid, reference_s_vapor,
+        deviation_h_vaporization_percent (the latent heat; it falls to zero at Tc, so the
+        percentage grows there).
 
     Returns
     -------
     pandas.DataFrame
         Columns T, P (saturation pressure), v_liquid, v_vapor, rho_mass_liquid,
-        rho_mass_vapor, Z_liquid, Z_vapor.
+        rho_mass_vapor, Z_liquid, Z_vapor; where the fluid has ideal-gas data (a library
+        fluid, or ``cp0=``) also h_liquid, h_vapor, h_vaporization (the latent heat,
+        h_vapor - h_liquid) [J/mol], s_liquid, s_vapor [J/(mol K)].
 
     References
     ----------
@@ -532,6 +735,13 @@ def saturation_curve(model, T=None, *, n=DEFAULT_POINTS, log=None, reference=Fal
     v_l, v_v, P = (np.atleast_1d(np.asarray(x, dtype=float)) for x in (sat.v_liquid, sat.v_vapor, sat.P))
     frame = pd.DataFrame({"T": Ts, "P": P, "v_liquid": v_l, "v_vapor": v_v, "rho_mass_liquid": M / v_l,
                           "rho_mass_vapor": M / v_v, "Z_liquid": P * v_l / (R * Ts), "Z_vapor": P * v_v / (R * Ts)})
+    caloric = fluid.ideal_gas is not None
+    if caloric:
+        ends = [solve(model, T=Ts, quality=np.full(Ts.shape, q)) for q in (0.0, 1.0)]
+        for side, st in zip(("liquid", "vapor"), ends):
+            frame[f"h_{side}"] = np.atleast_1d(np.asarray(st.h, dtype=float))
+            frame[f"s_{side}"] = np.atleast_1d(np.asarray(st.s, dtype=float))
+        frame["h_vaporization"] = frame["h_vapor"] - frame["h_liquid"]
     if reference:
         ref = reference_saturation(fluid, T=Ts)
         r_vl, r_vv, r_P = (np.atleast_1d(np.asarray(x, dtype=float)) for x in (ref.v_liquid, ref.v_vapor, ref.P))
@@ -542,6 +752,16 @@ def saturation_curve(model, T=None, *, n=DEFAULT_POINTS, log=None, reference=Fal
             frame["deviation_P_percent"] = 100.0 * (P / r_P - 1.0)
             frame["deviation_rho_liquid_percent"] = 100.0 * (r_vl / v_l - 1.0)
             frame["deviation_rho_vapor_percent"] = 100.0 * (r_vv / v_v - 1.0)
+        if caloric:
+            sides = [reference_state(fluid, T=Ts, quality=np.full(Ts.shape, q), with_saturation=False)
+                     for q in (0.0, 1.0)]
+            for side, rs in zip(("liquid", "vapor"), sides):
+                frame[f"reference_h_{side}"] = np.atleast_1d(np.asarray(rs.h, dtype=float))
+                frame[f"reference_s_{side}"] = np.atleast_1d(np.asarray(rs.s, dtype=float))
+            frame["reference_h_vaporization"] = frame["reference_h_vapor"] - frame["reference_h_liquid"]
+            with np.errstate(invalid="ignore", divide="ignore"):
+                frame["deviation_h_vaporization_percent"] = 100.0 * (frame["h_vaporization"] /
+                                                                    frame["reference_h_vaporization"] - 1.0)
         frame["reference_available"] = np.atleast_1d(ref.available)
         frame["reference_reason"] = np.atleast_1d(np.asarray(ref.reason, dtype=object))
     return _finish(frame, _attrs(model, "saturation curve"))

@@ -31,6 +31,10 @@ class AccuracyPanel(w.VBox):
         Pressure range, text with units or pascal; the grid is logarithmic in pressure.
     n_T, n_P : int
         Grid points in temperature and in pressure.
+    quantity : {"v", "h", "s", "cp", "w"}
+        The quantity mapped first (the selector ``quantity`` changes it): molar volume,
+        enthalpy, isobaric heat capacity or speed of sound; see
+        :data:`thermo_roots.accuracy.MEASURES` for how each deviation is measured.
 
     Attributes
     ----------
@@ -46,7 +50,10 @@ class AccuracyPanel(w.VBox):
     """
 
     def __init__(self, fluid="propane", models=("PR", "SRK"), *, T=("-40 degC", "120 degC"),
-                 P=("0.5 bar", "80 bar"), n_T=12, n_P=12):
+                 P=("0.5 bar", "80 bar"), n_T=12, n_P=12, quantity="v"):
+        from ..accuracy import MEASURES, measure
+
+        measure(quantity)     # an InputError naming the allowed quantities
         self.result, self.error, self.cancelled = None, None, False
         self._stop = False
         self.fluid_field = FluidField(fluid)
@@ -57,6 +64,10 @@ class AccuracyPanel(w.VBox):
             field.label.layout.width = "30px"
         self.n_T = w.BoundedIntText(value=n_T, min=2, max=80, layout=w.Layout(width="70px"))
         self.n_P = w.BoundedIntText(value=n_P, min=2, max=80, layout=w.Layout(width="70px"))
+        self.quantity = w.Dropdown(options=[(f"{m.what[:1].upper() + m.what[1:]} (deviation in {m.unit})", q)
+                                            for q, m in MEASURES.items()], value=quantity,
+                                   layout=w.Layout(width="330px"))
+        self.quantity.observe(self._quantity_changed, "value")
         self.compute_button = w.Button(description="Compute map", button_style="primary", icon="th")
         self.cancel_button = w.Button(description="Cancel", icon="stop", disabled=True)
         self.progress = w.IntProgress(value=0, min=0, max=1, description="", layout=w.Layout(width="300px"))
@@ -67,6 +78,7 @@ class AccuracyPanel(w.VBox):
         self.cancel_button.on_click(lambda _: self.cancel())
         controls = w.VBox([
             self.fluid_field.box, self.models.box,
+            w.HBox([_label("Compare"), self.quantity], layout=w.Layout(align_items="center")),
             w.HBox([self.T_from.box, self.T_to.box]), w.HBox([self.P_from.box, self.P_to.box]),
             w.HBox([_label("Grid points"), w.HTML("T&nbsp;"), self.n_T, w.HTML("&nbsp;&nbsp;P&nbsp;"), self.n_P],
                    layout=w.Layout(align_items="center")),
@@ -130,7 +142,8 @@ class AccuracyPanel(w.VBox):
             for rows in chunks:
                 if self._stop:
                     break
-                parts.append(accuracy_map(fluid, models, T=rows, P=Ps, progress=False))
+                parts.append(accuracy_map(fluid, models, T=rows, P=Ps, quantity=self.quantity.value,
+                                          progress=False))
                 self.progress.value += 1
                 self.progress_note.value = f"{self.progress.value} of {len(chunks)}"
                 yield
@@ -149,6 +162,11 @@ class AccuracyPanel(w.VBox):
         self.progress_note.value += " (cancelled)" if self.cancelled else " done"
         self._draw()
 
+    def _quantity_changed(self, change):
+        if self.result is not None and self.result.quantity != change.new:
+            self.status.value = ("<div style='color:#8a5a00'>The map below shows another quantity; press "
+                                 "Compute map for this one.</div>")
+
     def _fail(self, text):
         self.error = text
         self.status.value = error_html(text)
@@ -164,17 +182,23 @@ class AccuracyPanel(w.VBox):
         fig.set_size_inches(5.3 * cols + 1.3, 4.9 * rows + 0.9)
         plot_accuracy_maps(amap, figure=fig, ncols=cols)
         self.plot.publish()
-        summary = amap.summary
+        summary, how = amap.summary, amap.measure
+        unit = how.unit
         rows = [(str(r.model), str(r.region), str(r.points), str(r.phase_disagreements),
-                 fmt(r.mean_abs_percent, 3), fmt(r.max_abs_percent, 3), _share(r.percent_within_1),
+                 fmt(r.mean_abs_deviation, 3), fmt(r.max_abs_deviation, 3), _share(r.percent_within_1),
                  _share(r.percent_within_5)) for r in summary.itertuples()]
         best = amap.best_by_region()
-        best_rows = [(str(region), str(r.model), fmt(r.mean_abs_percent, 3)) for region, r in best.iterrows()]
+        best_rows = [(str(region), str(r.model), fmt(r.mean_abs_deviation, 3)) for region, r in best.iterrows()]
+        what = how.what[:1].upper() + how.what[1:]
+        measured = ("100 (model − reference) / reference" if how.relative else
+                    f"model − reference per kilogram (the zero of {how.what} is a convention, so a percentage "
+                    "of it would mean nothing)")
         self.summary.value = block(
-            table(rows, header=("model", "region", "points", "wrong phase", "mean |dev| %", "max |dev| %",
-                                "within 1 %", "within 5 %"),
-                  caption=f"Molar volume against the reference equation, {amap.fluid.name}")
-            + table(best_rows, header=("region", "closest model", "mean |dev| %"), caption="Closest by region")
+            table(rows, header=("model", "region", "points", "wrong phase", f"mean |dev| [{unit}]",
+                                f"max |dev| [{unit}]", f"within 1 {unit}", f"within 5 {unit}"),
+                  caption=f"{what} against the reference equation, {amap.fluid.name}; deviation = {measured}")
+            + table(best_rows, header=("region", "closest model", f"mean |dev| [{unit}]"),
+                    caption="Closest by region")
             + caution_html())
 
 
