@@ -384,3 +384,79 @@ class ModelChoice:
     def observe(self, handler) -> None:
         for box in self.boxes.values():
             box.observe(handler, "value")
+
+
+class KnownPair:
+    """A choice of two knowns and their value-with-unit fields (the state panel's inlet, the
+    process panel's inlet): the dropdown of pairs, one :class:`QuantityField` per quantity
+    (only the chosen pair shown), and a message line beside the dropdown.
+
+    Parameters
+    ----------
+    pairs : sequence of (label, (first, second))
+    defaults : dict
+        The text each field starts with, per quantity of :data:`FIELDS`.
+    knowns : dict
+        Two knowns as keywords (``T="20 degC", P="7 barg"``; ``rho_mass`` fills the density
+        field in kg/m³); they choose the pair. Empty: ``default`` (or the first pair).
+    """
+
+    def __init__(self, pairs, defaults, knowns=None, *, default=None, label="Known quantities"):
+        knowns = dict(knowns or {})
+        self.pairs = tuple(pairs)
+        self.pair = w.Dropdown(options=list(self.pairs), value=self.pair_of(knowns, default),
+                               layout=w.Layout(width="217px"))
+        self.pair.add_class("tr-pair")
+        self.fields = {q: QuantityField(q, defaults[q]) for q in FIELDS}
+        for name, value in knowns.items():
+            field = self.fields["rho" if name == "rho_mass" else name]
+            field.set(value)
+            if name == "rho_mass" and isinstance(value, numbers.Real):
+                field.unit.value = "kg/m^3"
+        self.message = w.HTML()
+        self.known_box = w.VBox()
+        self.pair.observe(self._show, "value")
+        self._show()
+        self.box = w.VBox([w.HBox([_label(label), self.pair, self.message], layout=w.Layout(align_items="center")),
+                           self.known_box])
+
+    def pair_of(self, knowns, default=None):
+        names = tuple("rho" if k == "rho_mass" else k for k in knowns)
+        if not names:
+            return default or self.pairs[0][1]
+        for _, pair in self.pairs:
+            if set(pair) == set(names):
+                return pair
+        allowed = "; ".join(f"{a} and {b}" for _, (a, b) in self.pairs)
+        raise FieldError(f"The panel takes one of these pairs of knowns: {allowed}; got {', '.join(knowns)}.")
+
+    def _show(self, *_):
+        self.known_box.children = [self.fields[q].box for q in self.pair.value]
+
+    @property
+    def knowns(self) -> dict:
+        """The two knowns as entered, e.g. {"T": "20 degC", "P": "7 barg"}."""
+        return {q: self.fields[q].entered() for q in self.pair.value}
+
+    def given(self) -> str:
+        """The two knowns as a person reads them: "temperature 20 °C, pressure 7 barg"."""
+        return ", ".join(f"{LABELS[q].lower()} {self.fields[q].shown()}" for q in self.pair.value)
+
+    def clear(self) -> None:
+        for field in self.fields.values():
+            field.clear()
+        self.message.value = ""
+
+    def to_si(self, *, molar_mass, atmosphere) -> dict:
+        """The chosen pair in SI; a message beside the field and FieldError where unreadable."""
+        return {q: self.fields[q].to_si(molar_mass=molar_mass, atmosphere=atmosphere) for q in self.pair.value}
+
+    def blame(self, text: str) -> FieldError:
+        """Show a solve error beside the field it is about (or beside the pair)."""
+        first = text.split(" ", 1)[0].rstrip(",")
+        volume = first in ("v", "rho", "rho_mass")
+        for q in self.pair.value:
+            if q == first or (volume and q in ("v", "rho")):
+                return self.fields[q].fail(text)
+        self.message.value = message_html(text)
+        return FieldError(text)
