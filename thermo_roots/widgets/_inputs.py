@@ -343,12 +343,13 @@ class ModelField:
         self.message.value = ""
         cls = MODELS[self.short.value]
         try:
-            if self.translate.value:
-                if cls is MODELS["IG"]:
-                    raise FieldError("The ideal gas has no co-volume to translate; untick volume "
-                                     "translation or choose a cubic model.")
-                return cls(fluid, volume_shift="peneloux")
-            return cls(fluid)
+            model = cls(fluid)
+            if not self.translate.value:
+                return model
+            if model.b == 0.0:          # the model protocol: no co-volume (the ideal gas)
+                raise FieldError(f"The {model.name} has no co-volume to translate; untick volume "
+                                 "translation or choose a cubic model.")
+            return cls(fluid, volume_shift="peneloux")
         except ThermoRootsError as err:
             self.message.value = message_html(str(err))
             raise FieldError(str(err)) from None
