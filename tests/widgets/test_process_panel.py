@@ -202,3 +202,62 @@ def test_the_fields_shown_follow_the_kind_of_step():
     panel.target.value = "T"
     assert panel.target_pressure.box.layout.display == "none"
     assert panel.target_temperature.box.layout.display is None
+
+
+def test_custom_ideal_gas_compressor_follows_the_constant_cp_relation():
+    # An ideal gas with constant cp: isentropic T2 / T1 = (P2 / P1) ** (R / cp) (Smith, Van Ness &
+    # Abbott, Introduction to Chemical Engineering Thermodynamics, 7th ed., eq. 3.30c); a real machine:
+    # T2 = T1 + (T2s - T1) / eta (Moran & Shapiro, 5th ed., sec. 6.12, with h = cp T).
+    R = 8.314462618          # CODATA 2018 (J/(mol K))
+    cp = 3.5 * R
+    fluid = tr.Fluid("air-like gas", 132.5, 37.7e5, 0.035, 0.02897, cp0=cp)
+    panel = ProcessPanel(fluid=fluid, model="IG", step="compressor", T="300 K", P="1 bar", P_out="6 bar",
+                         efficiency=0.8)
+    assert panel.fluid_field.is_custom and panel.fluid_field.cp0.value == f"{cp:.10g}"
+    result = panel.solve()
+    assert panel.error is None, panel.error
+    T2s = 300.0 * 6.0 ** (R / cp)
+    assert result.isentropic_outlet.T == pytest.approx(T2s, rel=1e-8)
+    assert result.outlet.T == pytest.approx(300.0 + (T2s - 300.0) / 0.8, rel=1e-8)
+    assert "Reference step unavailable" in _shown(panel)          # no reference equation for a user fluid
+
+
+def test_custom_fluid_without_cp0_is_asked_for_it():
+    panel = ProcessPanel(fluid="custom", model="PR", step="compressor", T="20 degC", P="2 bar", P_out="6 bar")
+    assert panel.solve() is None
+    assert "no ideal-gas heat capacity" in panel.error
+    assert "enter cp0" in panel.fluid_field.cp0_message.value
+    panel.fluid_field.cp0.value = "1 2 3 4 5 6"
+    assert panel.solve() is None and "at most five" in panel.fluid_field.cp0_message.value
+    panel.fluid_field.cp0.value = "80"
+    assert panel.solve() is not None and panel.fluid_field.cp0_message.value == ""
+
+
+def test_vessel_deviations_beyond_the_thresholds_are_marked():
+    from thermo_roots.reference import LARGE_DEVIATION_PERCENT, LARGE_DEVIATION_STYLE
+
+    panel = ProcessPanel(fluid="CO2", model="PR", step="vessel", T="20 degC", rho="600 kg/m^3",
+                         P_target="100 barg", mass="0.3 kg")
+    result = panel.solve()
+    # the heat from CoolProp's own Span-Wagner states at the fill density: Q = m (u2 - u1)
+    # (Smith, Van Ness & Abbott, 7th ed., sec. 2.5)
+    P2 = 100e5 + 101325.0
+    u1 = CP.PropsSI("U", "T", 293.15, "D", 600.0, "CarbonDioxide")
+    u2 = CP.PropsSI("U", "P", P2, "D", 600.0, "CarbonDioxide")
+    heat_ref = 0.3 * (u2 - u1)
+    assert result.reference.heat == pytest.approx(heat_ref, rel=1e-6)
+    deviation = 100 * (result.heat / heat_ref - 1)
+    assert abs(deviation) > LARGE_DEVIATION_PERCENT       # near the critical point the cubic is far off
+    rows = re.findall(r"<tr>(.*?)</tr>", panel.output.value)
+    marked = [re.sub("<[^>]+>", "", re.findall(r"<td[^>]*>(.*?)</td>", r)[0]) for r in rows if "tr-large" in r]
+    assert "Heat into the fluid [kJ/kg]" in marked and "Heat into the vessel [kJ]" in marked
+    assert "Fill mass [kg]" not in marked
+    assert LARGE_DEVIATION_STYLE in panel.output.value and f"±{LARGE_DEVIATION_PERCENT:g} %" in panel.output.value
+
+
+def test_the_solid_warning_comes_first():
+    panel = ProcessPanel(fluid="CO2", model="PR", step="valve", P="20 barg", quality=0, P_out="1.01325 bar")
+    panel.solve()
+    items = re.findall(r"<li>(.*?)</li>", html.unescape(panel.output.value))
+    assert items and items[0].startswith("Solid may form at the outlet (dry ice")
+    assert len(items) == len(panel.result.warnings)

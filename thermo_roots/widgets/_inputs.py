@@ -253,11 +253,20 @@ class FluidField:
         self.omega = w.Text(value="0.152", layout=w.Layout(width="120px"))
         self.molar_mass = w.Text(value="44.1", layout=w.Layout(width="120px"))
         self.custom_message = w.HTML()
+        # the ideal-gas heat capacity: blank (no enthalpy or entropy), a constant, or the five
+        # coefficients of a + bT + cT² + dT³ + eT⁴ [J/(mol K)]
+        self.cp0 = w.Text(value="", placeholder="e.g. 73.6, or a b c d e", layout=w.Layout(width="217px"))
+        self.cp0.add_class("tr-cp0")
+        self.cp0_message = w.HTML()
         self.custom_box = w.VBox([
             w.HBox([_label("Name"), self.custom_name]),
             self.Tc.box, self.Pc.box,
             w.HBox([_label("Acentric factor ω"), self.omega]),
             w.HBox([_label("Molar mass [g/mol]"), self.molar_mass, self.custom_message]),
+            w.HBox([_label("Ideal-gas cp0 [J/(mol K)]"), self.cp0,
+                    w.HTML("<span style='color:#555;font-size:0.9em'>&nbsp;optional: a constant, or a b c d e of "
+                           "a + bT + cT² + dT³ + eT⁴ (T in K); needed for h, s and process steps</span>"),
+                    self.cp0_message], layout=w.Layout(align_items="center")),
         ], layout=w.Layout(margin="0 0 0 20px"))
         self.box = w.VBox([w.HBox([_label("Fluid"), self.name, self.message],
                                   layout=w.Layout(align_items="center")), self.custom_box])
@@ -273,6 +282,9 @@ class FluidField:
             self.Pc.set(f"{fluid.Pc:.6g} Pa")
             self.omega.value = f"{fluid.omega:.6g}"
             self.molar_mass.value = f"{fluid.molar_mass * 1e3:.6g}"
+            cp0 = fluid.cp0
+            self.cp0.value = ("" if cp0 is None else f"{cp0:.10g}" if isinstance(cp0, numbers.Real)
+                              else " ".join(f"{c:.10g}" for c in cp0))
             fluid = CUSTOM
         self.name.value = str(fluid)
         self._show_custom()
@@ -286,7 +298,7 @@ class FluidField:
 
     def fluid(self) -> Fluid:
         """The chosen fluid; the message beside the field and an error if it cannot be had."""
-        self.message.value = self.custom_message.value = ""
+        self.message.value = self.custom_message.value = self.cp0_message.value = ""
         self.Tc.clear()
         self.Pc.clear()
         if not self.is_custom:
@@ -303,12 +315,29 @@ class FluidField:
             text = str(err)
             self.custom_message.value = message_html(text)
             raise FieldError(text) from None
+        cp0 = self._cp0()
         try:
             return Fluid(self.custom_name.value.strip() or "my fluid", Tc, Pc, omega,
-                         to_si_molar_mass(grams))
+                         to_si_molar_mass(grams), cp0=cp0)
         except ThermoRootsError as err:
-            self.custom_message.value = message_html(str(err))
+            where = self.cp0_message if "cp0" in str(err) else self.custom_message
+            where.value = message_html(str(err))
             raise FieldError(str(err)) from None
+
+    def _cp0(self):
+        """The typed cp0: None (blank), one number, or up to five coefficients."""
+        parts = self.cp0.value.replace(";", " ").split()
+        if not parts:
+            return None
+        try:
+            if len(parts) > 5:
+                raise FieldError(f"cp0 takes one number or at most five coefficients (a b c d e); "
+                                 f"got {len(parts)}: {self.cp0.value!r}.")
+            numbers_ = [_plain_number(p, "cp0 coefficient", "73.6") for p in parts]
+        except ThermoRootsError as err:
+            self.cp0_message.value = message_html(str(err))
+            raise FieldError(str(err)) from None
+        return numbers_[0] if len(numbers_) == 1 else tuple(numbers_)
 
 
 def to_si_molar_mass(grams_per_mol: float) -> float:

@@ -258,6 +258,8 @@ class ProcessPanel(w.VBox):
         P_out = None
         try:
             fluid = self.fluid_field.fluid()
+            if fluid.ideal_gas is None:
+                raise self._no_heat_capacity(fluid)
             model = self.model_field.model(fluid)
             atmosphere = self.atmosphere.to_si()
             knowns = self.inlet.to_si(molar_mass=fluid.molar_mass, atmosphere=atmosphere)
@@ -293,6 +295,13 @@ class ProcessPanel(w.VBox):
         self.output.value = block(self._render(result))
         self._draw(result)
         return result
+
+    def _no_heat_capacity(self, fluid) -> FieldError:
+        text = (f"{fluid.name} has no ideal-gas heat capacity, so its enthalpy and entropy are unknown and no "
+                "step can be balanced: enter cp0 in the custom fluid's fields (a constant, or a b c d e of "
+                "a + bT + cT² + dT³ + eT⁴ in J/(mol K)), or choose a library fluid.")
+        self.fluid_field.cp0_message.value = message_html(text)
+        return FieldError(text)
 
     def _step_refused(self, text, inlet, kind, P_out) -> FieldError:
         """A step the library refused, said beside the field it is about, in the panel's words."""
@@ -353,7 +362,11 @@ class ProcessPanel(w.VBox):
                        f"unavailable.</b> {html.escape(str(ref.reason).removeprefix('unavailable: '))}</div>")
         notes = ""
         if step.warnings:
-            items = "".join(f"<li>{html.escape(text)}</li>" for text in step.warnings)
+            # the step's own sentences (solid forming, liquid in a compressor) before the states' notes
+            of_states = set(step.inlet.warnings) | set(step.outlet.warnings)
+            ordered = ([t for t in step.warnings if t not in of_states]
+                       + [t for t in step.warnings if t in of_states])
+            items = "".join(f"<li>{html.escape(text)}</li>" for text in ordered)
             notes = (f"<div class='tr-warnings' style='color:#8a1c1c;max-width:60em'><b>Warnings</b>"
                      f"<ul style='margin:2px 0 4px 0'>{items}</ul></div>")
         return (head + vessel + scroll_box(side_by_side(states, energy)) + legend + missing + notes
