@@ -261,3 +261,13 @@ def test_the_solid_warning_comes_first():
     items = re.findall(r"<li>(.*?)</li>", html.unescape(panel.output.value))
     assert items and items[0].startswith("Solid may form at the outlet (dry ice")
     assert len(items) == len(panel.result.warnings)
+
+
+def test_efficiency_as_a_percentage():
+    panel = ProcessPanel(fluid="propane", step="compressor", P="2 bar", quality=1, P_out="15 bar", efficiency="75 %")
+    assert panel.solve().efficiency == pytest.approx(0.75)
+    panel.efficiency.value = "75"                 # a percentage without its sign: refused, with the hint
+    assert panel.solve() is None
+    assert "For 75 % write 75 % or 0.75" in html.unescape(panel.efficiency_message.value)
+    panel.efficiency.value = "150 %"
+    assert panel.solve() is None and "not possible" in panel.error

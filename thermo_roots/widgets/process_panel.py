@@ -184,8 +184,8 @@ class ProcessPanel(w.VBox):
             widget.add_class(name)
         self.flow_box = w.VBox([self.outlet_pressure.box])
         self.efficiency_box = w.HBox([_label("Isentropic efficiency"), self.efficiency,
-                                      w.HTML("<span style='color:#555;font-size:0.9em'>&nbsp;above 0, at most 1 "
-                                             "(typical machines 0.6 to 0.9)</span>"),
+                                      w.HTML("<span style='color:#555;font-size:0.9em'>&nbsp;above 0, at most 1, "
+                                             "or a percentage (typical machines 0.6 to 0.9)</span>"),
                                       self.efficiency_message], layout=w.Layout(align_items="center"))
         self.vessel_box = w.VBox([
             w.HBox([_label("Heat or cool to"), self.target], layout=w.Layout(align_items="center")),
@@ -221,18 +221,24 @@ class ProcessPanel(w.VBox):
         shown(self.volume.box, self.fill.value == "volume")
 
     def _read_efficiency(self) -> float:
+        """The isentropic efficiency typed: a fraction ("0.75", "0,75") or a percentage ("75 %")."""
         text = self.efficiency.value.strip()
+        percent = text.endswith("%")
+        number = text[:-1].strip() if percent else text
         try:
-            eta = _plain_number(text, "isentropic efficiency", _EFFICIENCY_EXAMPLE) if text else math.nan
+            eta = _plain_number(number, "isentropic efficiency", _EFFICIENCY_EXAMPLE) if number else math.nan
         except ThermoRootsError:
             eta = None
         if eta is None or not math.isfinite(eta):
             raise self._efficiency_fail(f"Cannot read the isentropic efficiency {text!r}: write a plain number above "
-                                        f"0 and at most 1, e.g. {_EFFICIENCY_EXAMPLE}.")
+                                        f"0 and at most 1, e.g. {_EFFICIENCY_EXAMPLE} (or a percentage, 75 %).")
+        if percent:
+            eta /= 100.0
         if not 0.0 < eta <= 1.0:
+            hint = f" For {text} % write {text} % or {eta / 100:g}." if (not percent and 1.0 < eta <= 100.0) else ""
             raise self._efficiency_fail(f"An isentropic efficiency of {text} is not possible: it is above 0 and at "
                                         f"most 1 (1 is the ideal machine; typical machines 0.6 to 0.9), e.g. "
-                                        f"{_EFFICIENCY_EXAMPLE}.")
+                                        f"{_EFFICIENCY_EXAMPLE}.{hint}")
         return eta
 
     def _efficiency_fail(self, text: str) -> FieldError:
