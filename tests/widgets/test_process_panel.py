@@ -271,3 +271,12 @@ def test_efficiency_as_a_percentage():
     assert "For 75 % write 75 % or 0.75" in html.unescape(panel.efficiency_message.value)
     panel.efficiency.value = "150 %"
     assert panel.solve() is None and "not possible" in panel.error
+
+
+def test_a_pressure_typed_in_bar_is_not_repeated_in_bar():
+    panel = ProcessPanel(fluid="propane", step="valve", P="2 bar", quality=1, P_out="30 bar")
+    assert panel.solve() is None
+    assert "The outlet pressure 30 bar is above" in html.unescape(panel.outlet_pressure.message.value)
+    panel.outlet_pressure.set("60 psig")
+    assert panel.solve() is None
+    assert re.search(r"60 psig \(5\.\d+ bar\) is above", html.unescape(panel.outlet_pressure.message.value))

@@ -313,7 +313,8 @@ class ProcessPanel(w.VBox):
         """A step the library refused, said beside the field it is about, in the panel's words."""
         if kind != "vessel" and P_out is not None:
             rise = P_out > float(inlet.P)
-            shown = f"{self.outlet_pressure.shown()} ({fmt(P_out / 1e5, 5)} bar)"
+            typed = self.outlet_pressure.shown()
+            shown = typed if typed.endswith(" bar") else f"{typed} ({fmt(P_out / 1e5, 5)} bar)"
             inlet_bar = f"{fmt(float(inlet.P) / 1e5, 5)} bar"
             if kind in ("valve", "expander") and rise:
                 what = "a valve or regulator" if kind == "valve" else "an expander or turbine"
@@ -390,7 +391,7 @@ class ProcessPanel(w.VBox):
             try:
                 fig = self.plot.clear()
                 plot_pressure_enthalpy(model, ax=fig.add_subplot(), step=step)
-            except ThermoRootsError as err:
+            except ValueError as err:     # the library's refusals (ThermoRootsError) and matplotlib's
                 self.diagram_note = f"The pressure–enthalpy diagram could not be drawn: {err}"
             else:
                 self.plot.publish()
