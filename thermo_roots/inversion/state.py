@@ -60,7 +60,11 @@ def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, erro
         solve always raises.
     **knowns
         Exactly two of T [K], P [Pa], v [m^3/mol], rho [mol/m^3], rho_mass [kg/m^3],
-        quality [-] (only with T or P); floats, arrays, text with units or pint quantities.
+        quality [-] (only with T or P), or an energy pair: (P, h), (P, s), (T, h), (T, s),
+        (h, s), (u, v) with h [J/mol], s [J/(mol K)], u [J/mol], their mass-basis twins
+        h_mass [J/kg], s_mass [J/(kg K)], u_mass [J/kg], and any volume measure for v; floats,
+        arrays, text with units or pint quantities (for an energy the unit's dimension
+        decides the basis: h="250 kJ/kg" and h="18 kJ/mol" both work).
 
     Returns
     -------
@@ -73,7 +77,8 @@ def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, erro
         shapes that do not broadcast, or (scalar or errors="raise") a value that is not finite.
     DomainError
         (scalar or errors="raise") T or P not positive, v <= b, quality outside [0, 1],
-        quality above Tc or Pc, no temperature that gives (P, v).
+        quality above Tc or Pc, no temperature that gives (P, v), no state that gives an
+        energy pair (e.g. a (T, h) below the isotherm's minimum of h).
     ConvergenceError
         (scalar or errors="raise") An inversion did not converge (carries the root
         finder's result, in the caller's shape).
@@ -91,6 +96,15 @@ def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, erro
     T_lo = P (v-b)/R, where P(T_lo) <= P because a >= 0, up to the first of: a temperature
     where P >= P_given (starting from T_hi = (P + a(T_lo)/D)(v-b)/R, doubled), or the peak.
 
+    The energy pairs (brackets from the physics; details in ``pairs_energy``): (P, h) and
+    (P, s) bracket T (cp > 0), (u, v) brackets T (cv > 0), (T, s) brackets v (s rises with
+    v along an isotherm), (h, s) brackets P along the isentrope ((dh/dP)_s = v > 0), each
+    with the two-phase segment solved for the quality in closed form. (T, h) is not unique
+    in general: along an isotherm h falls to a minimum (where mu_JT = 0) and rises again,
+    so an h between that minimum and the ideal gas's h0(T) is reached at two pressures. The
+    lower pressure is reported as P, the higher as :attr:`State.P_other`, with a warning;
+    an h no pressure reaches is refused with the isotherm's minimum. The ideal gas's h
+    depends on T alone: (T, h) is refused for it.
     References
     ----------
     Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
