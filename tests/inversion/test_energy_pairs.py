@@ -225,3 +225,14 @@ def test_dh_dP_along_the_isotherm_from_T_h_solves(cls, propane):
     plus, minus = tr.solve(model, T=T, h=st.h + dh), tr.solve(model, T=T, h=st.h - dh)
     dv_dT = -model.dP_dT(T, st.v) / model.dP_dv(T, st.v)
     assert 2 * dh / (plus.P - minus.P) == pytest.approx(st.v - T * dv_dT, rel=1e-4)
+
+
+@pytest.mark.parametrize("cls", [tr.VanDerWaals, tr.PengRobinson], ids=lambda c: c.short_name)
+def test_h_s_on_a_steep_isentrope(cls):
+    # a heavy molecule far above Tc: along the isentrope P grows like T^(cp/R), cp/R ~ 40,
+    # so doubling T to bracket it steps past the model's densest states (found by hypothesis)
+    model = cls(tr.get_fluid("n-hexane"))
+    for Tr, Pr in [(3.0, 10.0), (2.5, 3.0)]:
+        st = tr.solve(model, T=Tr * model.fluid.Tc, P=Pr * model.fluid.Pc)
+        back = tr.solve(model, h=st.h, s=st.s)
+        assert back.T == pytest.approx(st.T, rel=1e-9) and back.P == pytest.approx(st.P, rel=1e-9)

@@ -406,65 +406,93 @@ def _second_pressure_warning(model, P_other, P, count, total):
 # --------------------------------------------------------------------------- (h, s)
 
 def _from_h_s(model, flat, problems, branch=None):
-    """(h, s) -> the state, by bracketing P along the isentrope.
+    """(h, s) -> the state, by bracketing T along the isentrope.
 
-    Along an isentrope h rises with P: (dh/dP)_s = v > 0, also across the dome (dh = T ds +
-    v dP holds for the mixture). So P is bracketed in ln P, and every trial pressure is one
-    vectorized (P, s) -> T solve (itself bracketed: s rises with T at fixed P), whose h is
-    compared with the target. The bracket starts at [Pc/1000, 10 Pc]; the low end is divided
-    by 100 while h there is still above the target (down to 10^-21 Pc, or until the
-    isentrope passes the model's coldest temperature: refused), the high end multiplied by
-    10 while h is still below it (up to 10^11 Pc). A 2-D scheme would need no nesting but
-    has no bracket that guarantees convergence; the nested one keeps both finders bracketed.
+    Along an isentrope h rises with P, (dh/dP)_s = v > 0 (dh = T ds + v dP, which holds
+    for the two-phase mixture too), and T rises with P, (dT/dP)_s = T v beta / cp > 0 for
+    the positive thermal expansion of every model here (and dT_sat/dP > 0 across the dome):
+    so h rises with T along the isentrope. T is bracketed from the model's coldest
+    temperature (that of the (P, h) and (P, s) solves) to 4 Tc, doubled while h there is
+    still short (up to 256 Tc); each trial temperature is one vectorized (T, s) solve
+    (itself bracketed in v, see :func:`_from_T_energy`), whose h is compared with the
+    target. Nesting keeps both root finders bracketed; a 2-D scheme (Newton in T and v)
+    would need fewer evaluations but has no bracket that guarantees convergence. The (T, s)
+    solve is the inner one rather than (P, s) because it needs the saturation pressure at
+    T, which the fast corresponding-states path gives, and never leaves its range.
     """
     h, s = flat["h"], flat["s"]
     n = h.size
-    Pc, Tc = model.fluid.Pc, model.fluid.Tc
+    Tc = model.fluid.Tc
     scale = R * Tc
 
-    def h_on_isentrope(y, sx):
-        sub = Problems(y.size, y.shape, strict=False)
+    def state_on_isentrope(T, sx):
+        sub = Problems(T.size, T.shape, strict=False)
         with np.errstate(all="ignore"):
-            parts = _from_P_energy(model, {"P": np.exp(y), "s": sx}, sub, None, name="s")
+            parts = _from_T_energy(model, {"T": T, "s": sx}, sub, None, name="s")
             hx = np.asarray(_parts_caloric(model, parts).h, dtype=float)
-        return np.where(sub.ok, hx, np.nan), parts
+        return np.where(sub.ok, hx, np.nan), parts, sub
 
-    def gap(y, sx, hx):
-        return (h_on_isentrope(y, sx)[0] - hx) / scale
+    def gap(T, sx, hx):
+        return (state_on_isentrope(T, sx)[0] - hx) / scale
 
-    lo, hi = np.full(n, np.log(Pc / 1e3)), np.full(n, np.log(10.0 * Pc))
-    g_lo, g_hi = gap(lo, s, h), gap(hi, s, h)
-    for _ in range(9):
-        high = g_lo > 0.0
-        if not high.any():
+    # from the coldest temperature up, doubling: lo is the last T where h is still short of
+    # the target, hi the first where it is not. An isentrope may have no state at a given T
+    # (at the cold end for a hot target, far out in volume; at the hot end, packed to the
+    # co-volume): NaN there, skipped below the bracket and the end of it above.
+    T_cold = _coldest_temperature(model)
+    lo, hi = np.full(n, np.nan), np.full(n, T_cold)
+    g_lo, g_hi = np.full(n, np.nan), np.full(n, np.nan)
+    open_ = np.ones(n, bool)
+    for _ in range(int(np.ceil(np.log2(256.0 * Tc / T_cold))) + 1):
+        k = np.flatnonzero(open_)
+        if k.size == 0:
             break
-        lo = np.where(high, lo - np.log(100.0), lo)
-        g_lo = np.where(high, gap(lo, s, h), g_lo)
-    for _ in range(10):
-        low = g_hi < 0.0
-        if not low.any():
+        g = gap(hi[k], s[k], h[k])
+        g_hi[k] = g
+        done = (g >= 0.0) | (~np.isfinite(g) & np.isfinite(lo[k]))   # bracketed, or the isentrope ended
+        short = g < 0.0
+        lo[k[short]], g_lo[k[short]] = hi[k[short]], g[short]
+        open_[k[done]] = False
+        hi[k[~done]] *= 2.0
+    # where doubling stepped past the isentrope's last state (a steep isentrope of a heavy
+    # molecule: P grows like T^(cp/R)), close in on the target between lo and that step
+    stuck = np.flatnonzero(np.isfinite(g_lo) & ~np.isfinite(g_hi))
+    bad = hi[stuck].copy()
+    for _ in range(60):
+        if stuck.size == 0:
             break
-        hi = np.where(low, hi + np.log(10.0), hi)
-        g_hi = np.where(low, gap(hi, s, h), g_hi)
-    bracketed = (g_lo <= 0.0) & (g_hi >= 0.0)
+        mid = np.sqrt(lo[stuck] * bad)
+        g = gap(mid, s[stuck], h[stuck])
+        up, short, nan = g >= 0.0, g < 0.0, ~np.isfinite(g)
+        hi[stuck[up]], g_hi[stuck[up]] = mid[up], g[up]
+        lo[stuck[short]], g_lo[stuck[short]] = mid[short], g[short]
+        bad = np.where(nan, mid, bad)
+        keep = ~up & (bad / lo[stuck] > 1.0 + 1e-12)
+        stuck, bad = stuck[keep], bad[keep]
+    bracketed = (g_lo < 0.0) & (g_hi >= 0.0)
+    exact = np.isnan(lo) & (g_hi == 0.0)   # the coldest temperature itself
+    bracketed |= exact
+    lo = np.where(exact, hi, lo)
     problems.flag(~bracketed, lambda i: (
-        f"no pressure between {np.exp(lo[i]):.3g} Pa and {np.exp(hi[i]):.3g} Pa gives h = {h[i]:.6g} J/mol on the "
-        f"isentrope s = {s[i]:.6g} J/(mol K) of {model.name} for {model.fluid.name} (the isentrope leaves the "
-        "model's range of temperature first, or h lies beyond it); check the values, their units and their "
-        "reference state."), kind=DomainError)
-    P = np.full(n, np.nan)
+        f"no temperature from {T_cold:.4g} K to {256 * Tc:.4g} K gives h = {h[i]:.6g} J/mol on the isentrope "
+        f"s = {s[i]:.6g} J/(mol K) of {model.name} for {model.fluid.name} "
+        + (f"(h there is at least {h[i] + g_hi[i] * scale:.6g} J/mol)" if np.isnan(lo[i]) and np.isfinite(g_hi[i])
+           else "(the isentrope leaves the model's range of states first)")
+        + ". Check the values, their units and their reference state."), kind=DomainError)
+    T = np.full(n, np.nan)
     convergence = None
     j = np.flatnonzero(bracketed & problems.ok)
     if j.size:
-        result = find_root(gap, bracket=(lo[j], hi[j]), args=(s[j], h[j]), **_OPTIONS)
+        result = find_root(gap, bracket=(lo[j], hi[j]), args=(s[j], h[j]), xtol=0.0,
+                           rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
         convergence = (result, j)
         ok = np.asarray(result.converged)
-        P[j[ok]] = np.exp(np.asarray(result.root)[ok])
-        problems.flag_at(j[~ok], [f"the pressure at h = {h[k]:.6g} J/mol, s = {s[k]:.6g} J/(mol K) did not "
+        T[j[ok]] = np.asarray(result.root)[ok]
+        problems.flag_at(j[~ok], [f"the temperature at h = {h[k]:.6g} J/mol, s = {s[k]:.6g} J/(mol K) did not "
                                   "converge." for k in j[~ok]])
-    sub = Problems(n, (n,), strict=False)
-    parts = _from_P_energy(model, {"P": np.where(np.isfinite(P), P, Pc), "s": s}, sub, None, name="s")
+    _, parts, sub = state_on_isentrope(np.where(np.isfinite(T), T, Tc), s)
     problems.flag(~sub.ok, lambda i: str(sub.reason[i]), kind=DomainError)
-    parts["P"] = P
+    parts["T"] = T
     parts["convergence"] = convergence
+    parts.pop("P_other", None), parts.pop("notes", None)
     return parts
