@@ -119,6 +119,7 @@ def test_T_h_two_solutions_against_a_brute_force_scan(fluid, T, known):
     assert got.P == pytest.approx(scanned[0], rel=1e-7)        # the lower pressure is the state
     assert got.P_other == pytest.approx(scanned[1], rel=1e-7)  # the higher one is P_other
     assert "lower pressure" in " ".join(got.warnings)
+    assert "Second pressure with this T and h" in str(got)   # the printed state shows it too
 
 
 def test_T_h_below_the_isotherms_minimum_is_refused_with_it(propane):

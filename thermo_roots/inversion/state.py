@@ -98,7 +98,7 @@ def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, erro
 
     The energy pairs (brackets from the physics; details in ``pairs_energy``): (P, h) and
     (P, s) bracket T (cp > 0), (u, v) brackets T (cv > 0), (T, s) brackets v (s rises with
-    v along an isotherm), (h, s) brackets P along the isentrope ((dh/dP)_s = v > 0), each
+    v along an isotherm), (h, s) brackets T along the isentrope (h rises with P and T there), each
     with the two-phase segment solved for the quality in closed form. (T, h) is not unique
     in general: along an isotherm h falls to a minimum (where mu_JT = 0) and rises again,
     so an h between that minimum and the ideal gas's h0(T) is reached at two pressures. The
