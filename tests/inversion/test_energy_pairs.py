@@ -237,3 +237,19 @@ def test_h_s_on_a_steep_isentrope(cls):
         st = tr.solve(model, T=Tr * model.fluid.Tc, P=Pr * model.fluid.Pc)
         back = tr.solve(model, h=st.h, s=st.s)
         assert back.T == pytest.approx(st.T, rel=1e-9) and back.P == pytest.approx(st.P, rel=1e-9)
+
+
+def test_h_s_arrays_keep_their_good_elements_and_the_finders_record(propane):
+    model = tr.PengRobinson(propane)
+    st = tr.solve(model, T=np.array([300.0, 350.0, 400.0]), P=np.array([1e5, 2e6, 5e6]))
+    h = np.array(st.h)
+    h[1] = -1e6   # far below anything the isentrope reaches in the model's range
+    back = tr.solve(model, h=h, s=st.s)
+    assert back.phase[1] == "not solved" and "isentrope" in back.reason[1] and np.isnan(back.T[1])
+    np.testing.assert_allclose(back.T[[0, 2]], st.T[[0, 2]], rtol=1e-9)
+    assert np.shape(back.convergence.root) == (3,) and back.convergence.converged[[0, 2]].all()
+    assert any("1 of 3 states not solved" in w for w in back.warnings)
+    with pytest.raises(tr.DomainError, match=r"At index \(1,\).*isentrope"):
+        tr.solve(model, h=h, s=st.s, errors="raise")
+    scalar = tr.solve(model, T=300.0, s=float(st.s[0]))
+    assert scalar.convergence.is_scalar and scalar.convergence.converged

@@ -45,7 +45,7 @@ def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, erro
 
     Parameters
     ----------
-    model : IdealGas or CubicModel
+    model : Model (IdealGas or a CubicModel)
         A model object, e.g. ``PengRobinson(get_fluid("propane"))``.
     branch : {"stable", "liquid", "vapor"}
         For (T, P): which root to report. "stable" (default) takes the lowest Gibbs
