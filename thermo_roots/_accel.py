@@ -32,6 +32,7 @@ from __future__ import annotations
 
 import contextlib
 import functools
+import math
 import os
 import weakref
 
@@ -156,6 +157,53 @@ def saturation_kernel(model):
 
 
 _saturation_runs = weakref.WeakKeyDictionary()   # model -> its saturation_kernel(model)
+
+#: How many times each compiled loop has run in this process (tests read it to see that a
+#: path was taken, never a timing).
+RUNS = {"caloric": 0}
+
+#: States per numpy pass over the T-only ideal-gas terms of the caloric loop (fits the cache).
+CHUNK = 8192
+
+
+def caloric_kernel(model):
+    """A compiled ``f(T, v, P, shape) -> 10 arrays`` (the fields of properties.Caloric), or None.
+
+    None when numba is missing or switched off, when the model is not one the loop knows
+    (``model.formula_parameters()`` is None: a custom alpha function) or its fluid has no
+    ideal-gas part. The loop calls the formula functions of ideal_gas, models and
+    properties that the numpy path calls, compiled (see thermo_roots._accel_kernels).
+    """
+    kernels = None if _switched_off else _compiled()
+    if kernels is None:
+        return None
+    cubic, ideal = model.formula_parameters(), model.fluid.ideal_gas
+    if cubic is None or ideal is None:
+        return None
+    dR, M = R - ideal.R, float(model.fluid.molar_mass)
+
+    def run(T, v, P, shape):
+        n, given_P = math.prod(shape), P is not None
+        T, v, P = (np.ascontiguousarray(np.broadcast_to(x, shape), dtype=float).reshape(n)
+                   for x in (T, v, 0.0 if P is None else P))
+        tau, parts = np.empty(n), np.empty((3, n))
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            for start in range(0, n, CHUNK):   # the T-only ideal terms in numpy, cache-sized
+                part = slice(start, start + CHUNK)
+                T_part = T[part]
+                if not (T_part > 0).all():
+                    T_part = np.where(T_part > 0, T_part, np.nan)
+                tau_part = ideal.T_r / T_part
+                if not (tau_part > 0).all():
+                    tau_part = np.where(tau_part > 0, tau_part, np.nan)
+                tau[part] = tau_part
+                parts[0, part], parts[1, part], parts[2, part] = ideal._tau_part(tau_part)
+        out = np.empty((10, n))
+        kernels.caloric_loop(T, v, P, given_P, cubic, tau, parts, ideal.R, ideal.rho_r, dR, R, M, out)
+        RUNS["caloric"] += 1
+        return tuple(row.reshape(shape) for row in out)
+
+    return run
 
 
 @functools.lru_cache(maxsize=1)
