@@ -38,6 +38,7 @@ import weakref
 
 import numpy as np
 
+from . import ideal_gas, models
 from .models import PR76, PR78, RK, SRK, VDW, R, _kappa_pr76, _kappa_pr78, _m_soave
 
 #: Alpha functions the kernel knows, by code: constant, Redlich-Kwong Tr^-1/2, Soave form.
@@ -180,28 +181,36 @@ def caloric_kernel(model):
     cubic, ideal = model.formula_parameters(), model.fluid.ideal_gas
     if cubic is None or ideal is None:
         return None
-    dR, M = R - ideal.R, float(model.fluid.molar_mass)
+    terms, dR, M = ideal.terms, R - ideal.R, float(model.fluid.molar_mass)
 
     def run(T, v, P, shape):
         n, given_P = math.prod(shape), P is not None
         T, v, P = (np.ascontiguousarray(np.broadcast_to(x, shape), dtype=float).reshape(n)
                    for x in (T, v, 0.0 if P is None else P))
-        tau, parts = np.empty(n), np.empty((3, n))
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            for start in range(0, n, CHUNK):   # the T-only ideal terms in numpy, cache-sized
+            if not ((T > 0) & (T < np.inf)).all():   # the numpy path's guards: NaN where T or v is not
+                T = np.where((T > 0) & (T < np.inf), T, np.nan)   # positive, or tau = T_r/T is not
+            if not (v > 0).all():
+                v = np.where(v > 0, v, np.nan)
+            out = np.empty((10, n))
+            if given_P:   # P is passed through, as on the numpy path: no row to fill
+                out = out[:9]
+            logs = np.empty((8, min(n, CHUNK)))
+            d1, d2 = cubic.delta1, cubic.delta2
+            for start in range(0, n, CHUNK):   # what needs exp or log in numpy, a cache-sized part at a time
                 part = slice(start, start + CHUNK)
-                T_part = T[part]
-                if not (T_part > 0).all():
-                    T_part = np.where(T_part > 0, T_part, np.nan)
-                tau_part = ideal.T_r / T_part
-                if not (tau_part > 0).all():
-                    tau_part = np.where(tau_part > 0, tau_part, np.nan)
-                tau[part] = tau_part
-                parts[0, part], parts[1, part], parts[2, part] = ideal._tau_part(tau_part)
-        out = np.empty((10, n))
-        kernels.caloric_loop(T, v, P, given_P, cubic, tau, parts, ideal.R, ideal.rho_r, dR, R, M, out)
+                T_part, v_part = T[part], v[part]
+                rows = logs[:, :T_part.size]
+                np.divide(ideal.T_r, T_part, out=rows[0])
+                rows[1], rows[2], rows[3] = ideal_gas.tau_part(terms, rows[0])
+                rows[4], rows[5] = ideal_gas.ideal_logs(T_part, v_part, ideal.rho_r)
+                rows[6] = models.cubic_repulsion(v_part, cubic.v_min)
+                w = v_part + cubic.c
+                rows[7] = models.cubic_log_ratio(w + d1 * cubic.b, w + d2 * cubic.b, d1, d2)
+                kernels.caloric_loop(T_part, v_part, P[part], given_P, cubic, rows, ideal.R, dR, R, M, out[:, part])
         RUNS["caloric"] += 1
-        return tuple(row.reshape(shape) for row in out)
+        fields = (P.reshape(shape),) if given_P else ()
+        return fields + tuple(row.reshape(shape) for row in out)
 
     return run
 

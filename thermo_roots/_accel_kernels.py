@@ -59,36 +59,38 @@ caloric_from_helmholtz = _caloric["caloric_from_helmholtz"]
 
 
 def _make_caloric_loop(fingerprint):
-    def caloric_loop(T_in, v_in, P_in, given_P, cubic, tau_in, ideal_in, R_ideal, rho_r, dR, R_model, M, out):
-        """(P, h, s, u, g, cp, cv, w, mu_jt, kappa_T) of each state into the rows of out: the
+    def caloric_loop(T_in, v_in, P_in, given_P, cubic, logs, R_ideal, dR, R_model, M, out):
+        """(P, h, s, u, g, cp, cv, w, mu_jt, kappa_T) of each state into the rows of out (without P
+        when given_P: then out has the other nine rows): the
         numpy path of properties.caloric (ideal part, gas-constant shift, residual bundle,
         the relations) state by state, with the same formula functions.
 
-        tau_in and the rows of ideal_in (A, A_t, A_tt: ideal_gas.tau_part) depend on T
-        only and come from numpy, whose vectorized exp and log are several times cheaper
-        per element than a scalar call in this loop; tau_in is NaN where T or tau is not
-        positive, as on the numpy path."""
+        The rows of ``logs`` hold what needs exp or log: tau, the tau part A, A_t, A_tt
+        (ideal_gas.tau_part), ln delta and ln T (ideal_gas.ideal_logs), ln(1 - v_min/v)
+        and ln(e1/e2) (models.cubic_repulsion, cubic_log_ratio). They come from numpy, whose
+        vectorized exp and log cost a fraction of a scalar call here; this loop then runs
+        on arithmetic, divisions and square roots alone, without temporaries."""
         if fingerprint < 0:   # never: keeps the fingerprint in the closure (the cache key)
             R_model = np.nan
-        a_c = cubic.a_c
+        a_c, b, c, v_min, d1, d2 = cubic.a_c, cubic.b, cubic.c, cubic.v_min, cubic.delta1, cubic.delta2
         for i in range(T_in.size):
-            T, v, tau = T_in[i], v_in[i], tau_in[i]
-            Ti = T if tau == tau else np.nan   # the ideal part's guards: NaN where T or v <= 0
-            vi = v if v > 0.0 else np.nan
-            a0, a0_T, a0_TT, a0_v, a0_vv, a0_Tv = ideal_molar(R_ideal, rho_r, Ti, vi, tau, ideal_in[0, i],
-                                                              ideal_in[1, i], ideal_in[2, i])
+            T, v, tau = T_in[i], v_in[i], logs[0, i]
+            ln_delta, ln_T = logs[4, i], logs[5, i]
+            a0, a0_T, a0_TT, a0_v, a0_vv, a0_Tv = ideal_molar(R_ideal, T, v, tau, ln_delta, logs[1, i], logs[2, i],
+                                                              logs[3, i])
             if dR != 0.0:
-                s0, s1, s2, s3, s4, s5 = gas_constant_shift(dR, rho_r, T, v)
+                s0, s1, s2, s3, s4, s5 = gas_constant_shift(dR, T, v, ln_delta, ln_T)
                 a0, a0_T, a0_TT = a0 + s0, a0_T + s1, a0_TT + s2
                 a0_v, a0_vv, a0_Tv = a0_v + s3, a0_vv + s4, a0_Tv + s5
             alpha, dalpha, d2alpha = alpha_parts(cubic.alpha_kind, T, cubic.Tc, cubic.slope)
             r0, r1, r2, r3, r4, r5 = cubic_residual(T, v, R_model, a_c * alpha, a_c * dalpha, a_c * d2alpha,
-                                                    cubic.b, cubic.c, cubic.v_min, cubic.delta1, cubic.delta2)
+                                                    b, c, v_min, d1, d2, logs[6, i], logs[7, i])
             a_v = a0_v + r3
             P = P_in[i] if given_P else -a_v
             props = caloric_from_helmholtz(T, v, P, M, a0 + r0, a0_T + r1, a0_TT + r2, a_v, a0_vv + r4, a0_Tv + r5)
-            for k in range(10):
-                out[k, i] = props[k]
+            skip = 1 if given_P else 0   # a given P is not written back (out has 9 rows then)
+            for k in range(skip, 10):
+                out[k - skip, i] = props[k]
 
     return jit(caloric_loop)
 

@@ -215,7 +215,8 @@ class IdealGasPart:
                 v = np.where(v > 0, v, np.nan)
             tau = self.T_r / T
             A, A_t, A_tt = self._tau_part(tau)
-            parts = ideal_molar(R, self.rho_r, T, v, tau, A, A_t, A_tt)
+            ln_delta, _ = ideal_logs(T, v, self.rho_r)
+            parts = ideal_molar(R, T, v, tau, ln_delta, A, A_t, A_tt)
         return IdealHelmholtz(*(_out(x) for x in parts))
 
     def cp0(self, T):
@@ -309,10 +310,15 @@ def tau_part(terms, tau):
     return A, A_t, A_tt
 
 
-def ideal_molar(R, rho_r, T, v, tau, A, A_t, A_tt):
+def ideal_logs(T, v, rho_r):
+    """ln delta = -ln(v rho_r) and ln T [-]: the logarithms the molar form and the gas-constant
+    shift need, computed apart so that a compiled loop can take them from numpy."""
+    return -np.log(v * rho_r), np.log(T)
+
+
+def ideal_molar(R, T, v, tau, ln_delta, A, A_t, A_tt):
     """a0 = R T alpha0 and its T and v derivatives (a, a_T, a_TT, a_v, a_vv, a_Tv) from the
-    tau part (A, A_t, A_tt) of alpha0 at tau = T_r / T (Span 2000, table 3.3)."""
-    ln_delta = -np.log(v * rho_r)
+    tau part (A, A_t, A_tt) of alpha0 at tau = T_r / T and ln delta (Span 2000, table 3.3)."""
     RT = R * T
     lead = ln_delta + A
     return RT * lead, R * (lead - tau * A_t), R * tau * tau * A_tt / T, -RT / v, RT / (v * v), -R / v
@@ -395,7 +401,7 @@ def _cp0_cosh(c, theta, T, T_0):
 
 
 #: The formula functions of this module that thermo_roots._accel_kernels compiles.
-FORMULAS = ("tau_part", "ideal_molar", "_power_term", "_planck_einstein_term", "_cp0_term", "_cp0_power",
+FORMULAS = ("tau_part", "ideal_logs", "ideal_molar", "_power_term", "_planck_einstein_term", "_cp0_term", "_cp0_power",
             "_sinh_parts", "_cp0_sinh", "_cosh_parts", "_cp0_cosh")
 
 

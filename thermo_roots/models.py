@@ -213,11 +213,23 @@ PR78 = CubicFamily("Peng-Robinson 1978", 1.0 + SQRT2, 1.0 - SQRT2, _soave_alpha(
 # delta1, delta2): CubicModel calls them on arrays, thermo_roots._accel_kernels compiles the
 # same functions for its loops. e1 = v_cubic + delta1 b, e2 = v_cubic + delta2 b, D = e1 e2.
 
-def cubic_attraction_integral(e1, e2, d1, d2, b):
+def cubic_repulsion(v, v_min):
+    """ln(1 - v_min / v) [-], the logarithm of the repulsive term."""
+    return np.log1p(-v_min / v)
+
+
+def cubic_log_ratio(e1, e2, d1, d2):
+    """ln(e1 / e2) [-] of the attractive term (0 when d1 == d2, where none is needed)."""
+    if d1 == d2:
+        return 0.0 * e1
+    return np.log(e1 / e2)
+
+
+def cubic_attraction_integral(e1, d1, d2, b, log_ratio):
     """I(v) = integral from v to infinity of dv' / ((v' + d1 b)(v' + d2 b)) [mol/m^3]."""
     if d1 == d2:
         return 1.0 / e1
-    return np.log(e1 / e2) / ((d1 - d2) * b)
+    return log_ratio / ((d1 - d2) * b)
 
 
 def cubic_pressure(RT, a, gap, D):
@@ -245,13 +257,15 @@ def cubic_residual_entropy(R, da, repulsion, integral):
     return R * repulsion + da * integral
 
 
-def cubic_residual(T, v, R, a, da, d2a, b, c, v_min, d1, d2):
+def cubic_residual(T, v, R, a, da, d2a, b, c, v_min, d1, d2, repulsion, log_ratio):
     """The residual Helmholtz bundle (a, a_T, a_TT, a_v, a_vv, a_Tv) of the generalized cubic.
 
     a(T) = a [Pa m^6/mol^2] with da, d2a its T-derivatives; b, c, v_min = b - c [m^3/mol];
-    d1, d2 [-]. a_res = -R T ln(1 - v_min/v) - a I(v), a_T = -s_res, a_TT = -a''(T) I(v),
-    and the v derivatives from the pressure and its slopes: a_v = R T/v - P,
-    a_vv = -dP/dv - R T/v^2, a_Tv = R/v - dP/dT (Michelsen & Mollerup 2007, ch. 3).
+    d1, d2 [-]; the logarithms from :func:`cubic_repulsion` and :func:`cubic_log_ratio`
+    (given, so that a compiled loop can take them from numpy's vectorized log).
+    a_res = -R T ln(1 - v_min/v) - a I(v), a_T = -s_res, a_TT = -a''(T) I(v), and the v
+    derivatives from the pressure and its slopes: a_v = R T/v - P, a_vv = -dP/dv - R T/v^2,
+    a_Tv = R/v - dP/dT (Michelsen & Mollerup 2007, ch. 3).
     """
     w = v + c
     e1 = w + d1 * b
@@ -259,8 +273,7 @@ def cubic_residual(T, v, R, a, da, d2a, b, c, v_min, d1, d2):
     D = e1 * e2
     gap = v - v_min
     RT = R * T
-    integral = cubic_attraction_integral(e1, e2, d1, d2, b)
-    repulsion = np.log1p(-v_min / v)
+    integral = cubic_attraction_integral(e1, d1, d2, b, log_ratio)
     return (cubic_residual_helmholtz(RT, a, repulsion, integral),
             -cubic_residual_entropy(R, da, repulsion, integral),
             -d2a * integral,
@@ -284,7 +297,8 @@ class CubicParameters(NamedTuple):
 
 
 #: The formula functions of this module that thermo_roots._accel_kernels compiles.
-FORMULAS = ("redlich_kwong_alpha_parts", "soave_alpha_parts", "alpha_parts", "cubic_attraction_integral",
+FORMULAS = ("redlich_kwong_alpha_parts", "soave_alpha_parts", "alpha_parts", "cubic_repulsion", "cubic_log_ratio",
+            "cubic_attraction_integral",
             "cubic_pressure", "cubic_dP_dv", "cubic_dP_dT", "cubic_residual_helmholtz", "cubic_residual_entropy",
             "cubic_residual")
 
@@ -467,7 +481,8 @@ class CubicModel(Model):
     def _attraction_integral(self, v):
         """I(v) = integral from v to infinity of dv' / ((v' + d1 b)(v' + d2 b)) [mol/m^3]."""
         e1, e2, _ = self._factors(v)
-        return cubic_attraction_integral(e1, e2, self.delta1, self.delta2, self.b)
+        d1, d2 = self.delta1, self.delta2
+        return cubic_attraction_integral(e1, d1, d2, self.b, cubic_log_ratio(e1, e2, d1, d2))
 
     # -- properties of (T, v)
     def pressure(self, T, v):
@@ -493,14 +508,14 @@ class CubicModel(Model):
         """Residual Helmholtz energy a_res(T, v) [J/mol] against the ideal gas at the same T, v."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         a, _ = self.attraction(T)
-        return _scalar_or_array(cubic_residual_helmholtz(R * T, a, np.log1p(-self.v_min / v),
+        return _scalar_or_array(cubic_residual_helmholtz(R * T, a, cubic_repulsion(v, self.v_min),
                                                          self._attraction_integral(v)))
 
     def residual_entropy(self, T, v):
         """Residual entropy s_res(T, v) [J/(mol K)] against the ideal gas at the same T, v."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         _, da = self.attraction(T)
-        return _scalar_or_array(cubic_residual_entropy(R, da, np.log1p(-self.v_min / v), self._attraction_integral(v)))
+        return _scalar_or_array(cubic_residual_entropy(R, da, cubic_repulsion(v, self.v_min), self._attraction_integral(v)))
 
     def residual_enthalpy(self, T, v):
         """Residual enthalpy h_res [J/mol] against the ideal gas at the same T and P."""
@@ -520,10 +535,11 @@ class CubicModel(Model):
         """
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         alpha, dalpha, d2alpha = self.family.alpha(T, self.fluid.Tc, self.fluid.omega)
-        a_c = self.a_c
+        a_c, d1, d2 = self.a_c, self.delta1, self.delta2
         with np.errstate(invalid="ignore", divide="ignore"):
-            parts = cubic_residual(T, v, R, a_c * alpha, a_c * dalpha, a_c * d2alpha, self.b, self.c,
-                                   self.v_min, self.delta1, self.delta2)
+            e1, e2, _ = self._factors(v)
+            parts = cubic_residual(T, v, R, a_c * alpha, a_c * dalpha, a_c * d2alpha, self.b, self.c, self.v_min,
+                                   d1, d2, cubic_repulsion(v, self.v_min), cubic_log_ratio(e1, e2, d1, d2))
         return Helmholtz(*(_scalar_or_array(x) for x in parts))
 
     def ln_phi(self, T, v, P=None):

@@ -25,6 +25,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from .ideal_gas import ideal_logs
 from .models import Helmholtz, R
 
 
@@ -75,10 +76,10 @@ def _ideal_part(model):
 # Plain arithmetic on floats or arrays: the numpy path below calls them on arrays, and
 # thermo_roots._accel_kernels compiles the same functions for its loop (``FORMULAS``).
 
-def gas_constant_shift(dR, rho_r, T, v):
-    """dR T (ln(delta T) - 1) and its T, v derivatives (a, a_T, a_TT, a_v, a_vv, a_Tv); see
-    :func:`_gas_constant_shift`."""
-    L = np.log(T / (v * rho_r)) - 1.0   # ln(delta T) - 1, delta = 1/(v rho_r)
+def gas_constant_shift(dR, T, v, ln_delta, ln_T):
+    """dR T (ln(delta T) - 1) and its T, v derivatives (a, a_T, a_TT, a_v, a_vv, a_Tv), with
+    ln delta and ln T from ideal_gas.ideal_logs; see :func:`_gas_constant_shift`."""
+    L = ln_delta + ln_T - 1.0   # ln(delta T) - 1, delta = 1/(v rho_r)
     return dR * T * L, dR * (L + 1.0), dR / T, -dR * T / v, dR * T / (v * v), -dR / v
 
 
@@ -117,7 +118,7 @@ def _gas_constant_shift(ideal, T, v) -> Helmholtz:
         zero = np.zeros(np.broadcast(T, v).shape)
         return Helmholtz(zero, zero, zero, zero, zero, zero)
     with np.errstate(invalid="ignore", divide="ignore"):
-        return Helmholtz(*gas_constant_shift(dR, ideal.rho_r, T, v))
+        return Helmholtz(*gas_constant_shift(dR, T, v, *ideal_logs(T, v, ideal.rho_r)))
 
 
 def caloric(model, T, v, P=None) -> Caloric:

@@ -987,11 +987,14 @@ def _state_caloric(state):
 
     T, P, v = (np.asarray(x, dtype=float) for x in (state.T, state.P, state.v))
     ok = np.isfinite(v)
-    single = _caloric_on_reference(state.model, T, np.where(ok, v, 1.0), np.where(ok, P, 1.0))
-    two = np.asarray(state.phase == "two-phase")
+    every = bool(ok.all())   # then no masking: each np.where costs a pass over 10^6 states
+    single = _caloric_on_reference(state.model, T, *((v, P) if every else (np.where(ok, v, 1.0), np.where(ok, P, 1.0))))
+    two = np.isfinite(np.asarray(state.quality, dtype=float))   # quality is NaN outside the dome, so only
+    if two.any():                                                  # these need the (slower) phase words
+        two[two] = np.asarray(state.phase, dtype=object)[two] == "two-phase"
     values = {}
     for name in Caloric._fields:
-        x = np.where(ok, getattr(single, name), np.nan)
+        x = getattr(single, name) if every else np.where(ok, getattr(single, name), np.nan)
         if two.any() and name in _SINGLE_PHASE_ONLY:
             x = np.where(two, np.nan, x)
         values[name] = x
