@@ -989,7 +989,7 @@ def _state_caloric(state):
     ok = np.isfinite(v)
     every = bool(ok.all())   # then no masking: each np.where costs a pass over 10^6 states
     single = _caloric_on_reference(state.model, T, *((v, P) if every else (np.where(ok, v, 1.0), np.where(ok, P, 1.0))))
-    two = np.isfinite(np.asarray(state.quality, dtype=float))   # quality is NaN outside the dome, so only
+    two = np.array(np.isfinite(np.asarray(state.quality, dtype=float)))   # quality: NaN outside the dome, so only
     if two.any():                                                  # these need the (slower) phase words
         two[two] = np.asarray(state.phase, dtype=object)[two] == "two-phase"
     values = {}
