@@ -39,11 +39,10 @@ import weakref
 import numpy as np
 
 from . import ideal_gas, models
-from .models import PR76, PR78, RK, SRK, VDW, R, _kappa_pr76, _kappa_pr78, _m_soave
+from .models import R
 
-#: Alpha functions the kernel knows, by code: constant, Redlich-Kwong Tr^-1/2, Soave form.
-_ALPHA_CONSTANT, _ALPHA_RK, _ALPHA_SOAVE = 0, 1, 2
-_SOAVE_SLOPES = {SRK: _m_soave, PR76: _kappa_pr76, PR78: _kappa_pr78}
+# The alpha codes (models.ALPHA_CONSTANT, ALPHA_REDLICH_KWONG, ALPHA_SOAVE = 0, 1, 2) are the
+# ones alpha_value in _accel_kernels dispatches on; CubicFamily.compiled_alpha names them.
 
 
 _switched_off = []   # non-empty inside `disabled()`
@@ -67,17 +66,14 @@ def available() -> bool:
 def _model_inputs(model):
     """(alpha kind, parameter tuple) of the model for the compiled loops, or None.
 
-    None when the model's alpha function is not one of the built-in families.
+    None when the model's alpha function is not one of the built-in formulas (its family's
+    ``compiled_alpha`` is None).
     """
-    family = model.family
-    if family is VDW:
-        kind, slope = _ALPHA_CONSTANT, 0.0
-    elif family is RK:
-        kind, slope = _ALPHA_RK, 0.0
-    elif family in _SOAVE_SLOPES:
-        kind, slope = _ALPHA_SOAVE, float(_SOAVE_SLOPES[family](model.fluid.omega))
-    else:
+    known = model.family.compiled_alpha
+    if known is None:
         return None
+    kind, slope_of = known
+    slope = 0.0 if slope_of is None else float(slope_of(model.fluid.omega))
     params = tuple(float(x) for x in (model.fluid.Tc, model.fluid.Pc, model.a_c, model.b, model.c,
                                       model.v_min, model.v_c, model.delta1, model.delta2, slope, R))
     return kind, params
