@@ -191,19 +191,22 @@ def caloric_kernel(model):
             out = np.empty((10, n))
             if given_P:   # P is passed through, as on the numpy path: no row to fill
                 out = out[:9]
-            logs = np.empty((8, min(n, CHUNK)))
+            planck = terms.planck_einstein
+            logs = np.empty((8 + 2 * planck.shape[0], min(n, CHUNK)))
             d1, d2 = cubic.delta1, cubic.delta2
             for start in range(0, n, CHUNK):   # what needs exp or log in numpy, a cache-sized part at a time
                 part = slice(start, start + CHUNK)
                 T_part, v_part = T[part], v[part]
                 rows = logs[:, :T_part.size]
                 np.divide(ideal.T_r, T_part, out=rows[0])
-                rows[1], rows[2], rows[3] = ideal_gas.tau_part(terms, rows[0])
+                rows[1], rows[2], rows[3] = ideal_gas.tau_part_without_planck_einstein(terms, rows[0])
+                for k, (_, theta, c, d) in enumerate(planck):
+                    rows[8 + 2 * k], rows[9 + 2 * k] = ideal_gas._planck_einstein_exp(rows[0], theta, c, d)
                 rows[4], rows[5] = ideal_gas.ideal_logs(T_part, v_part, ideal.rho_r)
                 rows[6] = models.cubic_repulsion(v_part, cubic.v_min)
                 w = v_part + cubic.c
                 rows[7] = models.cubic_log_ratio(w + d1 * cubic.b, w + d2 * cubic.b, d1, d2)
-                kernels.caloric_loop(T_part, v_part, P[part], given_P, cubic, rows, ideal.R, dR, R, M, out[:, part])
+                kernels.caloric_loop(T_part, v_part, P[part], given_P, cubic, planck, rows, ideal.R, dR, R, M, out[:, part])
         RUNS["caloric"] += 1
         fields = (P.reshape(shape),) if given_P else ()
         return fields + tuple(row.reshape(shape) for row in out)

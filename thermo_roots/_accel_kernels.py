@@ -52,6 +52,7 @@ _ideal = _compile_formulas(ideal_gas)
 _cubic = _compile_formulas(models)
 _caloric = _compile_formulas(properties)
 ideal_molar = _ideal["ideal_molar"]
+planck_einstein_term = _ideal["_planck_einstein_term"]
 alpha_parts = _cubic["alpha_parts"]
 cubic_residual = _cubic["cubic_residual"]
 gas_constant_shift = _caloric["gas_constant_shift"]
@@ -59,15 +60,17 @@ caloric_from_helmholtz = _caloric["caloric_from_helmholtz"]
 
 
 def _make_caloric_loop(fingerprint):
-    def caloric_loop(T_in, v_in, P_in, given_P, cubic, logs, R_ideal, dR, R_model, M, out):
+    def caloric_loop(T_in, v_in, P_in, given_P, cubic, planck, logs, R_ideal, dR, R_model, M, out):
         """(P, h, s, u, g, cp, cv, w, mu_jt, kappa_T) of each state into the rows of out (without P
         when given_P: then out has the other nine rows): the
         numpy path of properties.caloric (ideal part, gas-constant shift, residual bundle,
         the relations) state by state, with the same formula functions.
 
-        The rows of ``logs`` hold what needs exp or log: tau, the tau part A, A_t, A_tt
-        (ideal_gas.tau_part), ln delta and ln T (ideal_gas.ideal_logs), ln(1 - v_min/v)
-        and ln(e1/e2) (models.cubic_repulsion, cubic_log_ratio). They come from numpy, whose
+        The rows of ``logs`` hold what needs exp or log: tau, the tau part A, A_t, A_tt without
+        the Planck-Einstein terms (ideal_gas.tau_part_without_planck_einstein), ln delta and
+        ln T (ideal_gas.ideal_logs), ln(1 - v_min/v) and ln(e1/e2) (models.cubic_repulsion,
+        cubic_log_ratio), then y and ln g of each Planck-Einstein term, row k of ``planck``
+        (ideal_gas._planck_einstein_exp), added here as ideal_gas.tau_part adds them. They come from numpy, whose
         vectorized exp and log cost a fraction of a scalar call here; this loop then runs
         on arithmetic, divisions and square roots alone, without temporaries."""
         if fingerprint < 0:   # never: keeps the fingerprint in the closure (the cache key)
@@ -76,8 +79,14 @@ def _make_caloric_loop(fingerprint):
         for i in range(T_in.size):
             T, v, tau = T_in[i], v_in[i], logs[0, i]
             ln_delta, ln_T = logs[4, i], logs[5, i]
-            a0, a0_T, a0_TT, a0_v, a0_vv, a0_Tv = ideal_molar(R_ideal, T, v, tau, ln_delta, logs[1, i], logs[2, i],
-                                                              logs[3, i])
+            A, A_t, A_tt = logs[1, i], logs[2, i], logs[3, i]
+            for k in range(planck.shape[0]):
+                x, x_t, x_tt = planck_einstein_term(planck[k, 0], planck[k, 1], planck[k, 2], planck[k, 3],
+                                                    logs[8 + 2 * k, i], logs[9 + 2 * k, i])
+                A += x
+                A_t += x_t
+                A_tt += x_tt
+            a0, a0_T, a0_TT, a0_v, a0_vv, a0_Tv = ideal_molar(R_ideal, T, v, tau, ln_delta, A, A_t, A_tt)
             if dR != 0.0:
                 s0, s1, s2, s3, s4, s5 = gas_constant_shift(dR, T, v, ln_delta, ln_T)
                 a0, a0_T, a0_TT = a0 + s0, a0_T + s1, a0_TT + s2

@@ -265,6 +265,26 @@ class IdealGasPart:
 def tau_part(terms, tau):
     """alpha0 - ln delta and its first two tau-derivatives [-] at tau > 0, from an :class:`IdealTerms`.
 
+    The terms other than Planck-Einstein (:func:`tau_part_without_planck_einstein`), then each
+    Planck-Einstein term from its exponential and logarithm (:func:`_planck_einstein_exp`,
+    :func:`_planck_einstein_term`): the split lets a compiled loop take the exp and log from
+    numpy and do the rest of each term itself.
+    """
+    A, A_t, A_tt = tau_part_without_planck_einstein(terms, tau)
+    rows = terms.planck_einstein
+    for i in range(rows.shape[0]):
+        n, theta, c, d = rows[i, 0], rows[i, 1], rows[i, 2], rows[i, 3]
+        y, log_g = _planck_einstein_exp(tau, theta, c, d)
+        x, x_t, x_tt = _planck_einstein_term(n, theta, c, d, y, log_g)
+        A += x
+        A_t += x_t
+        A_tt += x_tt
+    return A, A_t, A_tt
+
+
+def tau_part_without_planck_einstein(terms, tau):
+    """The lead, ln tau, power and cp0/R terms of alpha0 - ln delta with their tau-derivatives.
+
     Written with in-place operations on its own temporaries: for 10⁶ states these, not the
     arithmetic, would otherwise take most of the numpy path's time.
     """
@@ -280,12 +300,6 @@ def tau_part(terms, tau):
     rows = terms.power
     for i in range(rows.shape[0]):
         x, x_t, x_tt = _power_term(tau, inv, rows[i, 0], rows[i, 1])
-        A += x
-        A_t += x_t
-        A_tt += x_tt
-    rows = terms.planck_einstein
-    for i in range(rows.shape[0]):
-        x, x_t, x_tt = _planck_einstein_term(tau, rows[i, 0], rows[i, 1], rows[i, 2], rows[i, 3])
         A += x
         A_t += x_t
         A_tt += x_tt
@@ -321,7 +335,8 @@ def ideal_molar(R, T, v, tau, ln_delta, A, A_t, A_tt):
     tau part (A, A_t, A_tt) of alpha0 at tau = T_r / T and ln delta (Span 2000, table 3.3)."""
     RT = R * T
     lead = ln_delta + A
-    return RT * lead, R * (lead - tau * A_t), R * tau * tau * A_tt / T, -RT / v, RT / (v * v), -R / v
+    inv_v = 1.0 / v
+    return RT * lead, R * (lead - tau * A_t), R * tau * tau * A_tt / T, -RT * inv_v, RT * inv_v * inv_v, -R * inv_v
 
 
 def _power_term(tau, inv, n, t):
@@ -333,26 +348,40 @@ def _power_term(tau, inv, n, t):
     return p, t * p_t, (t * (t - 1.0)) * p_tt
 
 
-def _planck_einstein_term(tau, n, theta, c, d):
-    """n ln(c + d e^x), x = theta tau, and its tau-derivatives; for theta > 0 written as
-    n (x + ln(d + c e^-x)) so that e^x cannot overflow."""
+def _planck_einstein_exp(tau, theta, c, d):
+    """(y, ln g) of a Planck-Einstein term n ln(c + d e^x), x = theta tau: y = e^x and
+    g = c + d e^x, or for theta > 0 y = e^-x and ln g = x + ln(d + c e^-x), so that e^x cannot
+    overflow. The exp and log of the term, apart from the rest (:func:`_planck_einstein_term`)."""
     if theta > 0:
         y = np.exp(-theta * tau)
         g = c * y
         g += d
-        r = d / g                  # d e^x / (c + d e^x)
         log_g = np.log(g)
         log_g += theta * tau
-        cy = c * y
     else:
         y = np.exp(theta * tau)
         g = d * y
         g += c
-        r = d * y / g
         log_g = np.log(g)
+    return y, log_g
+
+
+def _planck_einstein_term(n, theta, c, d, y, log_g):
+    """n ln(c + d e^x) and its tau-derivatives from (y, ln g) of :func:`_planck_einstein_exp`."""
+    if theta > 0:
+        g = c * y
+        g += d
+        inv_g = 1.0 / g
+        r = d * inv_g              # d e^x / (c + d e^x)
+        cy = c * y
+    else:
+        g = d * y
+        g += c
+        inv_g = 1.0 / g
+        r = d * y * inv_g
         cy = c
     # d2: n theta² c d e^x / (c + d e^x)² = n theta² r c / (c + d e^x)
-    return n * log_g, (n * theta) * r, (n * theta * theta) * (r * (cy / g))
+    return n * log_g, (n * theta) * r, (n * theta * theta) * (r * (cy * inv_g))
 
 
 def _cp0_term(parts, T_c, inv, inv2):
@@ -401,7 +430,8 @@ def _cp0_cosh(c, theta, T, T_0):
 
 
 #: The formula functions of this module that thermo_roots._accel_kernels compiles.
-FORMULAS = ("tau_part", "ideal_logs", "ideal_molar", "_power_term", "_planck_einstein_term", "_cp0_term", "_cp0_power",
+FORMULAS = ("tau_part", "tau_part_without_planck_einstein", "ideal_logs", "ideal_molar", "_power_term",
+            "_planck_einstein_exp", "_planck_einstein_term", "_cp0_term", "_cp0_power",
             "_sinh_parts", "_cp0_sinh", "_cosh_parts", "_cp0_cosh")
 
 

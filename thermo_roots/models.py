@@ -274,12 +274,13 @@ def cubic_residual(T, v, R, a, da, d2a, b, c, v_min, d1, d2, repulsion, log_rati
     gap = v - v_min
     RT = R * T
     integral = cubic_attraction_integral(e1, d1, d2, b, log_ratio)
+    inv_v = 1.0 / v
     return (cubic_residual_helmholtz(RT, a, repulsion, integral),
             -cubic_residual_entropy(R, da, repulsion, integral),
             -d2a * integral,
-            RT / v - cubic_pressure(RT, a, gap, D),
-            -cubic_dP_dv(RT, a, gap, e1, e2, D) - RT / (v * v),
-            R / v - cubic_dP_dT(R, da, gap, D))
+            RT * inv_v - cubic_pressure(RT, a, gap, D),
+            -cubic_dP_dv(RT, a, gap, e1, e2, D) - RT * inv_v * inv_v,
+            R * inv_v - cubic_dP_dT(R, da, gap, D))
 
 
 class CubicParameters(NamedTuple):

@@ -80,7 +80,9 @@ def gas_constant_shift(dR, T, v, ln_delta, ln_T):
     """dR T (ln(delta T) - 1) and its T, v derivatives (a, a_T, a_TT, a_v, a_vv, a_Tv), with
     ln delta and ln T from ideal_gas.ideal_logs; see :func:`_gas_constant_shift`."""
     L = ln_delta + ln_T - 1.0   # ln(delta T) - 1, delta = 1/(v rho_r)
-    return dR * T * L, dR * (L + 1.0), dR / T, -dR * T / v, dR * T / (v * v), -dR / v
+    inv_v = 1.0 / v
+    dR_v = dR * inv_v
+    return dR * T * L, dR * (L + 1.0), dR / T, -T * dR_v, T * dR_v * inv_v, -dR_v
 
 
 def caloric_from_helmholtz(T, v, P, M, a, a_T, a_TT, a_v, a_vv, a_Tv):
@@ -91,11 +93,12 @@ def caloric_from_helmholtz(T, v, P, M, a, a_T, a_TT, a_v, a_vv, a_Tv):
     s = -a_T
     u = a + T * s
     cv = -T * a_TT
-    cp = cv - T * dP_dT * dP_dT / dP_dv
-    dv_dT = -dP_dT / dP_dv
+    inv_slope = 1.0 / dP_dv
+    dv_dT = -dP_dT * inv_slope
+    cp = cv + T * dP_dT * dv_dT
     w = np.sqrt(-v * v * dP_dv * cp / (cv * M))
     Pv = P * v
-    return P, u + Pv, s, u, a + Pv, cp, cv, w, (T * dv_dT - v) / cp, -1.0 / (v * dP_dv)
+    return P, u + Pv, s, u, a + Pv, cp, cv, w, (T * dv_dT - v) / cp, -inv_slope / v
 
 
 #: The formula functions of this module that thermo_roots._accel_kernels compiles.
