@@ -992,13 +992,14 @@ def _state_caloric(state):
     two = np.array(np.isfinite(np.asarray(state.quality, dtype=float)))   # quality: NaN outside the dome, so only
     if two.any():                                                  # these need the (slower) phase words
         two[two] = np.asarray(state.phase, dtype=object)[two] == "two-phase"
+    any_two = bool(two.any())
     values = {}
     for name in Caloric._fields:
         x = getattr(single, name) if every else np.where(ok, getattr(single, name), np.nan)
-        if two.any() and name in _SINGLE_PHASE_ONLY:
+        if any_two and name in _SINGLE_PHASE_ONLY:
             x = np.where(two, np.nan, x)
         values[name] = x
-    if two.any():
+    if any_two:
         q, vl, vv = (np.asarray(x, dtype=float) for x in (state.quality, state.v_liquid, state.v_vapor))
         liquid = _caloric_on_reference(state.model, T, np.where(two, vl, 1.0), P)
         vapor = _caloric_on_reference(state.model, T, np.where(two, vv, 1.0), P)
