@@ -303,21 +303,23 @@ def tau_part_without_planck_einstein(terms, tau):
         A += x
         A_t += x_t
         A_tt += x_tt
-    rows = terms.cp0_power
+    A, A_t, A_tt = _add_cp0_terms(A, A_t, A_tt, terms.cp0_power, 0, inv, inv2)
+    A, A_t, A_tt = _add_cp0_terms(A, A_t, A_tt, terms.cp0_sinh, 1, inv, inv2)
+    return _add_cp0_terms(A, A_t, A_tt, terms.cp0_cosh, 2, inv, inv2)
+
+
+def _add_cp0_terms(A, A_t, A_tt, rows, kind, inv, inv2):
+    """A, A_t, A_tt plus the cp0/R terms of one kind (0 power, 1 sinh, 2 cosh), rows (c, p, T_c, T_0)."""
     for i in range(rows.shape[0]):
-        x, x_t, x_tt = _cp0_term(_cp0_power(rows[i, 0], rows[i, 1], rows[i, 2] * inv, rows[i, 3]), rows[i, 2], inv, inv2)
-        A += x
-        A_t += x_t
-        A_tt += x_tt
-    rows = terms.cp0_sinh
-    for i in range(rows.shape[0]):
-        x, x_t, x_tt = _cp0_term(_cp0_sinh(rows[i, 0], rows[i, 1], rows[i, 2] * inv, rows[i, 3]), rows[i, 2], inv, inv2)
-        A += x
-        A_t += x_t
-        A_tt += x_tt
-    rows = terms.cp0_cosh
-    for i in range(rows.shape[0]):
-        x, x_t, x_tt = _cp0_term(_cp0_cosh(rows[i, 0], rows[i, 1], rows[i, 2] * inv, rows[i, 3]), rows[i, 2], inv, inv2)
+        c, p, T_c, T_0 = rows[i, 0], rows[i, 1], rows[i, 2], rows[i, 3]
+        T = T_c * inv
+        if kind == 0:
+            parts = _cp0_power(c, p, T, T_0)
+        elif kind == 1:
+            parts = _cp0_sinh(c, p, T, T_0)
+        else:
+            parts = _cp0_cosh(c, p, T, T_0)
+        x, x_t, x_tt = _cp0_term(parts, T_c, inv, inv2)
         A += x
         A_t += x_t
         A_tt += x_tt
@@ -431,7 +433,7 @@ def _cp0_cosh(c, theta, T, T_0):
 
 #: The formula functions of this module that thermo_roots._accel_kernels compiles.
 FORMULAS = ("tau_part", "tau_part_without_planck_einstein", "ideal_logs", "ideal_molar", "_power_term",
-            "_planck_einstein_exp", "_planck_einstein_term", "_cp0_term", "_cp0_power",
+            "_planck_einstein_exp", "_planck_einstein_term", "_add_cp0_terms", "_cp0_term", "_cp0_power",
             "_sinh_parts", "_cp0_sinh", "_cosh_parts", "_cp0_cosh")
 
 
