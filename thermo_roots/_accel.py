@@ -1,5 +1,12 @@
-"""Optional compiled accelerator (needs numba): the (T, P) -> stable root loop and the
-saturation-pressure loop.
+"""Optional compiled accelerator (needs numba): the (T, P) -> stable root loop, the
+saturation-pressure loop and the caloric-property loop.
+
+The caloric loop (:func:`caloric_kernel`, used by thermo_roots.properties.caloric for
+``ACCEL_MIN_SIZE`` states or more) restates no formula: it calls the functions the numpy
+path calls (``FORMULAS`` of ideal_gas, models and properties), compiled from their own code
+by thermo_roots._accel_kernels. What needs exp or log (the ideal-gas tau terms, ln delta,
+ln T and the cubic's two logarithms) is computed by numpy's vectorized math over chunks of
+``CHUNK`` states, the rest state by state in the loop; ``RUNS["caloric"]`` counts its runs.
 
 Install with ``pip install thermo_roots[accel]``. Without numba, or with the
 environment variable ``THERMO_ROOTS_ACCEL=0``, :func:`stable_roots_kernel` and
