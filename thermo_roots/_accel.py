@@ -1,5 +1,12 @@
-"""Optional compiled accelerator (needs numba): the (T, P) -> stable root loop and the
-saturation-pressure loop.
+"""Optional compiled accelerator (needs numba): the (T, P) -> stable root loop, the
+saturation-pressure loop and the caloric-property loop.
+
+The caloric loop (:func:`caloric_kernel`, used by thermo_roots.properties.caloric for
+``ACCEL_MIN_SIZE`` states or more) restates no formula: it calls the functions the numpy
+path calls (``FORMULAS`` of ideal_gas, models and properties), compiled from their own code
+by thermo_roots._accel_kernels. What needs exp or log (the ideal-gas tau terms, ln delta,
+ln T and the cubic's two logarithms) is computed by numpy's vectorized math over chunks of
+``CHUNK`` states, the rest state by state in the loop; ``RUNS["caloric"]`` counts its runs.
 
 Install with ``pip install thermo_roots[accel]``. Without numba, or with the
 environment variable ``THERMO_ROOTS_ACCEL=0``, :func:`stable_roots_kernel` and
@@ -32,16 +39,17 @@ from __future__ import annotations
 
 import contextlib
 import functools
+import math
 import os
 import weakref
 
 import numpy as np
 
-from .models import PR76, PR78, RK, SRK, VDW, R, _kappa_pr76, _kappa_pr78, _m_soave
+from . import ideal_gas, models
+from .models import R
 
-#: Alpha functions the kernel knows, by code: constant, Redlich-Kwong Tr^-1/2, Soave form.
-_ALPHA_CONSTANT, _ALPHA_RK, _ALPHA_SOAVE = 0, 1, 2
-_SOAVE_SLOPES = {SRK: _m_soave, PR76: _kappa_pr76, PR78: _kappa_pr78}
+# The alpha codes (models.ALPHA_CONSTANT, ALPHA_REDLICH_KWONG, ALPHA_SOAVE = 0, 1, 2) are the
+# ones alpha_value in _accel_kernels dispatches on; CubicFamily.compiled_alpha names them.
 
 
 _switched_off = []   # non-empty inside `disabled()`
@@ -65,17 +73,14 @@ def available() -> bool:
 def _model_inputs(model):
     """(alpha kind, parameter tuple) of the model for the compiled loops, or None.
 
-    None when the model's alpha function is not one of the built-in families.
+    None when the model's alpha function is not one of the built-in formulas (its family's
+    ``compiled_alpha`` is None).
     """
-    family = model.family
-    if family is VDW:
-        kind, slope = _ALPHA_CONSTANT, 0.0
-    elif family is RK:
-        kind, slope = _ALPHA_RK, 0.0
-    elif family in _SOAVE_SLOPES:
-        kind, slope = _ALPHA_SOAVE, float(_SOAVE_SLOPES[family](model.fluid.omega))
-    else:
+    known = model.family.compiled_alpha
+    if known is None:
         return None
+    kind, slope_of = known
+    slope = 0.0 if slope_of is None else float(slope_of(model.fluid.omega))
     params = tuple(float(x) for x in (model.fluid.Tc, model.fluid.Pc, model.a_c, model.b, model.c,
                                       model.v_min, model.v_c, model.delta1, model.delta2, slope, R))
     return kind, params
@@ -156,6 +161,64 @@ def saturation_kernel(model):
 
 
 _saturation_runs = weakref.WeakKeyDictionary()   # model -> its saturation_kernel(model)
+
+#: How many times each compiled loop has run in this process (tests read it to see that a
+#: path was taken, never a timing).
+RUNS = {"caloric": 0}
+
+#: States per numpy pass over the T-only ideal-gas terms of the caloric loop (fits the cache).
+CHUNK = 8192
+
+
+def caloric_kernel(model):
+    """A compiled ``f(T, v, P, shape) -> 10 arrays`` (the fields of properties.Caloric), or None.
+
+    None when numba is missing or switched off, when the model is not one the loop knows
+    (``model.formula_parameters()`` is None: a custom alpha function) or its fluid has no
+    ideal-gas part. The loop calls the formula functions of ideal_gas, models and
+    properties that the numpy path calls, compiled (see thermo_roots._accel_kernels).
+    """
+    kernels = None if _switched_off else _compiled()
+    if kernels is None:
+        return None
+    cubic, ideal = model.formula_parameters(), model.fluid.ideal_gas
+    if cubic is None or ideal is None:
+        return None
+    terms, dR, M = ideal.terms, R - ideal.R, float(model.fluid.molar_mass)
+
+    def run(T, v, P, shape):
+        n, given_P = math.prod(shape), P is not None
+        T, v, P = (np.ascontiguousarray(np.broadcast_to(x, shape), dtype=float).reshape(n)
+                   for x in (T, v, 0.0 if P is None else P))
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            if not ((T > 0) & (T < np.inf)).all():   # the numpy path's guards: NaN where T or v is not
+                T = np.where((T > 0) & (T < np.inf), T, np.nan)   # positive, or tau = T_r/T is not
+            if not (v > 0).all():
+                v = np.where(v > 0, v, np.nan)
+            out = np.empty((10, n))
+            if given_P:   # P is passed through, as on the numpy path: no row to fill
+                out = out[:9]
+            planck = terms.planck_einstein
+            logs = np.empty((8 + 2 * planck.shape[0], min(n, CHUNK)))
+            d1, d2 = cubic.delta1, cubic.delta2
+            for start in range(0, n, CHUNK):   # what needs exp or log in numpy, a cache-sized part at a time
+                part = slice(start, start + CHUNK)
+                T_part, v_part = T[part], v[part]
+                rows = logs[:, :T_part.size]
+                np.divide(ideal.T_r, T_part, out=rows[0])
+                rows[1], rows[2], rows[3] = ideal_gas.tau_part_without_planck_einstein(terms, rows[0])
+                for k, (_, theta, c, d) in enumerate(planck):
+                    rows[8 + 2 * k], rows[9 + 2 * k] = ideal_gas._planck_einstein_exp(rows[0], theta, c, d)
+                rows[4], rows[5] = ideal_gas.ideal_logs(T_part, v_part, ideal.rho_r)
+                rows[6] = models.cubic_repulsion(v_part, cubic.v_min)
+                w = v_part + cubic.c
+                rows[7] = models.cubic_log_ratio(w + d1 * cubic.b, w + d2 * cubic.b, d1, d2)
+                kernels.caloric_loop(T_part, v_part, P[part], given_P, cubic, planck, rows, ideal.R, dR, R, M, out[:, part])
+        RUNS["caloric"] += 1
+        fields = (P.reshape(shape),) if given_P else ()
+        return fields + tuple(row.reshape(shape) for row in out)
+
+    return run
 
 
 @functools.lru_cache(maxsize=1)

@@ -7,11 +7,104 @@ Kept in a module of their own, at module level, so that numba's on-disk cache
 from __future__ import annotations
 
 import functools
+import hashlib
+import types
 
 import numba
 import numpy as np
 
+from . import ideal_gas, models, properties
+
 jit = functools.partial(numba.njit, cache=True, nogil=True, error_model="numpy")
+
+
+# --------------------------------------------------------------------------- shared formulas
+# The caloric loop below does not restate a formula: it calls the functions the numpy path
+# calls (each module's ``FORMULAS``), compiled here. Each is rebuilt from its own code
+# object with a namespace in which the other formulas of its module are their compiled
+# twins, so one source serves both paths.
+
+def _compile_formulas(module):
+    """{name: compiled twin} of the functions named in ``module.FORMULAS``."""
+    namespace = dict(vars(module))
+    for name in module.FORMULAS:
+        f = getattr(module, name)
+        twin = types.FunctionType(f.__code__, namespace, name, f.__defaults__, f.__closure__)
+        namespace[name] = jit(twin)
+    return {name: namespace[name] for name in module.FORMULAS}
+
+
+def _fingerprint(*modules):
+    """A number that changes when any shared formula's code changes. The caloric loop holds it
+    in its closure, and numba keys its disk cache on the closure, so an edited formula is
+    never served from a stale cache of the loop that inlines it."""
+    digest = hashlib.sha256()
+    for module in modules:
+        for name in module.FORMULAS:
+            code = getattr(module, name).__code__
+            digest.update(code.co_code)
+            digest.update(repr(code.co_consts).encode())
+            digest.update(repr(code.co_names).encode())
+    return int(digest.hexdigest()[:15], 16)
+
+
+_ideal = _compile_formulas(ideal_gas)
+_cubic = _compile_formulas(models)
+_caloric = _compile_formulas(properties)
+ideal_molar = _ideal["ideal_molar"]
+planck_einstein_term = _ideal["_planck_einstein_term"]
+alpha_parts = _cubic["alpha_parts"]
+cubic_residual = _cubic["cubic_residual"]
+gas_constant_shift = _caloric["gas_constant_shift"]
+caloric_from_helmholtz = _caloric["caloric_from_helmholtz"]
+
+
+def _make_caloric_loop(fingerprint):
+    def caloric_loop(T_in, v_in, P_in, given_P, cubic, planck, logs, R_ideal, dR, R_model, M, out):
+        """(P, h, s, u, g, cp, cv, w, mu_jt, kappa_T) of each state into the rows of out (without P
+        when given_P: then out has the other nine rows): the
+        numpy path of properties.caloric (ideal part, gas-constant shift, residual bundle,
+        the relations) state by state, with the same formula functions.
+
+        The rows of ``logs`` hold what needs exp or log: tau, the tau part A, A_t, A_tt without
+        the Planck-Einstein terms (ideal_gas.tau_part_without_planck_einstein), ln delta and
+        ln T (ideal_gas.ideal_logs), ln(1 - v_min/v) and ln(e1/e2) (models.cubic_repulsion,
+        cubic_log_ratio), then y and ln g of each Planck-Einstein term, row k of ``planck``
+        (ideal_gas._planck_einstein_exp), added here as ideal_gas.tau_part adds them. They come from numpy, whose
+        vectorized exp and log cost a fraction of a scalar call here; this loop then runs
+        on arithmetic, divisions and square roots alone, without temporaries."""
+        if fingerprint < 0:   # never: keeps the fingerprint in the closure (the cache key)
+            R_model = np.nan
+        a_c, b, c, v_min, d1, d2 = cubic.a_c, cubic.b, cubic.c, cubic.v_min, cubic.delta1, cubic.delta2
+        for i in range(T_in.size):
+            T, v, tau = T_in[i], v_in[i], logs[0, i]
+            ln_delta, ln_T = logs[4, i], logs[5, i]
+            A, A_t, A_tt = logs[1, i], logs[2, i], logs[3, i]
+            for k in range(planck.shape[0]):
+                x, x_t, x_tt = planck_einstein_term(planck[k, 0], planck[k, 1], planck[k, 2], planck[k, 3],
+                                                    logs[8 + 2 * k, i], logs[9 + 2 * k, i])
+                A += x
+                A_t += x_t
+                A_tt += x_tt
+            a0, a0_T, a0_TT, a0_v, a0_vv, a0_Tv = ideal_molar(R_ideal, T, v, tau, ln_delta, A, A_t, A_tt)
+            if dR != 0.0:
+                s0, s1, s2, s3, s4, s5 = gas_constant_shift(dR, T, v, ln_delta, ln_T)
+                a0, a0_T, a0_TT = a0 + s0, a0_T + s1, a0_TT + s2
+                a0_v, a0_vv, a0_Tv = a0_v + s3, a0_vv + s4, a0_Tv + s5
+            alpha, dalpha, d2alpha = alpha_parts(cubic.alpha_kind, T, cubic.Tc, cubic.slope)
+            r0, r1, r2, r3, r4, r5 = cubic_residual(T, v, R_model, a_c * alpha, a_c * dalpha, a_c * d2alpha,
+                                                    b, c, v_min, d1, d2, logs[6, i], logs[7, i])
+            a_v = a0_v + r3
+            P = P_in[i] if given_P else -a_v
+            props = caloric_from_helmholtz(T, v, P, M, a0 + r0, a0_T + r1, a0_TT + r2, a_v, a0_vv + r4, a0_Tv + r5)
+            skip = 1 if given_P else 0   # a given P is not written back (out has 9 rows then)
+            for k in range(skip, 10):
+                out[k - skip, i] = props[k]
+
+    return jit(caloric_loop)
+
+
+caloric_loop = _make_caloric_loop(_fingerprint(ideal_gas, models, properties))
 
 _SIXTH = 1.0 / 6.0
 

@@ -68,6 +68,23 @@ class IdealHelmholtz(NamedTuple):
     a_Tv: object   #: d2 a0 / dT dv [Pa/K]
 
 
+class IdealTerms(NamedTuple):
+    """The terms of an :class:`IdealGasPart` as numbers and 2-D arrays, one row per term: the
+    record :func:`tau_part` reads, on the numpy path and in the compiled loops alike."""
+
+    R: float                  #: the equation's gas constant [J/(mol K)]
+    T_r: float                #: reducing temperature [K]
+    rho_r: float              #: reducing molar density [mol/m³]
+    a1: float                 #: ``a1`` of the lead term
+    a2: float                 #: ``a2`` of the lead term
+    log_tau: float            #: coefficient of ``ln tau``
+    power: np.ndarray         #: rows (n, t)
+    planck_einstein: np.ndarray   #: rows (n, theta, c, d)
+    cp0_power: np.ndarray     #: rows (c, t, T_c, T_0)
+    cp0_sinh: np.ndarray      #: rows (c, theta, T_c, T_0)
+    cp0_cosh: np.ndarray      #: rows (c, theta, T_c, T_0)
+
+
 class ReducedIdealHelmholtz(NamedTuple):
     """Reduced ideal-gas Helmholtz energy alpha0(tau, delta) and its tau-derivatives [-]."""
 
@@ -142,6 +159,14 @@ class IdealGasPart:
             if any(len(row) != width for row in clean):
                 raise InputError(f"IdealGasPart: every entry of {label} has {width} numbers; got {rows!r}.")
             object.__setattr__(self, label, clean[0] if label == "lead" else clean)
+        rows = {label: np.array(getattr(self, label), dtype=float).reshape(-1, width) for label, width in
+                (("power", 2), ("planck_einstein", 4), ("cp0_power", 4), ("cp0_sinh", 4), ("cp0_cosh", 4))}
+        object.__setattr__(self, "_terms", IdealTerms(self.R, self.T_r, self.rho_r, *self.lead, self.log_tau, **rows))
+
+    @property
+    def terms(self) -> IdealTerms:
+        """The terms as an :class:`IdealTerms` record (what :func:`tau_part` and the compiled loops read)."""
+        return self._terms
 
     # ------------------------------------------------------------------ reduced form
     def alpha0(self, tau, delta) -> ReducedIdealHelmholtz:
@@ -154,55 +179,11 @@ class IdealGasPart:
         return ReducedIdealHelmholtz(_out(alpha), _out(A_t + 0.0 * delta), _out(A_tt + 0.0 * delta))
 
     def _tau_part(self, tau):
-        """alpha0 - ln delta and its tau-derivatives, for tau > 0 (NaN elsewhere).
-
-        Written with in-place operations: for 10⁶ states the temporaries, not the
-        arithmetic, would otherwise take most of the time.
-        """
+        """alpha0 - ln delta and its tau-derivatives, for tau > 0 (NaN elsewhere): :func:`tau_part`."""
         tau = np.asarray(tau, dtype=float)
         if not (tau > 0).all():
             tau = np.where(tau > 0, tau, np.nan)
-        a1, a2 = self.lead
-        inv = 1.0 / tau
-        inv2 = inv * inv
-        A = np.log(tau)
-        A *= self.log_tau
-        A += a1
-        A += a2 * tau
-        A_t = self.log_tau * inv
-        A_t += a2
-        A_tt = (-self.log_tau) * inv2
-        for n, t in self.power:
-            p = tau**t
-            p *= n
-            A += p
-            p *= inv
-            A_t += t * p
-            p *= inv
-            A_tt += t * (t - 1.0) * p
-        for n, theta, c, d in self.planck_einstein:
-            # n ln(c + d e^x), x = theta tau; for theta > 0 written as n (x + ln(d + c e^-x))
-            grows = theta > 0
-            y = np.exp((-theta if grows else theta) * tau)
-            g = c * y if grows else d * y
-            g += d if grows else c
-            r = d / g if grows else d * y / g       # d e^x / (c + d e^x)
-            log_g = np.log(g)
-            if grows:
-                log_g += theta * tau
-            A += n * log_g
-            A_t += (n * theta) * r
-            # d2: n theta² c d e^x / (c + d e^x)² = n theta² r c / (c + d e^x)
-            r *= (c * y if grows else c) / g
-            A_tt += (n * theta * theta) * r
-        for kind, rows in ((_cp0_power, self.cp0_power), (_cp0_sinh, self.cp0_sinh), (_cp0_cosh, self.cp0_cosh)):
-            for c, p, T_c, T_0 in rows:
-                T = T_c * inv
-                f, dH, dS = kind(c, p, T, T_0)
-                A += dH / T - dS
-                A_t += dH / T_c
-                A_tt -= f * inv2
-        return A, A_t, A_tt
+        return tau_part(self._terms, tau)
 
     # ------------------------------------------------------------------ molar form
     def helmholtz(self, T, v) -> IdealHelmholtz:
@@ -234,15 +215,9 @@ class IdealGasPart:
                 v = np.where(v > 0, v, np.nan)
             tau = self.T_r / T
             A, A_t, A_tt = self._tau_part(tau)
-            ln_delta = -np.log(v * self.rho_r)
-            RT = R * T
-            a = RT * (ln_delta + A)
-            a_T = R * (ln_delta + A - tau * A_t)
-            a_TT = R * tau * tau * A_tt / T
-            a_v = -RT / v
-            a_vv = RT / (v * v)
-            a_Tv = -R / v
-        return IdealHelmholtz(*(_out(x) for x in (a, a_T, a_TT, a_v, a_vv, a_Tv)))
+            ln_delta, _ = ideal_logs(T, v, self.rho_r)
+            parts = ideal_molar(R, T, v, tau, ln_delta, A, A_t, A_tt)
+        return IdealHelmholtz(*(_out(x) for x in parts))
 
     def cp0(self, T):
         """Ideal-gas isobaric heat capacity cp0 = -T a_TT + R [J/(mol K)] at T [K]."""
@@ -281,8 +256,144 @@ class IdealGasPart:
         return cls(source=source, **entry)
 
 
-# ---------------------------------------------------------------------- cp0/R term kinds
-# Each returns f = cp0/R, H(T) - H(T_0) and S(T) - S(T_0) with H' = f, S' = f / T.
+# ---------------------------------------------------------------------- the formulas
+# Plain arithmetic on floats or arrays with no branch on the data (only on a term's constants):
+# the numpy path calls them on arrays, thermo_roots._accel_kernels compiles these very
+# functions for its loop over states (``FORMULAS`` lists them). Augmented assignments work
+# on both: in place on an array made here, a rebinding on a float.
+
+def tau_part(terms, tau):
+    """alpha0 - ln delta and its first two tau-derivatives [-] at tau > 0, from an :class:`IdealTerms`.
+
+    The terms other than Planck-Einstein (:func:`tau_part_without_planck_einstein`), then each
+    Planck-Einstein term from its exponential and logarithm (:func:`_planck_einstein_exp`,
+    :func:`_planck_einstein_term`): the split lets a compiled loop take the exp and log from
+    numpy and do the rest of each term itself.
+    """
+    A, A_t, A_tt = tau_part_without_planck_einstein(terms, tau)
+    rows = terms.planck_einstein
+    for i in range(rows.shape[0]):
+        n, theta, c, d = rows[i, 0], rows[i, 1], rows[i, 2], rows[i, 3]
+        y, log_g = _planck_einstein_exp(tau, theta, c, d)
+        x, x_t, x_tt = _planck_einstein_term(n, theta, c, d, y, log_g)
+        A += x
+        A_t += x_t
+        A_tt += x_tt
+    return A, A_t, A_tt
+
+
+def tau_part_without_planck_einstein(terms, tau):
+    """The lead, ln tau, power and cp0/R terms of alpha0 - ln delta with their tau-derivatives.
+
+    Written with in-place operations on its own temporaries: for 10⁶ states these, not the
+    arithmetic, would otherwise take most of the numpy path's time.
+    """
+    inv = 1.0 / tau
+    inv2 = inv * inv
+    A = np.log(tau)
+    A *= terms.log_tau
+    A += terms.a1
+    A += terms.a2 * tau
+    A_t = terms.log_tau * inv
+    A_t += terms.a2
+    A_tt = (-terms.log_tau) * inv2
+    rows = terms.power
+    for i in range(rows.shape[0]):
+        x, x_t, x_tt = _power_term(tau, inv, rows[i, 0], rows[i, 1])
+        A += x
+        A_t += x_t
+        A_tt += x_tt
+    A, A_t, A_tt = _add_cp0_terms(A, A_t, A_tt, terms.cp0_power, 0, inv, inv2)
+    A, A_t, A_tt = _add_cp0_terms(A, A_t, A_tt, terms.cp0_sinh, 1, inv, inv2)
+    return _add_cp0_terms(A, A_t, A_tt, terms.cp0_cosh, 2, inv, inv2)
+
+
+def _add_cp0_terms(A, A_t, A_tt, rows, kind, inv, inv2):
+    """A, A_t, A_tt plus the cp0/R terms of one kind (0 power, 1 sinh, 2 cosh), rows (c, p, T_c, T_0)."""
+    for i in range(rows.shape[0]):
+        c, p, T_c, T_0 = rows[i, 0], rows[i, 1], rows[i, 2], rows[i, 3]
+        T = T_c * inv
+        if kind == 0:
+            parts = _cp0_power(c, p, T, T_0)
+        elif kind == 1:
+            parts = _cp0_sinh(c, p, T, T_0)
+        else:
+            parts = _cp0_cosh(c, p, T, T_0)
+        x, x_t, x_tt = _cp0_term(parts, T_c, inv, inv2)
+        A += x
+        A_t += x_t
+        A_tt += x_tt
+    return A, A_t, A_tt
+
+
+def ideal_logs(T, v, rho_r):
+    """ln delta = -ln(v rho_r) and ln T [-]: the logarithms the molar form and the gas-constant
+    shift need, computed apart so that a compiled loop can take them from numpy."""
+    return -np.log(v * rho_r), np.log(T)
+
+
+def ideal_molar(R, T, v, tau, ln_delta, A, A_t, A_tt):
+    """a0 = R T alpha0 and its T and v derivatives (a, a_T, a_TT, a_v, a_vv, a_Tv) from the
+    tau part (A, A_t, A_tt) of alpha0 at tau = T_r / T and ln delta (Span 2000, table 3.3)."""
+    RT = R * T
+    lead = ln_delta + A
+    inv_v = 1.0 / v
+    return RT * lead, R * (lead - tau * A_t), R * tau * tau * A_tt / T, -RT * inv_v, RT * inv_v * inv_v, -R * inv_v
+
+
+def _power_term(tau, inv, n, t):
+    """n tau^t and its tau-derivatives."""
+    p = tau**t
+    p *= n
+    p_t = p * inv
+    p_tt = p_t * inv
+    return p, t * p_t, (t * (t - 1.0)) * p_tt
+
+
+def _planck_einstein_exp(tau, theta, c, d):
+    """(y, ln g) of a Planck-Einstein term n ln(c + d e^x), x = theta tau: y = e^x and
+    g = c + d e^x, or for theta > 0 y = e^-x and ln g = x + ln(d + c e^-x), so that e^x cannot
+    overflow. The exp and log of the term, apart from the rest (:func:`_planck_einstein_term`)."""
+    if theta > 0:
+        y = np.exp(-theta * tau)
+        g = c * y
+        g += d
+        log_g = np.log(g)
+        log_g += theta * tau
+    else:
+        y = np.exp(theta * tau)
+        g = d * y
+        g += c
+        log_g = np.log(g)
+    return y, log_g
+
+
+def _planck_einstein_term(n, theta, c, d, y, log_g):
+    """n ln(c + d e^x) and its tau-derivatives from (y, ln g) of :func:`_planck_einstein_exp`."""
+    if theta > 0:
+        g = c * y
+        g += d
+        inv_g = 1.0 / g
+        r = d * inv_g              # d e^x / (c + d e^x)
+        cy = c * y
+    else:
+        g = d * y
+        g += c
+        inv_g = 1.0 / g
+        r = d * y * inv_g
+        cy = c
+    # d2: n theta² c d e^x / (c + d e^x)² = n theta² r c / (c + d e^x)
+    return n * log_g, (n * theta) * r, (n * theta * theta) * (r * (cy * inv_g))
+
+
+def _cp0_term(parts, T_c, inv, inv2):
+    """A cp0/R term (f, H(T) - H(T_0), S(T) - S(T_0)) at T = T_c / tau as alpha0 and its
+    tau-derivatives: dH / T - dS, dH / T_c and -f / tau²."""
+    f, dH, dS = parts
+    return dH / (T_c * inv) - dS, dH / T_c, -f * inv2
+
+
+# Each cp0/R term kind returns f = cp0/R, H(T) - H(T_0) and S(T) - S(T_0) with H' = f, S' = f / T.
 
 def _cp0_power(c, t, T, T_0):
     f = c * T**t
@@ -318,6 +429,12 @@ def _cp0_cosh(c, theta, T, T_0):
     f, tanh, ln_cosh, u = _cosh_parts(theta, T)
     _, tanh0, ln_cosh0, u0 = _cosh_parts(theta, T_0)
     return c * f, -c * theta * (tanh - tanh0), c * ((ln_cosh - u * tanh) - (ln_cosh0 - u0 * tanh0))
+
+
+#: The formula functions of this module that thermo_roots._accel_kernels compiles.
+FORMULAS = ("tau_part", "tau_part_without_planck_einstein", "ideal_logs", "ideal_molar", "_power_term",
+            "_planck_einstein_exp", "_planck_einstein_term", "_add_cp0_terms", "_cp0_term", "_cp0_power",
+            "_sinh_parts", "_cp0_sinh", "_cosh_parts", "_cp0_cosh")
 
 
 # ---------------------------------------------------------------------- from CoolProp's fluid file

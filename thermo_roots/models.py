@@ -50,6 +50,41 @@ class Helmholtz(NamedTuple):
 # --------------------------------------------------------------------------- alpha functions
 # Each returns (alpha, d alpha / d T, d2 alpha / d T2) for T [K], Tc [K], omega [-]: the
 # second derivative is what the heat capacities need (cv_res = T a''(T) I(v)).
+#
+# The formulas themselves (``redlich_kwong_alpha_parts``, ``soave_alpha_parts``) are plain
+# arithmetic on floats or arrays, with no branch on the data: numpy calls them on arrays,
+# and thermo_roots._accel_kernels compiles the very same functions for its loops
+# (``FORMULAS`` below lists what it compiles).
+
+#: Codes of the alpha formulas the compiled loops know (``CubicFamily.compiled_alpha``).
+ALPHA_CONSTANT, ALPHA_REDLICH_KWONG, ALPHA_SOAVE = 0, 1, 2
+
+
+def redlich_kwong_alpha_parts(T, Tc):
+    """alpha = Tr^(-1/2) and its two T-derivatives (Redlich & Kwong 1949)."""
+    alpha = (T / Tc) ** -0.5
+    return alpha, -0.5 * alpha / T, 0.75 * alpha / (T * T)
+
+
+def soave_alpha_parts(T, Tc, k):
+    """alpha = (1 + k (1 - sqrt(Tr)))^2 and its two T-derivatives (Soave 1972).
+
+    d alpha/dT = -k root / sqrt(T Tc); d2 alpha/dT2 = k (1 + k) / (2 T sqrt(T Tc)).
+    """
+    sqrt_Tr = np.sqrt(T / Tc)
+    root = 1.0 + k * (1.0 - sqrt_Tr)
+    sqrt_TTc = sqrt_Tr * Tc
+    return root * root, -k * root / sqrt_TTc, 0.5 * k * (1.0 + k) / (T * sqrt_TTc)
+
+
+def alpha_parts(kind, T, Tc, k):
+    """alpha, alpha', alpha'' of the built-in formula ``kind`` (the compiled loops' dispatch)."""
+    if kind == ALPHA_REDLICH_KWONG:
+        return redlich_kwong_alpha_parts(T, Tc)
+    if kind == ALPHA_SOAVE:
+        return soave_alpha_parts(T, Tc, k)
+    return 1.0, 0.0, 0.0
+
 
 def _alpha_constant(T, Tc, omega):
     T = np.asarray(T, dtype=float)
@@ -58,22 +93,14 @@ def _alpha_constant(T, Tc, omega):
 
 def _alpha_redlich_kwong(T, Tc, omega):
     """alpha = Tr^(-1/2), Redlich & Kwong (1949)."""
-    T = np.asarray(T, dtype=float)
-    alpha = (T / Tc) ** -0.5
-    return alpha, -0.5 * alpha / T, 0.75 * alpha / (T * T)
+    return redlich_kwong_alpha_parts(np.asarray(T, dtype=float), Tc)
 
 
 def _soave_alpha(m):
     """alpha = (1 + m (1 - sqrt(Tr)))^2, the Soave (1972) form used by SRK and PR."""
 
     def alpha_function(T, Tc, omega):
-        T = np.asarray(T, dtype=float)
-        sqrt_Tr = np.sqrt(T / Tc)
-        k = m(omega)
-        root = 1.0 + k * (1.0 - sqrt_Tr)
-        # d alpha/dT = -k root / sqrt(T Tc); d2 alpha/dT2 = k (1 + k) / (2 T sqrt(T Tc))
-        sqrt_TTc = sqrt_Tr * Tc
-        return root * root, -k * root / sqrt_TTc, 0.5 * k * (1.0 + k) / (T * sqrt_TTc)
+        return soave_alpha_parts(np.asarray(T, dtype=float), Tc, m(omega))
 
     return alpha_function
 
@@ -129,7 +156,10 @@ def critical_constants(delta1: float, delta2: float) -> tuple[float, float, floa
 class CubicFamily:
     """A named parameter set of the generalized cubic: (delta1, delta2) and alpha(T).
 
-    ``alpha(T, Tc, omega)`` returns (alpha [-], d alpha/dT [1/K]).
+    ``alpha(T, Tc, omega)`` returns (alpha [-], d alpha/dT [1/K], d2 alpha/dT2 [1/K^2]).
+    ``compiled_alpha``: (code, slope(omega)) when ``alpha`` is one of the formulas the
+    compiled loops know (``ALPHA_CONSTANT``, ``ALPHA_REDLICH_KWONG``, ``ALPHA_SOAVE`` with
+    its slope k(omega)); None (the default) keeps a family on the numpy path.
     """
 
     name: str
@@ -137,6 +167,7 @@ class CubicFamily:
     delta2: float
     alpha: Callable = field(repr=False)
     reference: str = field(default="", repr=False)
+    compiled_alpha: tuple | None = field(default=None, repr=False)
     omega_a: float = field(init=False)
     omega_b: float = field(init=False)
     Zc: float = field(init=False)
@@ -163,15 +194,114 @@ class CubicFamily:
 SQRT2 = math.sqrt(2.0)
 
 VDW = CubicFamily("van der Waals", 0.0, 0.0, _alpha_constant,
-                  "van der Waals, J. D. (1873), doctoral thesis, Leiden.")
+                  "van der Waals, J. D. (1873), doctoral thesis, Leiden.", (ALPHA_CONSTANT, None))
 RK = CubicFamily("Redlich-Kwong", 1.0, 0.0, _alpha_redlich_kwong,
-                 "Redlich, O. & Kwong, J. N. S. (1949), Chem. Rev. 44, 233-244.")
+                 "Redlich, O. & Kwong, J. N. S. (1949), Chem. Rev. 44, 233-244.", (ALPHA_REDLICH_KWONG, None))
 SRK = CubicFamily("Soave-Redlich-Kwong", 1.0, 0.0, _soave_alpha(_m_soave),
-                  "Soave, G. (1972), Chem. Eng. Sci. 27, 1197-1203.")
+                  "Soave, G. (1972), Chem. Eng. Sci. 27, 1197-1203.", (ALPHA_SOAVE, _m_soave))
 PR76 = CubicFamily("Peng-Robinson", 1.0 + SQRT2, 1.0 - SQRT2, _soave_alpha(_kappa_pr76),
-                   "Peng, D.-Y. & Robinson, D. B. (1976), Ind. Eng. Chem. Fundam. 15, 59-64.")
+                   "Peng, D.-Y. & Robinson, D. B. (1976), Ind. Eng. Chem. Fundam. 15, 59-64.",
+                   (ALPHA_SOAVE, _kappa_pr76))
 PR78 = CubicFamily("Peng-Robinson 1978", 1.0 + SQRT2, 1.0 - SQRT2, _soave_alpha(_kappa_pr78),
-                   "Robinson, D. B. & Peng, D.-Y. (1978), GPA Research Report RR-28.")
+                   "Robinson, D. B. & Peng, D.-Y. (1978), GPA Research Report RR-28.",
+                   (ALPHA_SOAVE, _kappa_pr78))
+
+
+
+# --------------------------------------------------------------------------- the cubic's formulas
+# Plain arithmetic on floats or arrays, no branch on the data (only on the constants
+# delta1, delta2): CubicModel calls them on arrays, thermo_roots._accel_kernels compiles the
+# same functions for its loops. e1 = v_cubic + delta1 b, e2 = v_cubic + delta2 b, D = e1 e2.
+
+def cubic_repulsion(v, v_min):
+    """ln(1 - v_min / v) [-], the logarithm of the repulsive term."""
+    return np.log1p(-v_min / v)
+
+
+def cubic_log_ratio(e1, e2, d1, d2):
+    """ln(e1 / e2) [-] of the attractive term (0 when d1 == d2, where none is needed)."""
+    if d1 == d2:
+        return 0.0 * e1
+    return np.log(e1 / e2)
+
+
+def cubic_attraction_integral(e1, d1, d2, b, log_ratio):
+    """I(v) = integral from v to infinity of dv' / ((v' + d1 b)(v' + d2 b)) [mol/m^3]."""
+    if d1 == d2:
+        return 1.0 / e1
+    return log_ratio / ((d1 - d2) * b)
+
+
+def cubic_pressure(RT, a, gap, D):
+    """P = R T / (v - v_min) - a / D [Pa]."""
+    return RT / gap - a / D
+
+
+def cubic_dP_dv(RT, a, gap, e1, e2, D):
+    """(dP/dv)_T = -R T / (v - v_min)^2 + a (e1 + e2) / D^2 [Pa mol/m^3]."""
+    return -RT / (gap * gap) + a * (e1 + e2) / (D * D)
+
+
+def cubic_dP_dT(R, da, gap, D):
+    """(dP/dT)_v = R / (v - v_min) - a'(T) / D [Pa/K]."""
+    return R / gap - da / D
+
+
+def cubic_residual_helmholtz(RT, a, repulsion, integral):
+    """a_res = -R T ln(1 - v_min/v) - a I(v) [J/mol]; repulsion = ln(1 - v_min/v)."""
+    return -RT * repulsion - a * integral
+
+
+def cubic_residual_entropy(R, da, repulsion, integral):
+    """s_res = R ln(1 - v_min/v) + a'(T) I(v) [J/(mol K)]."""
+    return R * repulsion + da * integral
+
+
+def cubic_residual(T, v, R, a, da, d2a, b, c, v_min, d1, d2, repulsion, log_ratio):
+    """The residual Helmholtz bundle (a, a_T, a_TT, a_v, a_vv, a_Tv) of the generalized cubic.
+
+    a(T) = a [Pa m^6/mol^2] with da, d2a its T-derivatives; b, c, v_min = b - c [m^3/mol];
+    d1, d2 [-]; the logarithms from :func:`cubic_repulsion` and :func:`cubic_log_ratio`
+    (given, so that a compiled loop can take them from numpy's vectorized log).
+    a_res = -R T ln(1 - v_min/v) - a I(v), a_T = -s_res, a_TT = -a''(T) I(v), and the v
+    derivatives from the pressure and its slopes: a_v = R T/v - P, a_vv = -dP/dv - R T/v^2,
+    a_Tv = R/v - dP/dT (Michelsen & Mollerup 2007, ch. 3).
+    """
+    w = v + c
+    e1 = w + d1 * b
+    e2 = w + d2 * b
+    D = e1 * e2
+    gap = v - v_min
+    RT = R * T
+    integral = cubic_attraction_integral(e1, d1, d2, b, log_ratio)
+    inv_v = 1.0 / v
+    return (cubic_residual_helmholtz(RT, a, repulsion, integral),
+            -cubic_residual_entropy(R, da, repulsion, integral),
+            -d2a * integral,
+            RT * inv_v - cubic_pressure(RT, a, gap, D),
+            -cubic_dP_dv(RT, a, gap, e1, e2, D) - RT * inv_v * inv_v,
+            R * inv_v - cubic_dP_dT(R, da, gap, D))
+
+
+class CubicParameters(NamedTuple):
+    """What the compiled loops need of a model (``Model.formula_parameters``); SI units."""
+
+    alpha_kind: int    #: ALPHA_CONSTANT, ALPHA_REDLICH_KWONG or ALPHA_SOAVE
+    Tc: float          #: [K]
+    slope: float       #: the Soave slope k(omega) [-] (0 for the others)
+    a_c: float         #: a(Tc) [Pa m^6/mol^2]
+    b: float           #: co-volume [m^3/mol]
+    c: float           #: volume translation [m^3/mol]
+    v_min: float       #: b - c [m^3/mol]
+    delta1: float
+    delta2: float
+
+
+#: The formula functions of this module that thermo_roots._accel_kernels compiles.
+FORMULAS = ("redlich_kwong_alpha_parts", "soave_alpha_parts", "alpha_parts", "cubic_repulsion", "cubic_log_ratio",
+            "cubic_attraction_integral",
+            "cubic_pressure", "cubic_dP_dv", "cubic_dP_dT", "cubic_residual_helmholtz", "cubic_residual_entropy",
+            "cubic_residual")
 
 
 # --------------------------------------------------------------------------- models
@@ -190,6 +320,10 @@ class Model:
     reference_state = "reference"   # the ideal gas has no saturation to fix another zero on
     has_saturation = True
     fluid: Fluid
+
+    def formula_parameters(self):
+        """The model as a :class:`CubicParameters` for the compiled loops, or None (numpy only)."""
+        return None
 
     def compressibility(self, T, v):
         """Compressibility factor Z = P v / (R T) [-]."""
@@ -241,6 +375,10 @@ class IdealGas(Model):
         return _scalar_or_array(np.zeros(np.broadcast(np.asarray(T), np.asarray(v)).shape))
 
     residual_gibbs = ln_phi
+
+    def formula_parameters(self):
+        """The ideal gas as the cubic with a = b = c = 0, whose residual bundle is exactly zero."""
+        return CubicParameters(ALPHA_CONSTANT, float(self.fluid.Tc), 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0)
 
     def residual_bundle(self, T, v):
         """The residual Helmholtz energy and its derivatives: all zero for the ideal gas."""
@@ -321,50 +459,64 @@ class CubicModel(Model):
         """d2a/dT2 [Pa m^6/(mol^2 K^2)] at T [K]."""
         return self.a_c * self.family.alpha(T, self.fluid.Tc, self.fluid.omega)[2]
 
+    def formula_parameters(self):
+        """This model as a :class:`CubicParameters`, or None if its alpha is not a built-in formula."""
+        known = self.family.compiled_alpha
+        if known is None:
+            return None
+        kind, slope = known
+        return CubicParameters(int(kind), float(self.fluid.Tc), 0.0 if slope is None else float(slope(self.fluid.omega)),
+                               float(self.a_c), float(self.b), float(self.c), float(self.v_min),
+                               float(self.delta1), float(self.delta2))
+
+    def _factors(self, v):
+        """(e1, e2, D) = (v_cubic + d1 b, v_cubic + d2 b, their product) at the model volume v."""
+        w = v + self.c
+        e1, e2 = w + self.delta1 * self.b, w + self.delta2 * self.b
+        return e1, e2, e1 * e2
+
     def _denominator(self, v):
         """(v_cubic + d1 b)(v_cubic + d2 b) at the model volume v."""
-        w = v + self.c
-        return (w + self.delta1 * self.b) * (w + self.delta2 * self.b)
+        return self._factors(v)[2]
 
     def _attraction_integral(self, v):
         """I(v) = integral from v to infinity of dv' / ((v' + d1 b)(v' + d2 b)) [mol/m^3]."""
-        d1, d2, b, w = self.delta1, self.delta2, self.b, v + self.c
-        if d1 == d2:
-            return 1.0 / (w + d1 * b)
-        return np.log((w + d1 * b) / (w + d2 * b)) / ((d1 - d2) * b)
+        e1, e2, _ = self._factors(v)
+        d1, d2 = self.delta1, self.delta2
+        return cubic_attraction_integral(e1, d1, d2, self.b, cubic_log_ratio(e1, e2, d1, d2))
 
     # -- properties of (T, v)
     def pressure(self, T, v):
         """Pressure [Pa] at T [K] and v [m^3/mol]."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         a, _ = self.attraction(T)
-        return _scalar_or_array(R * T / (v - self.v_min) - a / self._denominator(v))
+        return _scalar_or_array(cubic_pressure(R * T, a, v - self.v_min, self._denominator(v)))
 
     def dP_dv(self, T, v):
         """(dP/dv) at constant T [Pa mol/m^3]."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         a, _ = self.attraction(T)
-        D = self._denominator(v)
-        u = self.delta1 + self.delta2
-        return _scalar_or_array(-R * T / (v - self.v_min) ** 2 + a * (2.0 * (v + self.c) + u * self.b) / (D * D))
+        e1, e2, D = self._factors(v)
+        return _scalar_or_array(cubic_dP_dv(R * T, a, v - self.v_min, e1, e2, D))
 
     def dP_dT(self, T, v):
         """(dP/dT) at constant v [Pa/K]."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         _, da = self.attraction(T)
-        return _scalar_or_array(R / (v - self.v_min) - da / self._denominator(v))
+        return _scalar_or_array(cubic_dP_dT(R, da, v - self.v_min, self._denominator(v)))
 
     def residual_helmholtz(self, T, v):
         """Residual Helmholtz energy a_res(T, v) [J/mol] against the ideal gas at the same T, v."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         a, _ = self.attraction(T)
-        return _scalar_or_array(-R * T * np.log1p(-self.v_min / v) - a * self._attraction_integral(v))
+        return _scalar_or_array(cubic_residual_helmholtz(R * T, a, cubic_repulsion(v, self.v_min),
+                                                         self._attraction_integral(v)))
 
     def residual_entropy(self, T, v):
         """Residual entropy s_res(T, v) [J/(mol K)] against the ideal gas at the same T, v."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         _, da = self.attraction(T)
-        return _scalar_or_array(R * np.log1p(-self.v_min / v) + da * self._attraction_integral(v))
+        return _scalar_or_array(cubic_residual_entropy(R, da, cubic_repulsion(v, self.v_min), self._attraction_integral(v)))
 
     def residual_enthalpy(self, T, v):
         """Residual enthalpy h_res [J/mol] against the ideal gas at the same T and P."""
@@ -376,20 +528,20 @@ class CubicModel(Model):
     def residual_bundle(self, T, v):
         """a_res(T, v) [J/mol] against the ideal gas at the same T and v, with its derivatives.
 
-        Assembled from the one formula of each piece: a_res (residual_helmholtz), its T
-        derivative -s_res (residual_entropy), the v derivatives from the pressure and its
-        slopes (a_v = R T/v - P, a_vv = -dP/dv - R T/v^2, a_Tv = R/v - dP/dT), and
-        a_TT = -a''(T) I(v), the only term no other property needs (Michelsen & Mollerup
-        2007, ch. 3). Returns a :class:`Helmholtz`.
+        One call of :func:`cubic_residual` (the formula the compiled loops use too) with
+        alpha and its two derivatives evaluated once: a_res, its T derivative -s_res, the v
+        derivatives from the pressure and its slopes (a_v = R T/v - P, a_vv = -dP/dv - R T/v^2,
+        a_Tv = R/v - dP/dT), and a_TT = -a''(T) I(v), the only term no other property needs
+        (Michelsen & Mollerup 2007, ch. 3). Returns a :class:`Helmholtz`.
         """
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
-        return Helmholtz(
-            a=self.residual_helmholtz(T, v),
-            a_T=-self.residual_entropy(T, v),
-            a_TT=-self.attraction_curvature(T) * self._attraction_integral(v),
-            a_v=R * T / v - self.pressure(T, v),
-            a_vv=-self.dP_dv(T, v) - R * T / (v * v),
-            a_Tv=R / v - self.dP_dT(T, v))
+        alpha, dalpha, d2alpha = self.family.alpha(T, self.fluid.Tc, self.fluid.omega)
+        a_c, d1, d2 = self.a_c, self.delta1, self.delta2
+        with np.errstate(invalid="ignore", divide="ignore"):
+            e1, e2, _ = self._factors(v)
+            parts = cubic_residual(T, v, R, a_c * alpha, a_c * dalpha, a_c * d2alpha, self.b, self.c, self.v_min,
+                                   d1, d2, cubic_repulsion(v, self.v_min), cubic_log_ratio(e1, e2, d1, d2))
+        return Helmholtz(*(_scalar_or_array(x) for x in parts))
 
     def ln_phi(self, T, v, P=None):
         """Natural log of the fugacity coefficient ln(f/P) [-] at T [K], v [m^3/mol].

@@ -20,10 +20,12 @@ relations from a(T, v)).
 
 from __future__ import annotations
 
+import math
 from typing import NamedTuple
 
 import numpy as np
 
+from .ideal_gas import ideal_logs
 from .models import Helmholtz, R
 
 
@@ -42,6 +44,10 @@ class Caloric(NamedTuple):
     kappa_T: object  #: isothermal compressibility [1/Pa]
 
 
+#: Arrays of at least this many states take the compiled loop when numba is present.
+ACCEL_MIN_SIZE = 2048
+
+
 def helmholtz(model, T, v) -> Helmholtz:
     """a(T, v) = a0 (the fluid's ideal-gas part) + a_res (the model's), with derivatives.
 
@@ -50,6 +56,12 @@ def helmholtz(model, T, v) -> Helmholtz:
     DomainError
         The fluid has no ideal-gas heat capacity (a user-defined Fluid without cp0).
     """
+    ideal = _ideal_part(model)
+    parts = (ideal.helmholtz(T, v), _gas_constant_shift(ideal, T, v), model.residual_bundle(T, v))
+    return Helmholtz(*(x + y + z for x, y, z in zip(*parts)))
+
+
+def _ideal_part(model):
     ideal = model.fluid.ideal_gas
     if ideal is None:
         from .errors import DomainError
@@ -57,8 +69,40 @@ def helmholtz(model, T, v) -> Helmholtz:
         raise DomainError(f"{model.fluid.name} has no ideal-gas heat capacity, so enthalpy, entropy and heat "
                           "capacities are unknown; give Fluid(..., cp0=...) (a constant or polynomial in "
                           "J/(mol K)), or use a library fluid.")
-    parts = (ideal.helmholtz(T, v), _gas_constant_shift(ideal, T, v), model.residual_bundle(T, v))
-    return Helmholtz(*(x + y + z for x, y, z in zip(*parts)))
+    return ideal
+
+
+# --------------------------------------------------------------------------- the formulas
+# Plain arithmetic on floats or arrays: the numpy path below calls them on arrays, and
+# thermo_roots._accel_kernels compiles the same functions for its loop (``FORMULAS``).
+
+def gas_constant_shift(dR, T, v, ln_delta, ln_T):
+    """dR T (ln(delta T) - 1) and its T, v derivatives (a, a_T, a_TT, a_v, a_vv, a_Tv), with
+    ln delta and ln T from ideal_gas.ideal_logs; see :func:`_gas_constant_shift`."""
+    L = ln_delta + ln_T - 1.0   # ln(delta T) - 1, delta = 1/(v rho_r)
+    inv_v = 1.0 / v
+    dR_v = dR * inv_v
+    return dR * T * L, dR * (L + 1.0), dR / T, -T * dR_v, T * dR_v * inv_v, -dR_v
+
+
+def caloric_from_helmholtz(T, v, P, M, a, a_T, a_TT, a_v, a_vv, a_Tv):
+    """(P, h, s, u, g, cp, cv, w, mu_jt, kappa_T) of one phase from the whole bundle a(T, v)
+    (the relations of the module docstring); P [Pa] as given, M [kg/mol]."""
+    dP_dv = -a_vv
+    dP_dT = -a_Tv
+    s = -a_T
+    u = a + T * s
+    cv = -T * a_TT
+    inv_slope = 1.0 / dP_dv
+    dv_dT = -dP_dT * inv_slope
+    cp = cv + T * dP_dT * dv_dT
+    w = np.sqrt(-v * v * dP_dv * cp / (cv * M))
+    Pv = P * v
+    return P, u + Pv, s, u, a + Pv, cp, cv, w, (T * dv_dT - v) / cp, -inv_slope / v
+
+
+#: The formula functions of this module that thermo_roots._accel_kernels compiles.
+FORMULAS = ("gas_constant_shift", "caloric_from_helmholtz")
 
 
 def _gas_constant_shift(ideal, T, v) -> Helmholtz:
@@ -76,8 +120,8 @@ def _gas_constant_shift(ideal, T, v) -> Helmholtz:
     if dR == 0.0:
         zero = np.zeros(np.broadcast(T, v).shape)
         return Helmholtz(zero, zero, zero, zero, zero, zero)
-    L = np.log(T / (v * ideal.rho_r)) - 1.0   # ln(delta T) - 1, delta = 1/(v rho_r)
-    return Helmholtz(dR * T * L, dR * (L + 1.0), dR / T, -dR * T / v, dR * T / (v * v), -dR / v)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return Helmholtz(*gas_constant_shift(dR, T, v, *ideal_logs(T, v, ideal.rho_r)))
 
 
 def caloric(model, T, v, P=None) -> Caloric:
@@ -85,17 +129,21 @@ def caloric(model, T, v, P=None) -> Caloric:
 
     P : the pressure [Pa] where v is a root at a known P (a dense liquid at low pressure
         loses digits in -a_v); default the model's P(T, v).
+
+    Arrays of ``ACCEL_MIN_SIZE`` states or more take the compiled loop of
+    thermo_roots._accel when numba is present (same formulas, agreeing to rounding);
+    everything else, and every model the loop does not know, the numpy path.
     """
     T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+    shape = np.broadcast_shapes(T.shape, v.shape, () if P is None else np.shape(P))
+    if math.prod(shape) >= ACCEL_MIN_SIZE:
+        from . import _accel
+
+        kernel = _accel.caloric_kernel(model)
+        if kernel is not None:
+            _ideal_part(model)   # the same error as the numpy path's for a fluid without cp0
+            return Caloric(*kernel(T, v, P, shape))
     A = helmholtz(model, T, v)
     with np.errstate(invalid="ignore", divide="ignore"):
         P = -A.a_v if P is None else np.asarray(P, dtype=float)
-        dP_dv, dP_dT = -A.a_vv, -A.a_Tv
-        s = -A.a_T
-        u = A.a + T * s
-        cv = -T * A.a_TT
-        cp = cv - T * dP_dT * dP_dT / dP_dv
-        dv_dT = -dP_dT / dP_dv
-        w = np.sqrt(-v * v * dP_dv * cp / (cv * model.fluid.molar_mass))
-        return Caloric(P=P, h=u + P * v, s=s, u=u, g=A.a + P * v, cp=cp, cv=cv, w=w,
-                       mu_jt=(T * dv_dT - v) / cp, kappa_T=-1.0 / (v * dP_dv))
+        return Caloric(*caloric_from_helmholtz(T, v, P, model.fluid.molar_mass, *A))

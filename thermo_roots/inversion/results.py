@@ -214,7 +214,14 @@ for _name in _CALORIC_NAMES:   # root.h, root.cp, root.w, ...
 
 def _state_caloric(state):
     """The state's Caloric record: one phase from (T, v, P); two-phase by the lever rule."""
-    return mixture_caloric(state.model, state.T, state.P, state.v, state.phase == "two-phase",
+    two = np.isfinite(np.asarray(state.quality, dtype=float))   # quality is NaN outside the dome, so
+    if two.any():                                               # only these need the (slow) phase words
+        phase = np.asarray(state.phase, dtype=object)
+        if two.ndim:
+            two[two] = phase[two] == "two-phase"
+        else:
+            two = np.asarray(phase == "two-phase")
+    return mixture_caloric(state.model, state.T, state.P, state.v, two,
                            state.quality, state.v_liquid, state.v_vapor)
 
 
@@ -231,15 +238,17 @@ def mixture_caloric(model, T, P, v, two, quality, v_liquid, v_vapor):
 
     T, P, v = (np.asarray(x, dtype=float) for x in (T, P, v))
     ok = np.isfinite(v)
-    single = _caloric_on_reference(model, T, np.where(ok, v, 1.0), np.where(ok, P, 1.0))
+    every = bool(ok.all())   # then no masking: each np.where is a pass over 10^6 states
+    single = _caloric_on_reference(model, T, *((v, P) if every else (np.where(ok, v, 1.0), np.where(ok, P, 1.0))))
     two = np.asarray(two, dtype=bool)
+    any_two = bool(two.any())
     values = {}
     for name in Caloric._fields:
-        x = np.where(ok, getattr(single, name), np.nan)
-        if two.any() and name in _SINGLE_PHASE_ONLY:
+        x = getattr(single, name) if every else np.where(ok, getattr(single, name), np.nan)
+        if any_two and name in _SINGLE_PHASE_ONLY:
             x = np.where(two, np.nan, x)
         values[name] = x
-    if two.any():
+    if any_two:
         q, vl, vv = (np.asarray(x, dtype=float) for x in (quality, v_liquid, v_vapor))
         liquid = _caloric_on_reference(model, T, np.where(two, vl, 1.0), P)
         vapor = _caloric_on_reference(model, T, np.where(two, vv, 1.0), P)
