@@ -18,8 +18,8 @@ from .inversion import CAUTION, Root, Saturation, State, saturation, solve, volu
 _LAZY = {
     "reference": ("CrossCheck", "ReferenceSaturation", "ReferenceState", "cross_check", "fit_volume_shift",
                   "reference_limits", "reference_saturation", "reference_state"),
-    "sweeps": ("between", "isobar", "isochore", "isotherm", "read_csv", "saturation_curve", "state_frame",
-               "state_grid", "to_csv"),
+    "sweeps": ("between", "isenthalp", "isentrope", "isobar", "isochore", "isotherm", "read_csv",
+               "saturation_curve", "state_frame", "state_grid", "to_csv"),
     "accuracy": ("AccuracyMap", "accuracy_map"),
     "steps": ("ReferenceStep", "StepResult", "compress", "expand", "heat_at_constant_volume", "throttle"),
 }
@@ -45,7 +45,7 @@ __all__ = [
     "SoaveRedlichKwong", "State", "ThermoRootsError", "UnknownFluidError", "VanDerWaals", "WrongTypeError", "find_root",
     "fluid_names", "get_fluid", "saturation", "solve", "to_si", "volume_roots", "__version__",
     "AccuracyMap", "CrossCheck", "ReferenceSaturation", "ReferenceState", "accuracy_map", "between",
-    "cross_check", "fit_volume_shift", "isobar", "isochore", "isotherm", "read_csv", "reference_limits",
+    "cross_check", "fit_volume_shift", "isenthalp", "isentrope", "isobar", "isochore", "isotherm", "read_csv", "reference_limits",
     "reference_saturation", "reference_state", "saturation_curve", "state_frame", "state_grid", "to_csv",
     "ReferenceStep", "StepResult", "compress", "expand", "heat_at_constant_volume", "throttle",
 ]

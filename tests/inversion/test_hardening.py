@@ -269,7 +269,7 @@ def test_solves_from_threads_and_processes_equal_the_serial_solve(propane_pr):
 
 def test_a_convergence_error_carries_the_record_in_the_callers_shape(propane_pr, monkeypatch):
     # force the (P, v) -> T finder to stop early: the error must point at the caller's index
-    import thermo_roots.inversion.state as state_module
+    import thermo_roots.inversion.pairs_volume as state_module   # the (P, v) finder lives there
 
     real = state_module.find_root
     monkeypatch.setattr(state_module, "find_root", lambda *a, **k: real(*a, **{**k, "maxiter": 1}))

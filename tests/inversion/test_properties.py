@@ -54,3 +54,15 @@ def test_equal_fugacity_at_saturation(name, cls, Tr):
     assert sat.v_liquid < sat.v_vapor
     # ln phi at the saturation pressure (recomputing P of a dense liquid loses digits)
     assert abs(m.ln_phi(sat.T, sat.v_liquid, sat.P) - m.ln_phi(sat.T, sat.v_vapor, sat.P)) < 1e-10
+
+
+@settings(max_examples=20, deadline=None)
+@given(cases)
+def test_energy_pairs_round_trip(case):
+    # (T, P) -> (s, h) -> (T, s) and (h, s) back; (T, h) gives the state as P or P_other
+    s = _state(*case)
+    m = s.model
+    for back in (tr.solve(m, T=s.T, s=s.s), tr.solve(m, h=s.h, s=s.s)):
+        assert abs(back.T / s.T - 1) < 1e-9 and abs(back.P / s.P - 1) < 1e-9, (case, back)
+    both = tr.solve(m, T=s.T, h=s.h)
+    assert min(abs(both.P / s.P - 1), abs(both.P_other / s.P - 1) if both.P_other == both.P_other else 1.0) < 1e-9

@@ -184,3 +184,16 @@ def test_custom_constants_take_a_decimal_comma():
     with pytest.raises(tr.ThermoRootsError, match="44.097 .decimal comma. or 44097"):
         ff.fluid()
     assert "44097" in ff.custom_message.value
+
+
+def test_volume_translation_of_the_ideal_gas_is_refused_beside_the_model():
+    # the ideal gas has no co-volume b (P v = R T), so there is nothing to translate (common practice)
+    import thermo_roots as tr
+    from thermo_roots.widgets._inputs import ModelField
+
+    field = ModelField("IG", volume_shift="peneloux")
+    with pytest.raises(tr.ThermoRootsError, match="no co-volume"):
+        field.model(tr.get_fluid("propane"))
+    assert "no co-volume" in field.message.value
+    shifted = ModelField("PR", volume_shift="peneloux").model(tr.get_fluid("propane"))
+    assert shifted.c != 0.0 and "translated" in shifted.name

@@ -173,3 +173,43 @@ def test_pair_from_keywords_is_checked():
         StatePanel(fluid="propane", v="1 L/mol", rho="300 kg/m^3")
     assert StatePanel(T="20 degC", rho_mass=500.0).fields["rho"].unit.value == "kg/m^3"
     assert StatePanel().table.shape == (0, len(TABLE_COLUMNS))
+
+
+def _marked_rows(html_text):
+    """The quantity of every row whose deviation cell is marked large in the panel's HTML."""
+    rows = re.findall(r"<tr>(.*?)</tr>", html_text)
+    out = []
+    for row in rows:
+        cells = re.findall(r"<td([^>]*)>(.*?)</td>", row)
+        if any("tr-large" in attrs for attrs, _ in cells):
+            out.append(re.sub("<[^>]+>", "", cells[0][1]))
+    return out
+
+
+def test_large_deviations_are_marked_with_a_legend_that_says_the_threshold():
+    from thermo_roots.reference import LARGE_DEVIATION_PERCENT, LARGE_DEVIATION_STYLE
+
+    # Liquid CO2 at 20 degC and 60 bar: Peng-Robinson's liquid density is several percent off the
+    # Span-Wagner reference equation (CoolProp); liquid density is the cubic's weak spot (common practice).
+    panel = StatePanel(fluid="CO2", model="PR", T="20 degC", P="60 bar")
+    panel.solve()
+    flags = panel.check.large_deviations()
+    expected = [row[0] for row, large in zip(panel.check.rows(), flags) if large]
+    assert "Mass density [kg/m³]" in expected
+    rho_ref = CP.PropsSI("D", "T", 293.15, "P", 60e5, "CarbonDioxide")
+    assert abs(panel.result.rho_mass / rho_ref - 1) * 100 > LARGE_DEVIATION_PERCENT
+    shown = panel.output.value
+    assert _marked_rows(shown) == [html_escape(q) for q in expected]
+    assert LARGE_DEVIATION_STYLE in shown
+    assert f"±{LARGE_DEVIATION_PERCENT:g} %" in shown          # the legend names the threshold
+    # propane vapor at 20 degC, 2 bar: within a few percent everywhere, nothing marked
+    calm = StatePanel(fluid="propane", model="PR", T="20 degC", P="2 bar")
+    calm.solve()
+    assert not any(calm.check.large_deviations())
+    assert _marked_rows(calm.output.value) == []
+
+
+def html_escape(text):
+    import html
+
+    return html.escape(text)

@@ -18,13 +18,12 @@ from __future__ import annotations
 import numpy as np
 
 from ..models import R
+from .phases import LIQUID, SUPERCRITICAL, TWO_PHASE, VAPOR, phase_codes  # noqa: F401 (old import path)
 
 #: States per chunk of the numpy path: about 2^13 keeps its temporaries in a 512 kB cache.
 CHUNK = 8192
 #: Below this many states the compiled accelerator is not worth its first-call import.
 ACCEL_MIN_SIZE = 2048
-#: Integer phase codes, as indices into PHASES of the state module.
-LIQUID, VAPOR, SUPERCRITICAL, TWO_PHASE = 0, 1, 2, 3
 
 
 def cubic_real_roots(c2, c1, c0):
@@ -219,12 +218,28 @@ def _lowest_gibbs(model, T, P, roots):
     return pick
 
 
-def phase_codes(model, T, P, v):
-    """Phase code of single-phase states: above Tc by pressure, below Tc by v against v_c."""
-    Tc, Pc = model.fluid.Tc, model.fluid.Pc
-    v_c = model.v_c
-    code = np.where(v < v_c, LIQUID, VAPOR).astype(np.int8)   # NaN reads as vapor
-    above = T >= Tc
-    code[above & (P >= Pc)] = SUPERCRITICAL
-    code[above & (P < Pc)] = VAPOR
-    return code
+# --------------------------------------------------------------------------- any model
+
+def model_roots(model, T, P):
+    """Every real volume root of any model at (T, P) [K, Pa], shape (..., 3), NaN-padded.
+
+    The one place in the inversion layer that tells a model without a liquid (the ideal
+    gas: ``has_saturation`` False, one root v = R T / P) from a cubic; the model protocol
+    has no volume-root method of its own.
+    """
+    T, P = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(P, dtype=float))
+    if model.has_saturation:
+        return volume_roots(model, T, P)
+    roots = np.full(T.shape + (3,), np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        roots[..., 0] = R * T / P
+    return roots
+
+
+def model_stable_roots(model, T, P):
+    """:func:`stable_roots` for any model (the ideal gas: its only root, index 0)."""
+    if model.has_saturation:
+        return stable_roots(model, T, P)
+    roots = model_roots(model, T, P)
+    v = roots[:, 0]
+    return roots, np.zeros(T.shape, np.int8), v, phase_codes(model, T, P, v)

@@ -52,6 +52,8 @@ def state_rows(state) -> list[tuple[str, str]]:
                                                       "temperature)"))
     if np.isfinite(state.T_other):
         rows.append(("Second temperature with this P and v", f"{_fmt(state.T_other)} K"))
+    if np.isfinite(state.P_other):
+        rows.append(("Second pressure with this T and h", f"{_fmt(state.P_other, 1e-5)} bar"))
     if state.metastable:
         rows.append(("Stability", "METASTABLE: between binodal and spinodal"))
     return rows

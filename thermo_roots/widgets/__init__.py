@@ -9,11 +9,14 @@ refused input is explained beside its field; the previous result stays on screen
 - :class:`IsothermExplorer` -- a live P-v isotherm with the dome and the roots at a pressure.
 - :class:`AccuracyPanel` -- where in T and P each model departs from the reference equation.
 - :class:`RootTracePanel` -- the residual and every root finder's iterates for one state.
+- :class:`ProcessPanel` -- a valve, compressor, expander or closed vessel from an inlet state,
+  the reference equation's step beside it, drawn on a pressure-enthalpy diagram.
 """
 
 from .accuracy_panel import AccuracyPanel
 from .isotherm_explorer import IsothermExplorer
+from .process_panel import ProcessPanel
 from .root_trace import RootTracePanel
 from .state_panel import StatePanel
 
-__all__ = ["AccuracyPanel", "IsothermExplorer", "RootTracePanel", "StatePanel"]
+__all__ = ["AccuracyPanel", "IsothermExplorer", "ProcessPanel", "RootTracePanel", "StatePanel"]

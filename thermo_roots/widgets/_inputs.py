@@ -253,11 +253,20 @@ class FluidField:
         self.omega = w.Text(value="0.152", layout=w.Layout(width="120px"))
         self.molar_mass = w.Text(value="44.1", layout=w.Layout(width="120px"))
         self.custom_message = w.HTML()
+        # the ideal-gas heat capacity: blank (no enthalpy or entropy), a constant, or the five
+        # coefficients of a + bT + cT² + dT³ + eT⁴ [J/(mol K)]
+        self.cp0 = w.Text(value="", placeholder="e.g. 73.6, or a b c d e", layout=w.Layout(width="217px"))
+        self.cp0.add_class("tr-cp0")
+        self.cp0_message = w.HTML()
         self.custom_box = w.VBox([
             w.HBox([_label("Name"), self.custom_name]),
             self.Tc.box, self.Pc.box,
             w.HBox([_label("Acentric factor ω"), self.omega]),
             w.HBox([_label("Molar mass [g/mol]"), self.molar_mass, self.custom_message]),
+            w.HBox([_label("Ideal-gas cp0 [J/(mol K)]"), self.cp0,
+                    w.HTML("<span style='color:#555;font-size:0.9em'>&nbsp;optional: a constant, or a b c d e of "
+                           "a + bT + cT² + dT³ + eT⁴ (T in K); needed for h, s and process steps</span>"),
+                    self.cp0_message], layout=w.Layout(align_items="center")),
         ], layout=w.Layout(margin="0 0 0 20px"))
         self.box = w.VBox([w.HBox([_label("Fluid"), self.name, self.message],
                                   layout=w.Layout(align_items="center")), self.custom_box])
@@ -273,6 +282,9 @@ class FluidField:
             self.Pc.set(f"{fluid.Pc:.6g} Pa")
             self.omega.value = f"{fluid.omega:.6g}"
             self.molar_mass.value = f"{fluid.molar_mass * 1e3:.6g}"
+            cp0 = fluid.cp0
+            self.cp0.value = ("" if cp0 is None else f"{cp0:.10g}" if isinstance(cp0, numbers.Real)
+                              else " ".join(f"{c:.10g}" for c in cp0))
             fluid = CUSTOM
         self.name.value = str(fluid)
         self._show_custom()
@@ -286,7 +298,7 @@ class FluidField:
 
     def fluid(self) -> Fluid:
         """The chosen fluid; the message beside the field and an error if it cannot be had."""
-        self.message.value = self.custom_message.value = ""
+        self.message.value = self.custom_message.value = self.cp0_message.value = ""
         self.Tc.clear()
         self.Pc.clear()
         if not self.is_custom:
@@ -303,12 +315,29 @@ class FluidField:
             text = str(err)
             self.custom_message.value = message_html(text)
             raise FieldError(text) from None
+        cp0 = self._cp0()
         try:
             return Fluid(self.custom_name.value.strip() or "my fluid", Tc, Pc, omega,
-                         to_si_molar_mass(grams))
+                         to_si_molar_mass(grams), cp0=cp0)
         except ThermoRootsError as err:
-            self.custom_message.value = message_html(str(err))
+            where = self.cp0_message if "cp0" in str(err) else self.custom_message
+            where.value = message_html(str(err))
             raise FieldError(str(err)) from None
+
+    def _cp0(self):
+        """The typed cp0: None (blank), one number, or up to five coefficients."""
+        parts = self.cp0.value.replace(";", " ").split()
+        if not parts:
+            return None
+        try:
+            if len(parts) > 5:
+                raise FieldError(f"cp0 takes one number or at most five coefficients (a b c d e); "
+                                 f"got {len(parts)}: {self.cp0.value!r}.")
+            numbers_ = [_plain_number(p, "cp0 coefficient", "73.6") for p in parts]
+        except ThermoRootsError as err:
+            self.cp0_message.value = message_html(str(err))
+            raise FieldError(str(err)) from None
+        return numbers_[0] if len(numbers_) == 1 else tuple(numbers_)
 
 
 def to_si_molar_mass(grams_per_mol: float) -> float:
@@ -343,12 +372,13 @@ class ModelField:
         self.message.value = ""
         cls = MODELS[self.short.value]
         try:
-            if self.translate.value:
-                if cls is MODELS["IG"]:
-                    raise FieldError("The ideal gas has no co-volume to translate; untick volume "
-                                     "translation or choose a cubic model.")
-                return cls(fluid, volume_shift="peneloux")
-            return cls(fluid)
+            model = cls(fluid)
+            if not self.translate.value:
+                return model
+            if model.b == 0.0:          # the model protocol: no co-volume (the ideal gas)
+                raise FieldError(f"The {model.name} has no co-volume to translate; untick volume "
+                                 "translation or choose a cubic model.")
+            return cls(fluid, volume_shift="peneloux")
         except ThermoRootsError as err:
             self.message.value = message_html(str(err))
             raise FieldError(str(err)) from None
@@ -384,3 +414,79 @@ class ModelChoice:
     def observe(self, handler) -> None:
         for box in self.boxes.values():
             box.observe(handler, "value")
+
+
+class KnownPair:
+    """A choice of two knowns and their value-with-unit fields (the state panel's inlet, the
+    process panel's inlet): the dropdown of pairs, one :class:`QuantityField` per quantity
+    (only the chosen pair shown), and a message line beside the dropdown.
+
+    Parameters
+    ----------
+    pairs : sequence of (label, (first, second))
+    defaults : dict
+        The text each field starts with, per quantity of :data:`FIELDS`.
+    knowns : dict
+        Two knowns as keywords (``T="20 degC", P="7 barg"``; ``rho_mass`` fills the density
+        field in kg/m³); they choose the pair. Empty: ``default`` (or the first pair).
+    """
+
+    def __init__(self, pairs, defaults, knowns=None, *, default=None, label="Known quantities"):
+        knowns = dict(knowns or {})
+        self.pairs = tuple(pairs)
+        self.pair = w.Dropdown(options=list(self.pairs), value=self.pair_of(knowns, default),
+                               layout=w.Layout(width="217px"))
+        self.pair.add_class("tr-pair")
+        self.fields = {q: QuantityField(q, defaults[q]) for q in FIELDS}
+        for name, value in knowns.items():
+            field = self.fields["rho" if name == "rho_mass" else name]
+            field.set(value)
+            if name == "rho_mass" and isinstance(value, numbers.Real):
+                field.unit.value = "kg/m^3"
+        self.message = w.HTML()
+        self.known_box = w.VBox()
+        self.pair.observe(self._show, "value")
+        self._show()
+        self.box = w.VBox([w.HBox([_label(label), self.pair, self.message], layout=w.Layout(align_items="center")),
+                           self.known_box])
+
+    def pair_of(self, knowns, default=None):
+        names = tuple("rho" if k == "rho_mass" else k for k in knowns)
+        if not names:
+            return default or self.pairs[0][1]
+        for _, pair in self.pairs:
+            if set(pair) == set(names):
+                return pair
+        allowed = "; ".join(f"{a} and {b}" for _, (a, b) in self.pairs)
+        raise FieldError(f"The panel takes one of these pairs of knowns: {allowed}; got {', '.join(knowns)}.")
+
+    def _show(self, *_):
+        self.known_box.children = [self.fields[q].box for q in self.pair.value]
+
+    @property
+    def knowns(self) -> dict:
+        """The two knowns as entered, e.g. {"T": "20 degC", "P": "7 barg"}."""
+        return {q: self.fields[q].entered() for q in self.pair.value}
+
+    def given(self) -> str:
+        """The two knowns as a person reads them: "temperature 20 °C, pressure 7 barg"."""
+        return ", ".join(f"{LABELS[q].lower()} {self.fields[q].shown()}" for q in self.pair.value)
+
+    def clear(self) -> None:
+        for field in self.fields.values():
+            field.clear()
+        self.message.value = ""
+
+    def to_si(self, *, molar_mass, atmosphere) -> dict:
+        """The chosen pair in SI; a message beside the field and FieldError where unreadable."""
+        return {q: self.fields[q].to_si(molar_mass=molar_mass, atmosphere=atmosphere) for q in self.pair.value}
+
+    def blame(self, text: str) -> FieldError:
+        """Show a solve error beside the field it is about (or beside the pair)."""
+        first = text.split(" ", 1)[0].rstrip(",")
+        volume = first in ("v", "rho", "rho_mass")
+        for q in self.pair.value:
+            if q == first or (volume and q in ("v", "rho")):
+                return self.fields[q].fail(text)
+        self.message.value = message_html(text)
+        return FieldError(text)

@@ -16,6 +16,7 @@ from ..quantities import convert
 _TABLE = "border-collapse:collapse;margin:0 18px 8px 0;font-size:0.92em"
 _CELL = "padding:2px 8px;border-bottom:1px solid #ddd;text-align:left"
 _CAPTION = "text-align:left;font-weight:bold;padding:2px 0 4px 0"
+_MARK_CLASS = " class='tr-large'"
 
 
 def in_unit(value, quantity: str, unit: str) -> float:
@@ -36,8 +37,11 @@ def fmt(x, digits: int = 5) -> str:
 
 
 def table(rows, *, header=None, caption=None, highlight=None, nowrap=False, wrap_header=False,
-          wrap_columns=(), compact=False) -> str:
+          wrap_columns=(), compact=False, marked=(), marked_style="") -> str:
     """An HTML table; ``rows`` of already formatted cells; ``highlight`` a row index to bold.
+
+    ``marked`` is a collection of (row, column) cells drawn in ``marked_style`` (CSS), e.g.
+    the deviations beyond a threshold; each such cell also carries the class ``tr-large``.
 
     ``nowrap`` keeps each cell on one line, except in the columns of ``wrap_columns`` (their
     text wraps at spaces within a moderate width); ``wrap_header`` still lets the column
@@ -54,7 +58,9 @@ def table(rows, *, header=None, caption=None, highlight=None, nowrap=False, wrap
     body = []
     for i, row in enumerate(rows):
         bold = ";font-weight:bold;background:#eef5ee" if i == highlight else ""
-        cells = "".join(f"<td style='{(wrapping if j in wrap_columns else cell) + bold}'>{c}</td>"
+        cells = "".join(f"<td{_MARK_CLASS if (i, j) in marked else ''} style='"
+                        f"{(wrapping if j in wrap_columns else cell) + bold}"
+                        f"{';' + marked_style if (i, j) in marked else ''}'>{c}</td>"
                         for j, c in enumerate(row))
         body.append(f"<tr>{cells}</tr>")
     cap = f"<caption style='{_CAPTION}'>{html.escape(caption)}</caption>" if caption else ""

@@ -3,14 +3,13 @@
 from __future__ import annotations
 
 import html
-import numbers
 
 import ipywidgets as w
 
 from .. import solve
 from ..errors import ThermoRootsError
 from ..units import check_atmosphere
-from ._inputs import LABELS, UNITS, FieldError, FluidField, ModelField, QuantityField, message_html
+from ._inputs import UNITS, FluidField, KnownPair, ModelField, QuantityField
 from ._render import (block, caution_html, convergence_text, csv_link, error_html, fluid_label, fmt, in_unit,
                       label_rows, scroll_box, side_by_side, table)
 
@@ -80,40 +79,29 @@ class StatePanel(w.VBox):
         self._rows = []          # (tag, given text, State, CrossCheck) of each added point
         self.fluid_field = FluidField(fluid)
         self.model_field = ModelField(model, volume_shift)
-        pair = self._pair_of(knowns)
-        self.pair = w.Dropdown(options=list(PAIRS), value=pair, layout=w.Layout(width="217px"))
-        self.fields = {q: QuantityField(q, _DEFAULTS[q]) for q in UNITS}
-        for name, value in knowns.items():
-            field = self.fields["rho" if name == "rho_mass" else name]
-            field.set(value)
-            if name == "rho_mass" and isinstance(value, numbers.Real):
-                field.unit.value = "kg/m^3"
+        self.inlet = KnownPair(PAIRS, _DEFAULTS, knowns)
+        # the pieces of the pair, under the names the tests and notebooks use
+        self.pair, self.fields, self.pair_message = self.inlet.pair, self.inlet.fields, self.inlet.message
         self.atmosphere = QuantityField("P", atmosphere, label="Atmosphere", key="atmosphere",
                                         units=[u for u in UNITS["P"] if not u[1].endswith("g")],
                                         reader=check_atmosphere, what="atmosphere")
         self.tag = w.Text(value=tag, placeholder="e.g. V-212", layout=w.Layout(width="120px"))
         self.solve_button = w.Button(description="Solve state", button_style="primary", icon="check")
         self.add_button = w.Button(description="Add to table", icon="plus")
-        self.pair_message = w.HTML()
         self.status = w.HTML()
         self.output = w.HTML()
         # the collected table scrolls inside the panel's width rather than running past it
         self.table_html = w.HTML(layout=w.Layout(overflow="auto", max_width="100%"))
         self.download = w.HTML()
-        self.known_box = w.VBox()
         for widget, name in ((self.solve_button, "tr-solve"), (self.add_button, "tr-add"),
                              (self.output, "tr-result"), (self.status, "tr-status"),
-                             (self.table_html, "tr-table"), (self.pair, "tr-pair"), (self.tag, "tr-tag")):
+                             (self.table_html, "tr-table"), (self.tag, "tr-tag")):
             widget.add_class(name)
-        self.pair.observe(self._show_pair, "value")
         self.solve_button.on_click(lambda _: self.solve())
         self.add_button.on_click(lambda _: self.add_to_table())
-        self._show_pair()
         inputs = w.VBox([
             self.fluid_field.box, self.model_field.box,
-            w.HBox([w.HTML("<b>Known quantities</b>", layout=w.Layout(width="150px")), self.pair,
-                    self.pair_message], layout=w.Layout(align_items="center")),
-            self.known_box, self.atmosphere.box,
+            self.inlet.box, self.atmosphere.box,
             w.HBox([w.HTML("<b>Tag</b>", layout=w.Layout(width="150px")), self.tag,
                     self.solve_button, self.add_button], layout=w.Layout(align_items="center")),
         ])
@@ -121,24 +109,10 @@ class StatePanel(w.VBox):
         self.add_class("thermo-roots-state-panel")
 
     # -- inputs
-    @staticmethod
-    def _pair_of(knowns):
-        names = tuple("rho" if k == "rho_mass" else k for k in knowns)
-        if not names:
-            return PAIRS[0][1]
-        for _, pair in PAIRS:
-            if set(pair) == set(names):
-                return pair
-        allowed = "; ".join(f"{a} and {b}" for _, (a, b) in PAIRS)
-        raise FieldError(f"The panel takes one of these pairs of knowns: {allowed}; got {', '.join(knowns)}.")
-
-    def _show_pair(self, *_):
-        self.known_box.children = [self.fields[q].box for q in self.pair.value]
-
     @property
     def knowns(self) -> dict:
         """The two knowns as entered, e.g. {"T": "20 degC", "P": "7 barg"}."""
-        return {q: self.fields[q].entered() for q in self.pair.value}
+        return self.inlet.knowns
 
     # -- actions
     def solve(self):
@@ -149,39 +123,27 @@ class StatePanel(w.VBox):
         """
         from ..reference import cross_check
 
-        for field in (*self.fields.values(), self.atmosphere):
-            field.clear()
-        self.pair_message.value = ""
+        self.inlet.clear()
+        self.atmosphere.clear()
         try:
             fluid = self.fluid_field.fluid()
             model = self.model_field.model(fluid)
             atmosphere = self.atmosphere.to_si()
-            knowns = {q: self.fields[q].to_si(molar_mass=fluid.molar_mass, atmosphere=atmosphere)
-                      for q in self.pair.value}
+            knowns = self.inlet.to_si(molar_mass=fluid.molar_mass, atmosphere=atmosphere)
             try:
                 state = solve(model, **knowns)
             except ThermoRootsError as err:
-                raise self._blame(str(err)) from None
+                raise self.inlet.blame(str(err)) from None
             check = cross_check(state)
         except ThermoRootsError as err:
             self.error = str(err)
             self.status.value = error_html(self.error)
             return None
         self.result, self.check, self.error = state, check, None
-        self._given = ", ".join(f"{LABELS[q].lower()} {self.fields[q].shown()}" for q in self.pair.value)
+        self._given = self.inlet.given()
         self.status.value = ""
         self.output.value = block(self._render(state, check))
         return state
-
-    def _blame(self, text: str) -> FieldError:
-        """Show a solve error beside the field it is about (or beside the pair)."""
-        first = text.split(" ", 1)[0].rstrip(",")
-        volume = first in ("v", "rho", "rho_mass")
-        for q in self.pair.value:
-            if q == first or (volume and q in ("v", "rho")):
-                return self.fields[q].fail(text)
-        self.pair_message.value = message_html(text)
-        return FieldError(text)
 
     def add_to_table(self):
         """Add the state last shown to the table; returns the table."""
@@ -235,13 +197,21 @@ class StatePanel(w.VBox):
 
 
 def _check_table(check) -> str:
+    """The cross-check as a table, the deviations beyond the reference module's thresholds
+    marked (``CrossCheck.large_deviations``), with a sentence saying the thresholds."""
+    from ..reference import LARGE_DEVIATION_LEGEND, LARGE_DEVIATION_STYLE
+
     if not check.available:
         return table([(html.escape(check.reason),)], caption="Reference equation: not available")
     rows = [tuple(html.escape(c) for c in row) for row in check.rows()]
+    marked = {(i, 3) for i, large in enumerate(check.large_deviations()) if large}
+    note = ("deviation = (model - reference) / reference; the reference is the fluid's multiparameter "
+            "equation of state. " + LARGE_DEVIATION_LEGEND)
     return (table(rows, header=("quantity", "model", "reference", "deviation"),
-                  caption="Against the reference equation (CoolProp)")
-            + "<div style='font-size:0.85em;color:#555;margin:-4px 0 6px 0'>deviation = (model - reference) "
-              "/ reference; the reference is the fluid's multiparameter equation of state.</div>")
+                  caption="Against the reference equation (CoolProp)", marked=marked,
+                  marked_style=LARGE_DEVIATION_STYLE)
+            + f"<div class='tr-legend' style='font-size:0.85em;color:#555;margin:-4px 0 6px 0;max-width:60em'>"
+              f"{html.escape(note)}</div>")
 
 
 def _table_row(tag, given, state, check) -> dict:
