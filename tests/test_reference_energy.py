@@ -5,7 +5,6 @@ Outside values: CoolProp's reference equations called directly (CoolProp HEOS, P
 a path separate from thermo_roots.reference, which uses its AbstractState objects).
 """
 
-import dataclasses
 import math
 
 import CoolProp.CoolProp as CP
@@ -117,10 +116,13 @@ def test_bad_comparison_points_are_refused(pr_propane, valve_outlet):
     iir = tr.PengRobinson(pr_propane.fluid, reference_state="IIR")
     with pytest.raises(tr.InputError, match="reference_state='IIR'"):
         ref.cross_check(tr.solve(iir, P=2e5, h=1e4), at="knowns")
-    # a state known by (T, s), as the (T, s) solver gives it: the reference takes no such pair
-    ts = dataclasses.replace(tr.solve(pr_propane, T=300.0, P=1e5), knowns={"T": 300.0, "s": 100.0})
+    # a state known by (T, s): the reference takes no such pair, but its own P and s it does
+    ts = tr.solve(pr_propane, T=300.0, s=100.0)
     with pytest.raises(tr.InputError, match=r"not this state's knowns \(T, s\)"):
         ref.cross_check(ts, at="knowns")
+    at_ps = ref.cross_check(ts, at="P,s")
+    T_ref = CP.PropsSI("T", "P", float(ts.P), "Smolar", 100.0, "HEOS::Propane")      # CoolProp HEOS, PropsSI
+    assert at_ps.reference_T == pytest.approx(T_ref, rel=1e-9)
 
 
 def test_isenthalp_reference_columns_are_the_cross_check(pr_propane):

@@ -94,9 +94,10 @@ def _coolprop():
     inputs = {"T,P": CoolProp.PT_INPUTS, "T,v": CoolProp.DmolarT_INPUTS, "P,v": CoolProp.DmolarP_INPUTS,
               "T,quality": CoolProp.QT_INPUTS, "P,quality": CoolProp.PQ_INPUTS,
               "P,h": CoolProp.HmolarP_INPUTS, "P,s": CoolProp.PSmolar_INPUTS, "v,u": CoolProp.DmolarUmolar_INPUTS}
-    # CoolProp's phase codes in the project's phase words. Branch h-inv adds
-    # thermo_roots/inversion/phases.py (the one place for phase words, PHASES); once it is on
-    # main these words should be read from there instead of written here.
+    # CoolProp's phase codes in the project's phase words. thermo_roots/inversion/phases.py is
+    # now the one place for phase words (PHASES, indexed by LIQUID, VAPOR, SUPERCRITICAL,
+    # TWO_PHASE): these words should be read from there instead of written here (left for the
+    # lead: the mapping is unchanged in this branch).
     phases = {
         CoolProp.iphase_liquid: "liquid", CoolProp.iphase_supercritical_liquid: "liquid",
         CoolProp.iphase_gas: "vapor", CoolProp.iphase_supercritical_gas: "vapor",
