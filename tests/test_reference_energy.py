@@ -113,9 +113,6 @@ def test_bad_comparison_points_are_refused(pr_propane, valve_outlet):
         ref.cross_check(out, at="T,h")
     with pytest.raises(tr.InputError, match="at="):
         ref.cross_check(out, at=3)
-    iir = tr.PengRobinson(pr_propane.fluid, reference_state="IIR")
-    with pytest.raises(tr.InputError, match="reference_state='IIR'"):
-        ref.cross_check(tr.solve(iir, P=2e5, h=1e4), at="knowns")
     # a state known by (T, s): the reference takes no such pair, but its own P and s it does
     ts = tr.solve(pr_propane, T=300.0, s=100.0)
     with pytest.raises(tr.InputError, match=r"not this state's knowns \(T, s\)"):
@@ -263,3 +260,54 @@ def test_the_reference_names_a_fluid_by_its_name():
     assert ref.reference_limits("CO2")["Tc"] == pytest.approx(CP.PropsSI("Tcrit", "CO2"), rel=1e-12)
     with pytest.raises(TypeError, match=r"reference_limits\(fluid\) needs a Fluid"):
         ref.reference_limits(3.0)
+
+
+# --------------------------------------------------------------------------- the model's zero of energy
+
+@pytest.mark.parametrize("fluid, convention, knowns", [
+    ("water", "NBP", dict(P=101325.0, quality=0.0)),        # CoolProp's water zero: liquid at the triple point
+    ("propane", "ASHRAE", dict(T=233.15, quality=0.0)),
+    ("carbon dioxide", "ASHRAE", dict(T=233.15, quality=0.0)),
+])
+def test_cross_check_compares_h_and_s_on_the_models_zero(fluid, convention, knowns):
+    # at the convention's own point (saturated liquid at -40 °C, or at the normal boiling
+    # point) both sides are h = s = 0 by definition (common practice of refrigerant tables), so
+    # the deviations there are zero: the reference's h and s are moved onto the model's zero
+    # with the reference equation's own saturated liquid, never compared across two zeros
+    model = tr.PengRobinson(fluid, reference_state=convention)
+    check = ref.cross_check(tr.solve(model, **knowns))
+    assert check.reference_h == pytest.approx(0.0, abs=1e-6) and check.reference_s == pytest.approx(0.0, abs=1e-9)
+    assert check.deviation_h == pytest.approx(0.0, abs=1e-6) and check.deviation_s == pytest.approx(0.0, abs=1e-9)
+    # and a difference between two states never depends on the choice
+    own = tr.PengRobinson(fluid)
+    a, b = dict(T=300.0, P=5e6), dict(T=350.0, P=1e5)
+    on_conv = [ref.cross_check(tr.solve(model, **k)) for k in (a, b)]
+    on_own = [ref.cross_check(tr.solve(own, **k)) for k in (a, b)]
+    assert on_conv[1].reference_h - on_conv[0].reference_h == pytest.approx(
+        on_own[1].reference_h - on_own[0].reference_h, rel=1e-9)
+    assert on_conv[1].deviation_h - on_conv[0].deviation_h == pytest.approx(
+        on_own[1].deviation_h - on_own[0].deviation_h, abs=1e-6)
+
+
+def test_reference_h_on_the_models_zero_against_coolprop():
+    # CoolProp HEOS, PropsSI: h(300 K, 1 bar) - h(saturated liquid at -40 °C) for propane
+    model = tr.PengRobinson("propane", reference_state="ASHRAE")
+    check = ref.cross_check(tr.solve(model, T=300.0, P=1e5))
+    expected = (CP.PropsSI("Hmolar", "T", 300.0, "P", 1e5, "HEOS::Propane")
+                - CP.PropsSI("Hmolar", "T", 233.15, "Q", 0, "HEOS::Propane"))
+    assert check.reference_h == pytest.approx(expected, rel=1e-9)
+    # and at its own (P, h) on that zero the reference finds the state's temperature back
+    at = ref.cross_check(tr.solve(model, P=1e5, h=float(tr.solve(model, T=300.0, P=1e5).h)), at="knowns")
+    T_ref = CP.PropsSI("T", "P", 1e5, "Hmolar", float(tr.solve(model, T=300.0, P=1e5).h)
+                       + CP.PropsSI("Hmolar", "T", 233.15, "Q", 0, "HEOS::Propane"), "HEOS::Propane")
+    assert at.reference_T == pytest.approx(T_ref, rel=1e-9)
+
+
+def test_no_comparison_of_energies_where_the_reference_has_no_such_zero():
+    # IIR's zero is saturated liquid at 0 °C; water's reference equation starts at its triple
+    # point, 273.16 K (Wagner & Pruss 2002), so it has no saturated liquid there
+    model = tr.PengRobinson("water", reference_state="IIR")
+    check = ref.cross_check(tr.solve(model, T=300.0, P=1e5))
+    assert math.isnan(check.deviation_h) and math.isnan(check.deviation_s)
+    assert math.isfinite(check.deviation_v_percent)
+    assert any("reference_state='IIR'" in w for w in check.warnings)

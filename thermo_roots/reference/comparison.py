@@ -12,6 +12,7 @@ Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp).
 
 from __future__ import annotations
 
+import functools
 import html
 import math
 from dataclasses import dataclass, field
@@ -22,8 +23,8 @@ from ..errors import DomainError, InputError, ThermoRootsError
 from ..inversion import CAUTION, State
 from ..models import R, _scalar_or_array
 from ..quantities import convert, quantity, unit_label
-from .batch import _check_run_options, _given
-from .driver import REFERENCE_PAIRS, _fluid_name
+from .batch import _check_run_options, _given, evaluate_reference
+from .driver import REFERENCE_PAIRS, _fluid_name, library_reason
 from .states import _fluid_reference, _shape_values, _warning_text
 
 @dataclass(frozen=True)
@@ -57,8 +58,11 @@ class CrossCheck:
     reference_v_liquid, reference_v_vapor : saturated volumes at T [m^3/mol]
     reference_quality : vapor mole fraction [-] where the reference is two-phase
     reference_h, reference_s : enthalpy [J/mol] and entropy [J/(mol K)] of the reference at the
-        knowns, on the reference equation's own reference state (the model's library-fluid
-        values are on the same one, so they compare directly)
+        knowns, on the model's reference state: the reference equation's own by default (the
+        model's library-fluid values are on the same one, so they compare directly); for a
+        model on IIR, ASHRAE or NBP moved to that convention with the reference equation's
+        own saturated liquid (:func:`convention_offset`), so deviation_h and deviation_s never
+        compare two different zeros
     reference_cp : isobaric heat capacity [J/(mol K)]; reference_w : speed of sound [m/s];
         both NaN in the two-phase region, where they have no single value
     deviation_h : h_model - h_ref [J/mol]; deviation_s : s_model - s_ref [J/(mol K)]
@@ -360,13 +364,43 @@ def _comparison_knowns(state, at):
                          f"reference's pairs {', '.join(REFERENCE_PAIRS)} (e.g. at='P,h': the reference's T at "
                          "the state's pressure and enthalpy).")
     first, second = pair.split(",")
-    energy = [k for k in (first, second) if k in _ENERGIES]
-    if energy and state.model.reference_state != "reference":
-        raise InputError(f"cross_check(state, at={at!r}) compares the reference equation at the model's "
-                         f"{energy[0]}, but this model's energies are on reference_state="
-                         f"{state.model.reference_state!r}, another zero than the reference equation's; use a "
-                         "model with reference_state='reference' (the default), or at='default'.")
-    return pair, read(state, first), read(state, second)
+    dh, ds = convention_offset(state.model)
+    shift = {"h": dh, "u": dh, "s": ds}       # u = h - P v: the same offset as h
+
+    def known(name):
+        """The model's value, moved onto the reference equation's own zero for h, s, u."""
+        return read(state, name) - shift[name] if name in shift else read(state, name)
+
+    return pair, known(first), known(second)
+
+
+def convention_offset(model):
+    """(dh [J/mol], ds [J/(mol K)]) that move the reference equation's own h and s (u by dh)
+    onto the model's ``reference_state``, fixed with the reference equation's own saturated
+    liquid, as the model fixes its own with its saturation; (0, 0) for "reference" and for a
+    fluid without a reference equation, NaN where the reference has no such saturated liquid.
+
+    References
+    ----------
+    IIR (h = 200 kJ/kg, s = 1 kJ/(kg K)), ASHRAE (h = s = 0 at -40 °C) and NBP (h = s = 0 at
+    the normal boiling point) conventions: common practice of refrigeration tables, e.g.
+    ASHRAE Handbook -- Fundamentals (2017), ch. 30.
+    """
+    if model.reference_state == "reference" or library_reason(model.fluid):
+        return 0.0, 0.0
+    return _reference_offset(model.fluid.library_name, model.reference_state, float(model.fluid.molar_mass))
+
+
+@functools.lru_cache(maxsize=None)
+def _reference_offset(library_name, convention, molar_mass):
+    from ..inversion.state import _CONVENTIONS
+
+    T0, h0, s0 = _CONVENTIONS[convention]
+    pair, a = ("P,quality", 101325.0) if T0 is None else ("T,quality", T0)
+    sat, _ = evaluate_reference(library_name, pair, [a], [0.0], with_saturation=False)
+    if sat["reason"][0]:
+        return math.nan, math.nan
+    return h0 * molar_mass - float(sat["h"][0]), s0 * molar_mass - float(sat["s"][0])
 
 
 def cross_check(state, *, at="default", progress=False, executor=None, chunk_size=None, on_interrupt="raise",
@@ -384,8 +418,8 @@ def cross_check(state, *, at="default", progress=False, executor=None, chunk_siz
         is then set beside the reference's own (P, h) state, and ``deviation_T_K`` is the
         model's outlet temperature minus the reference's. A pair such as "T,P" or "P,h":
         at the model state's values of those two (its T and P, its P and h, ...). Pairs
-        with h, s or u need a model on the reference equation's zero
-        (``reference_state="reference"``, the default). (T, P) does not fix a two-phase
+        with h, s or u take the model's values on its own zero and move them onto the
+        reference equation's (:func:`convention_offset`). (T, P) does not fix a two-phase
         state: there the reference answers with a one-phase state.
     progress : bool or "auto"
         A tqdm progress bar over the states.
@@ -444,7 +478,8 @@ def compare_with_reference(state, pair, a, b, *, shared=None, progress=False, ex
     state : State
     pair : one of :data:`REFERENCE_PAIRS`
     a, b : array_like
-        The reference's knowns (SI, molar), broadcast to the state's shape.
+        The reference's knowns (SI, molar), broadcast to the state's shape; h, s and u on the
+        reference equation's own zero.
     shared : iterable of str, optional
         The quantities that are the same on both sides by construction (their deviations are
         NaN); default the pair's two. An isenthalp whose reference h is the reference's own
@@ -455,6 +490,7 @@ def compare_with_reference(state, pair, a, b, *, shared=None, progress=False, ex
     Returns
     -------
     CrossCheck
+        Its reference_h and reference_s on the model's zero (:func:`convention_offset`).
     """
     _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size, on_interrupt=on_interrupt,
                        with_saturation=with_saturation)
@@ -463,6 +499,14 @@ def compare_with_reference(state, pair, a, b, *, shared=None, progress=False, ex
     values, completed, notes = _fluid_reference(state.model.fluid, pair, a, b, shape,
                                                 with_saturation=with_saturation, progress=progress,
                                                 executor=executor, chunk_size=chunk_size, on_interrupt=on_interrupt)
+    dh, ds = convention_offset(state.model)
+    if dh != 0.0 or ds != 0.0:              # the reference's energies on the model's zero
+        values = {**values, "h": values["h"] + dh, "u": values["u"] + dh, "s": values["s"] + ds}
+    if not (math.isfinite(dh) and math.isfinite(ds)):
+        notes = tuple(notes) + (f"The reference equation has no saturated liquid where reference_state="
+                                f"{state.model.reference_state!r} puts the zero of h and s for "
+                                f"{_fluid_name(state.model.fluid)} (outside its range, e.g. below its triple "
+                                "point), so h, s and u are not compared; use reference_state='reference'.",)
     shared = set(pair.split(",")) if shared is None else set(shared)
     return _combine(state, shared, values, completed, notes)
 
