@@ -40,6 +40,6 @@ from .steps import ReferenceStep, reference_flow_step, reference_inlet, referenc
 __all__ = ["AT_OPTIONS", "AUTO_PROGRESS_ABOVE", "CONSTANT_TOLERANCE", "CrossCheck", "DEFAULT_CHUNK", "INTERRUPTED",
            "LARGE_DEVIATION_K", "LARGE_DEVIATION_LEGEND", "LARGE_DEVIATION_PERCENT", "LARGE_DEVIATION_STYLE",
            "REFERENCE_PAIRS", "ReferenceSaturation", "ReferenceState", "ReferenceStep", "compare_with_reference",
-           "constant_warnings", "convention_offset", "cross_check", "evaluate_reference", "fit_volume_shift", "knowns_pair",
-           "library_reason", "reference_flow_step", "reference_inlet", "reference_limits", "reference_saturation",
-           "reference_state", "reference_vessel_step", "state_pair", "whole_number"]
+           "constant_warnings", "convention_offset", "cross_check", "evaluate_reference", "fit_volume_shift",
+           "knowns_pair", "library_reason", "reference_flow_step", "reference_inlet", "reference_limits",
+           "reference_saturation", "reference_state", "reference_vessel_step", "state_pair", "whole_number"]

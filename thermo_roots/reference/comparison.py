@@ -46,12 +46,15 @@ class CrossCheck:
         for states whose knowns include v)
     reference_T : temperature [K] of the reference at the knowns
     reference_phase : "liquid", "vapor", "supercritical", "two-phase" ("" if unavailable)
-    deviation_v_percent : 100 (v_model - v_ref)/v_ref; NaN for states whose volume was
-        given (compare the pressure there)
+    deviation_v_percent : 100 (v_model - v_ref)/v_ref; NaN where the reference was given the
+        volume (compare the pressure there)
     deviation_rho_percent : 100 (rho_model - rho_ref)/rho_ref, likewise
-    deviation_P_percent : 100 (P_model - P_ref)/P_ref for states whose knowns include v,
-        and for (T, quality) states (saturation pressure); NaN where P was given
-    deviation_T_K : T_model - T_ref [K] for (P, quality) states; NaN elsewhere
+    deviation_P_percent : 100 (P_model - P_ref)/P_ref where the reference was not given P:
+        states whose knowns include v, (T, quality) states (saturation pressure), (v, u);
+        NaN where P was given
+    deviation_T_K : T_model - T_ref [K] where the reference was not given T: (P, quality)
+        states, and states compared at their (P, h), (P, s), (P, v) or (v, u) (``at=``);
+        NaN where T was given
     phase_agrees : model and reference phase are the same (False where unavailable)
     reference_P_sat : saturation pressure at T [Pa], NaN at or above Tc
     reference_T_sat : saturation temperature at P [K], NaN at or above Pc
@@ -65,7 +68,8 @@ class CrossCheck:
         compare two different zeros
     reference_cp : isobaric heat capacity [J/(mol K)]; reference_w : speed of sound [m/s];
         both NaN in the two-phase region, where they have no single value
-    deviation_h : h_model - h_ref [J/mol]; deviation_s : s_model - s_ref [J/(mol K)]
+    deviation_h : h_model - h_ref [J/mol]; deviation_s : s_model - s_ref [J/(mol K)]; NaN for
+        the one the reference was given (a comparison at (P, h) has no deviation_h)
     deviation_h_percent, deviation_s_percent : the same relative to |h_ref| (|s_ref|) [%],
         given only where |h_ref| >= R T (|s_ref| >= R): h and s have an arbitrary zero, and
         a percentage of a value near that zero says nothing
@@ -446,6 +450,10 @@ def cross_check(state, *, at="default", progress=False, executor=None, chunk_siz
     and states solved from an energy pair ((P, h), (P, s), (T, h), (u, v), ...), at the
     model's (T, v), which yields the pressure deviation (and h, s against the reference's at
     that T and v); quality states on the saturation line at the same T (or P) and quality.
+    The default stays on the model's own T and v because that comparison exists for every
+    pair the solver takes and needs no agreement on the zero of energy; for the outlet of a
+    valve or a machine ``at="knowns"`` answers the user's question more directly (what
+    temperature the reference gives at the same pressure and enthalpy).
 
     With ``at="knowns"`` or a pair, the reference is evaluated at those two numbers and every
     other quantity is compared: the deviations of the two given ones are NaN (they are the
