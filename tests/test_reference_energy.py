@@ -311,3 +311,16 @@ def test_no_comparison_of_energies_where_the_reference_has_no_such_zero():
     assert math.isnan(check.deviation_h) and math.isnan(check.deviation_s)
     assert math.isfinite(check.deviation_v_percent)
     assert any("reference_state='IIR'" in w for w in check.warnings)
+
+
+def test_step_table_shows_the_reference_on_the_models_zero():
+    # a valve of propane on ASHRAE's zero: the reference columns of the table are the reference
+    # equation's h relative to its own saturated liquid at -40 °C (CoolProp HEOS, PropsSI)
+    model = tr.PengRobinson("propane", reference_state="ASHRAE")
+    result = tr.throttle(model, tr.solve(model, T=293.15, P=10e5), 2e5)
+    row = next(r for r in result.rows() if r[0].startswith("Specific enthalpy"))
+    M = CP.PropsSI("molarmass", "Propane")
+    h = (CP.PropsSI("Hmolar", "T", 293.15, "P", 10e5, "HEOS::Propane")
+         - CP.PropsSI("Hmolar", "T", 233.15, "Q", 0, "HEOS::Propane")) / M / 1e3
+    assert float(row[3]) == pytest.approx(h, abs=0.01) and float(row[4]) == pytest.approx(h, abs=0.01)
+    assert abs(float(row[1]) - float(row[3])) < 5.0       # measured 1.3 kJ/kg; 106 kJ/kg across two zeros

@@ -38,7 +38,7 @@ import numpy as np
 from .errors import InputError
 from .inversion import CAUTION, State, solve
 from .models import _scalar_or_array
-from .reference import library_reason, reference_limits
+from .reference import convention_offset, library_reason, reference_limits
 from .reference.steps import ReferenceStep, reference_flow_step, reference_vessel_step
 from .units import STANDARD_ATMOSPHERE, to_si
 
@@ -130,13 +130,17 @@ class StepResult:
             return "-" if st is None or not getattr(st, "phase", "") else str(st.phase)
 
         M = self.inlet.model.fluid.molar_mass
+        # the reference's h and s on the model's zero (IIR, ASHRAE, NBP), so the columns compare
+        dh, ds = convention_offset(self.inlet.model)
+        shift = {"h": dh, "s": ds}
         rows = [("Phase", phase(self.inlet), phase(self.outlet), phase(r_in), phase(r_out))]
         for label, name, scale, offset in (("Temperature [°C]", "T", 1.0, -273.15), ("Pressure [bar]", "P", 1e-5, 0.0),
                                            ("Vapor quality [-]", "quality", 1.0, 0.0),
                                            ("Specific enthalpy h [kJ/kg]", "h", 1e-3 / M, 0.0),
                                            ("Specific entropy s [kJ/(kg K)]", "s", 1e-3 / M, 0.0),
                                            ("Mass density [kg/m³]", "rho_mass", 1.0, 0.0)):
-            values = [_ref_attr(st, name) for st in (self.inlet, self.outlet, r_in, r_out)]
+            values = ([_ref_attr(st, name) for st in (self.inlet, self.outlet)]
+                      + [_ref_attr(st, name) + shift.get(name, 0.0) for st in (r_in, r_out)])
             rows.append((label,) + tuple(cell(x, scale, offset) for x in values))
         return rows
 

@@ -39,7 +39,9 @@ class ReferenceStep:
     ----------
     available : bool
     reason : str, "" where available; otherwise "unavailable: ..." says why
-    inlet, outlet : ReferenceState (None where the reference could not be started)
+    inlet, outlet : ReferenceState (None where the reference could not be started); their h,
+        s and u are on the reference equation's own zero (``StepResult.rows`` shows them on the
+        model's, through :func:`~thermo_roots.reference.convention_offset`)
     isentropic_outlet : ReferenceState of the isentropic outlet (compressor and expander), else None
     work_molar [J/mol], work_mass [J/kg] : shaft work into the fluid
     heat_molar [J/mol], heat_mass [J/kg], heat [J] (the vessel's) : heat into the fluid
