@@ -504,8 +504,11 @@ def isenthalp(model, h=None, *, h_mass=None, inlet=None, P=None, n=DEFAULT_POINT
         (:data:`ENERGY_REFERENCE_COLUMNS`): its T, v, phase, quality, h, s, cp, w, and the
         model's deviations from them (deviation_T_K = T - reference_T [K]; deviation_h,
         deviation_s in J/mol and J/(mol K); the others in %). With ``inlet`` the reference's h
-        is its own at the inlet's knowns, so the two columns of T compare the same valve;
-        without one it is the same number (on the reference equation's zero).
+        is its own at the inlet's knowns, so the two columns of T compare the same valve, and
+        deviation_h is the two inlets' difference; without one it is the same number (on the
+        reference equation's zero) and deviation_h is NaN. The columns are the fields of
+        :func:`~thermo_roots.reference.compare_with_reference` (:data:`ENERGY_REFERENCE_FIELDS`);
+        an interrupted reference run keeps the rows it finished (``attrs["interrupted"]``).
     progress, executor, chunk_size
         For the reference evaluations (module conventions).
 
