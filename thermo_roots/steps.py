@@ -2,8 +2,10 @@
 
 Each step takes a solved inlet :class:`~thermo_roots.State`, finds the outlet with the
 model's own energy inversions, and runs the same step through the fluid's reference
-equation (CoolProp HEOS, its own (P, h), (P, s) and (v, P) / (v, T) solves) beside it, so
-the distance between the cubic's outlet and the reference's is in the result.
+equation (CoolProp HEOS, its own (P, h), (P, s) and (v, P) / (v, T) solves;
+:mod:`thermo_roots.reference.steps`) beside it, so the distance between the cubic's outlet
+and the reference's is in the result. This module only composes the two: the model's step,
+then the reference's, with the efficiency rule written once (:func:`_outlet_enthalpy`).
 
 - :func:`throttle`: isenthalpic (valve, expansion device, pressure regulator): h_out = h_in.
 - :func:`compress`: isentropic outlet at P_out, then h_out = h_in + (h_s - h_in) / efficiency.
@@ -36,6 +38,8 @@ import numpy as np
 from .errors import InputError
 from .inversion import CAUTION, State, solve
 from .models import _scalar_or_array
+from .reference import convention_offset, library_reason, reference_limits
+from .reference.steps import ReferenceStep, reference_flow_step, reference_vessel_step
 from .units import STANDARD_ATMOSPHERE, to_si
 
 #: The kinds of step, as the results name them.
@@ -48,32 +52,6 @@ VESSEL_CAUTION = ("PRESSURE EQUIPMENT: a screening estimate of the heat and pres
 
 
 # --------------------------------------------------------------------------- results
-
-@dataclass(frozen=True)
-class ReferenceStep:
-    """The same step through the reference equation (scalars or arrays as the inlet).
-
-    Attributes
-    ----------
-    available : bool
-    reason : str, "" where available; otherwise "unavailable: ..." says why
-    inlet, outlet : ReferenceState (None where the reference could not be started)
-    isentropic_outlet : ReferenceState of the isentropic outlet (compressor and expander), else None
-    work_molar [J/mol], work_mass [J/kg] : shaft work into the fluid
-    heat_molar [J/mol], heat_mass [J/kg], heat [J] (the vessel's) : heat into the fluid
-    """
-
-    available: object
-    reason: object
-    inlet: object = field(repr=False, default=None)
-    outlet: object = field(repr=False, default=None)
-    isentropic_outlet: object = field(repr=False, default=None)
-    work_molar: object = field(repr=False, default=math.nan)
-    work_mass: object = field(repr=False, default=math.nan)
-    heat_molar: object = field(repr=False, default=math.nan)
-    heat_mass: object = field(repr=False, default=math.nan)
-    heat: object = field(repr=False, default=math.nan)
-
 
 @dataclass(frozen=True)
 class StepResult:
@@ -152,13 +130,17 @@ class StepResult:
             return "-" if st is None or not getattr(st, "phase", "") else str(st.phase)
 
         M = self.inlet.model.fluid.molar_mass
+        # the reference's h and s on the model's zero (IIR, ASHRAE, NBP), so the columns compare
+        dh, ds = convention_offset(self.inlet.model)
+        shift = {"h": dh, "s": ds}
         rows = [("Phase", phase(self.inlet), phase(self.outlet), phase(r_in), phase(r_out))]
         for label, name, scale, offset in (("Temperature [°C]", "T", 1.0, -273.15), ("Pressure [bar]", "P", 1e-5, 0.0),
                                            ("Vapor quality [-]", "quality", 1.0, 0.0),
                                            ("Specific enthalpy h [kJ/kg]", "h", 1e-3 / M, 0.0),
                                            ("Specific entropy s [kJ/(kg K)]", "s", 1e-3 / M, 0.0),
                                            ("Mass density [kg/m³]", "rho_mass", 1.0, 0.0)):
-            values = [_ref_attr(st, name) for st in (self.inlet, self.outlet, r_in, r_out)]
+            values = ([_ref_attr(st, name) for st in (self.inlet, self.outlet)]
+                      + [_ref_attr(st, name) + shift.get(name, 0.0) for st in (r_in, r_out)])
             rows.append((label,) + tuple(cell(x, scale, offset) for x in values))
         return rows
 
@@ -289,79 +271,15 @@ def _efficiency(value, caller):
     return float(value)
 
 
-# --------------------------------------------------------------------------- the reference side
+# --------------------------------------------------------------------------- the efficiency rule
 
-def _reference_inlet(inlet, fluid, *, vessel=False):
-    """The reference at the inlet's own knowns (a vessel: at the inlet's T and v, the fill)."""
-    from .reference import reference_state, state_pair
-
-    if vessel:
-        return reference_state(fluid, T=inlet.T, v=inlet.v, with_saturation=False)
-    pair = state_pair(inlet)
-    first, second = pair.split(",")
-    values = {"T": inlet.T, "P": inlet.P, "v": inlet.v}
-    knowns = {first: values[first],
-              second: inlet.knowns["quality"] if second == "quality" else values[second]}
-    return reference_state(fluid, with_saturation=False, **knowns)
-
-
-def _unavailable(reason, inlet=None):
-    return ReferenceStep(available=False, reason=f"unavailable: {reason}", inlet=inlet)
-
-
-def _reason_of(ref):
-    reasons = np.atleast_1d(np.asarray(ref.reason, dtype=object)).ravel()
-    bad = [str(r) for r in reasons if r]
-    return bad[0] if bad else ""
-
-
-def _reference_flow_step(model, inlet, P_out, kind, efficiency):
-    """The reference's throttle, compressor or expander from its own inlet at the same knowns."""
-    from .reference import library_reason, reference_state
-
-    fluid = model.fluid
-    reason = library_reason(fluid)
-    if reason:
-        return _unavailable(reason)
-    r_in = _reference_inlet(inlet, fluid)
-    if _reason_of(r_in):
-        return _unavailable(f"the reference inlet: {_reason_of(r_in)}", r_in)
-    M = fluid.molar_mass
-    isentropic = None
-    h_in = np.asarray(r_in.h, dtype=float)
-    if kind == THROTTLE:
-        h_out = h_in
-    else:
-        isentropic = reference_state(fluid, P=P_out, s=r_in.s, with_saturation=False)
-        if _reason_of(isentropic):
-            return _unavailable(f"the reference's isentropic outlet: {_reason_of(isentropic)}", r_in)
-        h_s = np.asarray(isentropic.h, dtype=float)
-        h_out = h_in + (h_s - h_in) / efficiency if kind == COMPRESSION else h_in - efficiency * (h_in - h_s)
-    r_out = reference_state(fluid, P=P_out, h=h_out, with_saturation=False)
-    if _reason_of(r_out):
-        return ReferenceStep(False, f"unavailable: the reference outlet: {_reason_of(r_out)}", r_in, None, isentropic)
-    work = _scalar_or_array(h_out - h_in)
-    return ReferenceStep(True, "", r_in, r_out, isentropic, work, _scalar_or_array(np.asarray(work) / M), 0.0, 0.0,
-                         math.nan)
-
-
-def _reference_vessel_step(model, inlet, target, mass):
-    from .reference import library_reason, reference_state
-
-    fluid = model.fluid
-    reason = library_reason(fluid)
-    if reason:
-        return _unavailable(reason)
-    r_in = _reference_inlet(inlet, fluid, vessel=True)
-    if _reason_of(r_in):
-        return _unavailable(f"the reference inlet: {_reason_of(r_in)}", r_in)
-    r_out = reference_state(fluid, v=inlet.v, with_saturation=False, **target)
-    if _reason_of(r_out):
-        return ReferenceStep(False, f"unavailable: the reference outlet: {_reason_of(r_out)}", r_in)
-    q = np.asarray(r_out.u, dtype=float) - np.asarray(r_in.u, dtype=float)
-    q_mass = q / fluid.molar_mass
-    return ReferenceStep(True, "", r_in, r_out, None, 0.0, 0.0, _scalar_or_array(q), _scalar_or_array(q_mass),
-                         _scalar_or_array(q_mass * mass))
+def _outlet_enthalpy(kind, efficiency):
+    """h_out(h_in, h_s) [J/mol] of an adiabatic machine: a compressor needs more work than the
+    isentropic one, h_in + (h_s - h_in)/eta; an expander delivers less, h_in - eta (h_in - h_s).
+    The one place of the rule: the model's step and the reference's step both use it."""
+    if kind == COMPRESSION:
+        return lambda h_in, h_s: h_in + (h_s - h_in) / efficiency
+    return lambda h_in, h_s: h_in - efficiency * (h_in - h_s)
 
 
 # --------------------------------------------------------------------------- warnings
@@ -396,8 +314,6 @@ def _outlet_warnings(model, outlet, P_out):
 def _triple_pressure(model):
     """The triple-point pressure [Pa]: the reference equation's, else the model's P_sat at
     T_triple; None when neither is known."""
-    from .reference import library_reason, reference_limits
-
     fluid = model.fluid
     if not library_reason(fluid):
         return reference_limits(fluid)["P_triple"]
@@ -459,7 +375,7 @@ def throttle(model, inlet, P_out, *, atmosphere=STANDARD_ATMOSPHERE) -> StepResu
         raise InputError(f"throttle: P_out = {np.max(P):.6g} Pa is above the inlet pressure {np.min(inlet.P):.6g} Pa; "
                          "a valve or regulator only lowers the pressure. For a rise use compress().")
     outlet = solve(model, P=P, h=inlet.h)
-    ref = _reference_flow_step(model, inlet, P, THROTTLE, 1.0)
+    ref = reference_flow_step(model.fluid, inlet, P)
     zero = _scalar_or_array(np.zeros(np.shape(outlet.T)))
     return StepResult(THROTTLE, inlet, outlet, None, 1.0, zero, zero, zero, zero, math.nan, math.nan, math.nan, ref,
                       tuple(_outlet_warnings(model, outlet, P)))
@@ -480,13 +396,14 @@ def _machine(model, inlet, P_out, efficiency, kind, atmosphere):
     h_in = np.asarray(inlet.h, dtype=float)
     isentropic = solve(model, P=P, s=inlet.s)
     h_s = np.asarray(isentropic.h, dtype=float)
-    h_out = h_in + (h_s - h_in) / eta if kind == COMPRESSION else h_in - eta * (h_in - h_s)
+    rule = _outlet_enthalpy(kind, eta)
+    h_out = rule(h_in, h_s)
     # at efficiency 1 the outlet is the isentropic state itself (s_out = s_in exactly, not
     # through a second inversion)
     outlet = isentropic if eta == 1.0 else solve(model, P=P, h=h_out)
     work = _scalar_or_array(h_out - h_in)
     zero = _scalar_or_array(np.zeros(np.shape(outlet.T)))
-    ref = _reference_flow_step(model, inlet, P, kind, eta)
+    ref = reference_flow_step(model.fluid, inlet, P, rule)
     notes = _efficiency_warnings(eta) + _outlet_warnings(model, outlet, P)
     wet = (np.asarray(inlet.phase) == "two-phase") & ~(np.asarray(inlet.quality) >= 1.0 - 1e-9)
     if kind == COMPRESSION and np.any(wet):   # saturated vapor (quality 1) carries no liquid
@@ -611,7 +528,7 @@ def heat_at_constant_volume(model, inlet, *, mass, P=None, T=None, atmosphere=ST
     q = np.asarray(outlet.u, dtype=float) - np.asarray(inlet.u, dtype=float)
     q_mass = q / M
     volume = float(mass) * np.asarray(inlet.v, dtype=float) / M
-    ref = _reference_vessel_step(model, inlet, target, float(mass))
+    ref = reference_vessel_step(model.fluid, inlet, target, float(mass))
     notes = _outlet_warnings(model, outlet, outlet.P)
     if np.any(np.asarray(outlet.T_other) == np.asarray(outlet.T_other)):
         notes.append("A second temperature gives the same pressure at this fill (see outlet.T_other).")

@@ -52,8 +52,8 @@ import pandas as pd
 from .errors import DomainError, InputError
 from .inversion import CAUTION, saturation, solve
 from .models import Model, R
-from .reference import (CrossCheck, _check_run_options, _given, cross_check, library_reason, reference_limits,
-                        reference_saturation, reference_state, whole_number)
+from .reference import (CrossCheck, _check_run_options, _given, compare_with_reference, cross_check, library_reason,
+                        reference_limits, reference_saturation, reference_state, whole_number)
 from .roots import find_root
 from .quantities import QUANTITIES
 from .units import to_si
@@ -279,18 +279,26 @@ def state_frame(state, *, reference=False, progress="auto", executor=None, chunk
         check = cross_check(state, progress=progress, executor=executor, chunk_size=chunk_size,
                             on_interrupt="partial")
         caloric = CrossCheck.CALORIC_FIELDS if state.model.fluid.ideal_gas is not None else ()
-        for name in CrossCheck.FIELDS + caloric:
-            frame[_REFERENCE_RENAME.get(name, name)] = np.atleast_1d(np.asarray(getattr(check, name))).ravel()
-        if check.warnings:
-            attrs["reference_warnings"] = list(check.warnings)
-            for note in check.warnings:
-                warnings.warn(note, UserWarning, stacklevel=3)
-        if check.completed < len(frame):
-            frame = frame.iloc[:check.completed].copy()
-            attrs["interrupted"] = True
-            warnings.warn(f"Interrupted: the reference cross-check finished {check.completed} of "
-                          f"{np.size(state.T)} states; the table holds those rows.", stacklevel=3)
+        frame = _with_reference(frame, attrs, check, CrossCheck.FIELDS + caloric)
     return _finish(frame, attrs)
+
+
+def _with_reference(frame, attrs, check, fields):
+    """The table with the cross-check's ``fields`` as columns (``available`` and ``reason`` as
+    ``reference_available`` and ``reference_reason``); its warnings in ``attrs`` and said once;
+    after an interrupted check (on_interrupt="partial") only the rows it finished."""
+    for name in fields:
+        frame[_REFERENCE_RENAME.get(name, name)] = np.atleast_1d(np.asarray(getattr(check, name))).ravel()
+    if check.warnings:
+        attrs["reference_warnings"] = list(check.warnings)
+        for note in check.warnings:
+            warnings.warn(note, UserWarning, stacklevel=4)
+    if check.completed < len(frame):
+        attrs["interrupted"] = True
+        warnings.warn(f"Interrupted: the reference cross-check finished {check.completed} of "
+                      f"{len(frame)} states; the table holds those rows.", stacklevel=4)
+        frame = frame.iloc[:check.completed].copy()
+    return frame
 
 
 def isotherm(model, T, P=None, v=None, *, n=DEFAULT_POINTS, log=None, branch="stable", reference=False,
@@ -457,13 +465,16 @@ def isochore(model, v=None, *, rho=None, rho_mass=None, T=None, n=DEFAULT_POINTS
 
 # --------------------------------------------------------------------------- isenthalp and isentrope
 
-#: Reference columns of an isenthalp or isentrope table (the reference equation's own (P, h) or
-#: (P, s) solve at each pressure), in order.
-ENERGY_REFERENCE_COLUMNS = ("reference_available", "reference_reason", "reference_T", "reference_v",
-                            "reference_rho_mass", "reference_Z", "reference_phase", "reference_quality",
-                            "reference_h", "reference_s", "reference_cp", "reference_w", "deviation_T_K",
-                            "deviation_v_percent", "deviation_rho_percent", "phase_agrees", "deviation_h",
-                            "deviation_s", "deviation_cp_percent", "deviation_w_percent")
+#: The cross-check fields of an isenthalp or isentrope table (the reference equation's own
+#: (P, h) or (P, s) solve at each pressure), in order; their columns are
+#: :data:`ENERGY_REFERENCE_COLUMNS`.
+ENERGY_REFERENCE_FIELDS = ("available", "reason", "reference_T", "reference_v", "reference_rho_mass", "reference_Z",
+                           "reference_phase", "reference_quality", "reference_h", "reference_s", "reference_cp",
+                           "reference_w", "deviation_T_K", "deviation_v_percent", "deviation_rho_percent",
+                           "phase_agrees", "deviation_h", "deviation_s", "deviation_cp_percent",
+                           "deviation_w_percent")
+#: Reference columns of an isenthalp or isentrope table, in order.
+ENERGY_REFERENCE_COLUMNS = tuple(_REFERENCE_RENAME.get(name, name) for name in ENERGY_REFERENCE_FIELDS)
 
 
 def isenthalp(model, h=None, *, h_mass=None, inlet=None, P=None, n=DEFAULT_POINTS, log=None, reference=False,
@@ -493,8 +504,11 @@ def isenthalp(model, h=None, *, h_mass=None, inlet=None, P=None, n=DEFAULT_POINT
         (:data:`ENERGY_REFERENCE_COLUMNS`): its T, v, phase, quality, h, s, cp, w, and the
         model's deviations from them (deviation_T_K = T - reference_T [K]; deviation_h,
         deviation_s in J/mol and J/(mol K); the others in %). With ``inlet`` the reference's h
-        is its own at the inlet's knowns, so the two columns of T compare the same valve;
-        without one it is the same number (on the reference equation's zero).
+        is its own at the inlet's knowns, so the two columns of T compare the same valve, and
+        deviation_h is the two inlets' difference; without one it is the same number (on the
+        reference equation's zero) and deviation_h is NaN. The columns are the fields of
+        :func:`~thermo_roots.reference.compare_with_reference` (:data:`ENERGY_REFERENCE_FIELDS`);
+        an interrupted reference run keeps the rows it finished (``attrs["interrupted"]``).
     progress, executor, chunk_size
         For the reference evaluations (module conventions).
 
@@ -591,14 +605,13 @@ def _energy_sweep(model, name, value, value_mass, inlet, P, ratio, *, n, log, re
     if reference:
         ref_fixed = _reference_energy(fluid, name, inlet, fixed)
         attrs[f"reference_{name}"] = ref_fixed
-        ref = reference_state(fluid, P=Ps, with_saturation=False, progress=progress, executor=executor,
-                              chunk_size=chunk_size, **{name: np.full(Ps.shape, ref_fixed)})
-        for column, values in _energy_reference_columns(frame, ref, M).items():
-            frame[column] = values
-        if ref.warnings:
-            attrs["reference_warnings"] = list(ref.warnings)
-            for note in ref.warnings:
-                warnings.warn(note, UserWarning, stacklevel=3)
+        # the reference's own (P, h) or (P, s) solve; with an inlet its h (s) is its own at the
+        # inlet, so only P is shared and deviation_h (deviation_s) is the two inlets' difference
+        check = compare_with_reference(state, f"P,{name}", Ps, np.full(Ps.shape, ref_fixed),
+                                       shared=("P",) if inlet is not None else ("P", name), with_saturation=False,
+                                       progress=progress, executor=executor, chunk_size=chunk_size,
+                                       on_interrupt="partial")
+        frame = _with_reference(frame, attrs, check, ENERGY_REFERENCE_FIELDS)
     return _finish(frame, attrs)
 
 
@@ -612,34 +625,6 @@ def _reference_energy(fluid, name, inlet, fixed):
         knowns = {"T": inlet.T, "P": inlet.P}
     start = reference_state(fluid, with_saturation=False, **knowns)
     return float(getattr(start, name)) if start.available else np.nan
-
-
-def _energy_reference_columns(frame, ref, M) -> dict:
-    """The columns of :data:`ENERGY_REFERENCE_COLUMNS` from a reference state along the sweep."""
-    def col(x, dtype=float):
-        return np.atleast_1d(np.asarray(x, dtype=dtype)).ravel()
-
-    available = col(ref.available, bool)
-    T, v, P = col(ref.T), col(ref.v), col(ref.P)
-    phase = col(ref.phase, object)
-    model = {k: frame[k].to_numpy(dtype=float) if k in frame else np.full(len(frame), np.nan)
-             for k in ("T", "v", "h", "s", "cp", "w")}
-    with np.errstate(invalid="ignore", divide="ignore"):
-        out = {
-            "reference_available": available, "reference_reason": col(ref.reason, object),
-            "reference_T": T, "reference_v": v, "reference_rho_mass": M / v, "reference_Z": P * v / (R * T),
-            "reference_phase": phase, "reference_quality": col(ref.quality),
-            "reference_h": col(ref.h), "reference_s": col(ref.s), "reference_cp": col(ref.cp),
-            "reference_w": col(ref.w),
-            "deviation_T_K": model["T"] - T,
-            "deviation_v_percent": 100.0 * (model["v"] - v) / v,
-            "deviation_rho_percent": 100.0 * (v / model["v"] - 1.0),
-            "phase_agrees": available & (frame["phase"].to_numpy(dtype=object) == phase),
-            "deviation_h": model["h"] - col(ref.h), "deviation_s": model["s"] - col(ref.s),
-            "deviation_cp_percent": 100.0 * (model["cp"] - col(ref.cp)) / col(ref.cp),
-            "deviation_w_percent": 100.0 * (model["w"] - col(ref.w)) / col(ref.w),
-        }
-    return out
 
 
 def _fill_temperature(saturated_volume, v, T_lo, T_hi):

@@ -9,7 +9,10 @@ In pieces along its seams:
   constants against the reference equation's;
 - :mod:`.saturation_line` -- :func:`reference_saturation`;
 - :mod:`.comparison` -- :func:`cross_check`, :class:`CrossCheck` and its large deviations;
-- :mod:`.volume_shift` -- :func:`fit_volume_shift`.
+- :mod:`.volume_shift` -- :func:`fit_volume_shift`;
+- :mod:`.steps` -- :class:`ReferenceStep`: a valve, a machine or a closed vessel through
+  the reference equation's own (P, h), (P, s) and (v, P) / (v, T) solves (the reference
+  side of :mod:`thermo_roots.steps`).
 
 Every name importable from ``thermo_roots.reference`` before the split still is, and
 ``thermo_roots.reference._reference_chunk`` stays the one place to replace the chunk
@@ -29,11 +32,14 @@ from .batch import (AUTO_PROGRESS_ABOVE, DEFAULT_CHUNK, INTERRUPTED, _check_run_
 from .states import CONSTANT_TOLERANCE, ReferenceState, constant_warnings, reference_state
 from .saturation_line import ReferenceSaturation, reference_saturation
 from .comparison import (LARGE_DEVIATION_K, LARGE_DEVIATION_LEGEND, LARGE_DEVIATION_PERCENT,
-                         LARGE_DEVIATION_STYLE, CrossCheck, cross_check, state_pair)
+                         LARGE_DEVIATION_STYLE, AT_OPTIONS, CrossCheck, compare_with_reference,
+                         convention_offset, cross_check, knowns_pair, state_pair)
 from .volume_shift import fit_volume_shift
+from .steps import ReferenceStep, reference_flow_step, reference_inlet, reference_vessel_step
 
-__all__ = ["AUTO_PROGRESS_ABOVE", "CONSTANT_TOLERANCE", "CrossCheck", "DEFAULT_CHUNK", "INTERRUPTED",
+__all__ = ["AT_OPTIONS", "AUTO_PROGRESS_ABOVE", "CONSTANT_TOLERANCE", "CrossCheck", "DEFAULT_CHUNK", "INTERRUPTED",
            "LARGE_DEVIATION_K", "LARGE_DEVIATION_LEGEND", "LARGE_DEVIATION_PERCENT", "LARGE_DEVIATION_STYLE",
-           "REFERENCE_PAIRS", "ReferenceSaturation", "ReferenceState", "constant_warnings", "cross_check",
-           "evaluate_reference", "fit_volume_shift", "library_reason", "reference_limits", "reference_saturation",
-           "reference_state", "state_pair", "whole_number"]
+           "REFERENCE_PAIRS", "ReferenceSaturation", "ReferenceState", "ReferenceStep", "compare_with_reference",
+           "constant_warnings", "convention_offset", "cross_check", "evaluate_reference", "fit_volume_shift",
+           "knowns_pair", "library_reason", "reference_flow_step", "reference_inlet", "reference_limits",
+           "reference_saturation", "reference_state", "reference_vessel_step", "state_pair", "whole_number"]

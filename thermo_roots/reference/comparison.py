@@ -12,6 +12,7 @@ Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp).
 
 from __future__ import annotations
 
+import functools
 import html
 import math
 from dataclasses import dataclass, field
@@ -22,8 +23,8 @@ from ..errors import DomainError, InputError, ThermoRootsError
 from ..inversion import CAUTION, State
 from ..models import R, _scalar_or_array
 from ..quantities import convert, quantity, unit_label
-from .batch import _check_run_options, _given
-from .driver import _fluid_name
+from .batch import _check_run_options, _given, evaluate_reference
+from .driver import REFERENCE_PAIRS, _fluid_name, library_reason
 from .states import _fluid_reference, _shape_values, _warning_text
 
 @dataclass(frozen=True)
@@ -45,23 +46,30 @@ class CrossCheck:
         for states whose knowns include v)
     reference_T : temperature [K] of the reference at the knowns
     reference_phase : "liquid", "vapor", "supercritical", "two-phase" ("" if unavailable)
-    deviation_v_percent : 100 (v_model - v_ref)/v_ref; NaN for states whose volume was
-        given (compare the pressure there)
+    deviation_v_percent : 100 (v_model - v_ref)/v_ref; NaN where the reference was given the
+        volume (compare the pressure there)
     deviation_rho_percent : 100 (rho_model - rho_ref)/rho_ref, likewise
-    deviation_P_percent : 100 (P_model - P_ref)/P_ref for states whose knowns include v,
-        and for (T, quality) states (saturation pressure); NaN where P was given
-    deviation_T_K : T_model - T_ref [K] for (P, quality) states; NaN elsewhere
+    deviation_P_percent : 100 (P_model - P_ref)/P_ref where the reference was not given P:
+        states whose knowns include v, (T, quality) states (saturation pressure), (v, u);
+        NaN where P was given
+    deviation_T_K : T_model - T_ref [K] where the reference was not given T: (P, quality)
+        states, and states compared at their (P, h), (P, s), (P, v) or (v, u) (``at=``);
+        NaN where T was given
     phase_agrees : model and reference phase are the same (False where unavailable)
     reference_P_sat : saturation pressure at T [Pa], NaN at or above Tc
     reference_T_sat : saturation temperature at P [K], NaN at or above Pc
     reference_v_liquid, reference_v_vapor : saturated volumes at T [m^3/mol]
     reference_quality : vapor mole fraction [-] where the reference is two-phase
     reference_h, reference_s : enthalpy [J/mol] and entropy [J/(mol K)] of the reference at the
-        knowns, on the reference equation's own reference state (the model's library-fluid
-        values are on the same one, so they compare directly)
+        knowns, on the model's reference state: the reference equation's own by default (the
+        model's library-fluid values are on the same one, so they compare directly); for a
+        model on IIR, ASHRAE or NBP moved to that convention with the reference equation's
+        own saturated liquid (:func:`convention_offset`), so deviation_h and deviation_s never
+        compare two different zeros
     reference_cp : isobaric heat capacity [J/(mol K)]; reference_w : speed of sound [m/s];
         both NaN in the two-phase region, where they have no single value
-    deviation_h : h_model - h_ref [J/mol]; deviation_s : s_model - s_ref [J/(mol K)]
+    deviation_h : h_model - h_ref [J/mol]; deviation_s : s_model - s_ref [J/(mol K)]; NaN for
+        the one the reference was given (a comparison at (P, h) has no deviation_h)
     deviation_h_percent, deviation_s_percent : the same relative to |h_ref| (|s_ref|) [%],
         given only where |h_ref| >= R T (|s_ref| >= R): h and s have an arbitrary zero, and
         a percentage of a value near that zero says nothing
@@ -127,6 +135,8 @@ class CrossCheck:
         else:
             main = (f"deviation P = {self.deviation_P_percent:+.3g} %" if math.isnan(self.deviation_v_percent)
                     else f"deviation v = {self.deviation_v_percent:+.3g} %")
+            if math.isfinite(self.deviation_T_K):
+                main += f", deviation T = {self.deviation_T_K:+.3g} K"
             text = f"CrossCheck({name!r}, {model}, {main}, phase {s.phase!r} vs reference {self.reference_phase!r})"
         return text + _warning_text(self.warnings)
 
@@ -282,7 +292,7 @@ def _percent(model, reference):
 
 def state_pair(state) -> str:
     """The reference pair for a model state: (T, P); (T, v) for any state with a volume
-    known (the model's T then stands beside v); or (T|P, quality)."""
+    known (the model's T then stands beside v), and for the energy pairs; or (T|P, quality)."""
     names = set(state.knowns)
     if "quality" in names:
         return "T,quality" if "T" in names else "P,quality"
@@ -291,7 +301,113 @@ def state_pair(state) -> str:
     return "T,v"
 
 
-def cross_check(state, *, progress=False, executor=None, chunk_size=None, on_interrupt="raise",
+#: A state's known, by name, as the reference's knowns name it (molar, volume for density).
+_KNOWN_AS = {"rho": "v", "rho_mass": "v", "h_mass": "h", "s_mass": "s", "u_mass": "u"}
+#: What ``at=`` takes besides one of REFERENCE_PAIRS.
+AT_OPTIONS = ("default", "knowns")
+#: Knowns whose numbers depend on the model's zero of energy.
+_ENERGIES = ("h", "s", "u")
+
+
+def knowns_pair(state) -> str:
+    """The reference pair of a model state's own knowns ("P,h" for a state solved from
+    (P, h_mass), "v,u" for (rho, u), ...); InputError where the reference takes no such pair."""
+    names = {_KNOWN_AS.get(k, k) for k in state.knowns}
+    for pair in REFERENCE_PAIRS:
+        if set(pair.split(",")) == names:
+            return pair
+    raise InputError(f"cross_check(state, at='knowns'): the reference equation takes the pairs "
+                     f"{', '.join(REFERENCE_PAIRS)}, not this state's knowns ({', '.join(state.knowns)}); use "
+                     f"at='default' (the model's T and v) or a pair such as at='T,P'.")
+
+
+def _known_values(state, name):
+    """A known of the state in the reference's terms (SI, molar; v for rho and rho_mass)."""
+    M = state.model.fluid.molar_mass
+    knowns = state.knowns
+    shape = np.shape(state.T)
+    if name in knowns:
+        x = np.asarray(knowns[name], dtype=float)
+    elif f"{name}_mass" in knowns:
+        x = np.asarray(knowns[f"{name}_mass"], dtype=float) * M
+    elif name == "v" and "rho" in knowns:
+        x = 1.0 / np.asarray(knowns["rho"], dtype=float)
+    else:                                        # v from rho_mass
+        x = M / np.asarray(knowns["rho_mass"], dtype=float)
+    return np.broadcast_to(x, shape)
+
+
+def _state_values(state, name):
+    """The model state's value of a reference known (SI, molar)."""
+    try:
+        value = state.quality if name == "quality" else getattr(state, name)
+    except DomainError as exc:
+        raise InputError(f"cross_check(state, at=...): the model state has no {name} ({exc}); compare it at "
+                         "at='default' or at='T,P'.") from exc
+    return np.broadcast_to(np.asarray(value, dtype=float), np.shape(state.T))
+
+
+def _comparison_knowns(state, at):
+    """(pair, a, b) at which the reference is evaluated for ``cross_check(state, at=at)``."""
+    if at == "default":
+        pair = state_pair(state)
+        first, second = pair.split(",")
+        T, P, v = (np.asarray(getattr(state, k), dtype=float) for k in ("T", "P", "v"))
+        a = T if first == "T" else P
+        b = {"P": P, "v": v}.get(second)
+        if b is None:
+            b = np.asarray(state.knowns["quality"], dtype=float) * np.ones_like(a)
+        return pair, a, b
+    if at == "knowns":
+        pair = knowns_pair(state)
+        read = _known_values
+    elif isinstance(at, str) and at in REFERENCE_PAIRS:
+        pair, read = at, _state_values
+    else:
+        raise InputError(f"at={at!r} is not an option: give {', '.join(map(repr, AT_OPTIONS))} or one of the "
+                         f"reference's pairs {', '.join(REFERENCE_PAIRS)} (e.g. at='P,h': the reference's T at "
+                         "the state's pressure and enthalpy).")
+    first, second = pair.split(",")
+    dh, ds = convention_offset(state.model)
+    shift = {"h": dh, "u": dh, "s": ds}       # u = h - P v: the same offset as h
+
+    def known(name):
+        """The model's value, moved onto the reference equation's own zero for h, s, u."""
+        return read(state, name) - shift[name] if name in shift else read(state, name)
+
+    return pair, known(first), known(second)
+
+
+def convention_offset(model):
+    """(dh [J/mol], ds [J/(mol K)]) that move the reference equation's own h and s (u by dh)
+    onto the model's ``reference_state``, fixed with the reference equation's own saturated
+    liquid, as the model fixes its own with its saturation; (0, 0) for "reference" and for a
+    fluid without a reference equation, NaN where the reference has no such saturated liquid.
+
+    References
+    ----------
+    IIR (h = 200 kJ/kg, s = 1 kJ/(kg K)), ASHRAE (h = s = 0 at -40 °C) and NBP (h = s = 0 at
+    the normal boiling point) conventions: common practice of refrigeration tables, e.g.
+    ASHRAE Handbook -- Fundamentals (2017), ch. 30.
+    """
+    if model.reference_state == "reference" or library_reason(model.fluid):
+        return 0.0, 0.0
+    return _reference_offset(model.fluid.library_name, model.reference_state, float(model.fluid.molar_mass))
+
+
+@functools.lru_cache(maxsize=None)
+def _reference_offset(library_name, convention, molar_mass):
+    from ..inversion.state import _CONVENTIONS
+
+    T0, h0, s0 = _CONVENTIONS[convention]
+    pair, a = ("P,quality", 101325.0) if T0 is None else ("T,quality", T0)
+    sat, _ = evaluate_reference(library_name, pair, [a], [0.0], with_saturation=False)
+    if sat["reason"][0]:
+        return math.nan, math.nan
+    return h0 * molar_mass - float(sat["h"][0]), s0 * molar_mass - float(sat["s"][0])
+
+
+def cross_check(state, *, at="default", progress=False, executor=None, chunk_size=None, on_interrupt="raise",
                 with_saturation=True) -> CrossCheck:
     """Compare a solved model state with the fluid's reference equation at the same knowns.
 
@@ -299,6 +415,16 @@ def cross_check(state, *, progress=False, executor=None, chunk_size=None, on_int
     ----------
     state : State
         From :func:`thermo_roots.solve`, scalar or array.
+    at : "default", "knowns" or a pair of :data:`REFERENCE_PAIRS`
+        Where the reference is evaluated (see Notes). "default": as :func:`state_pair` says.
+        "knowns": at the state's own knowns, where the reference takes that pair ((P, h),
+        (P, s), (v, u), (P, v) as well as the default's): a valve outlet solved from (P, h)
+        is then set beside the reference's own (P, h) state, and ``deviation_T_K`` is the
+        model's outlet temperature minus the reference's. A pair such as "T,P" or "P,h":
+        at the model state's values of those two (its T and P, its P and h, ...). Pairs
+        with h, s or u take the model's values on its own zero and move them onto the
+        reference equation's (:func:`convention_offset`). (T, P) does not fix a two-phase
+        state: there the reference answers with a one-phase state.
     progress : bool or "auto"
         A tqdm progress bar over the states.
     executor : concurrent.futures.Executor, optional
@@ -320,9 +446,19 @@ def cross_check(state, *, progress=False, executor=None, chunk_size=None, on_int
 
     Notes
     -----
-    (T, P) states are compared at (T, P); states whose knowns include a volume at the
-    model's (T, v), which yields the pressure deviation; quality states on the saturation
-    line at the same T (or P) and quality.
+    By default (T, P) states are compared at (T, P); states whose knowns include a volume,
+    and states solved from an energy pair ((P, h), (P, s), (T, h), (u, v), ...), at the
+    model's (T, v), which yields the pressure deviation (and h, s against the reference's at
+    that T and v); quality states on the saturation line at the same T (or P) and quality.
+    The default stays on the model's own T and v because that comparison exists for every
+    pair the solver takes and needs no agreement on the zero of energy; for the outlet of a
+    valve or a machine ``at="knowns"`` answers the user's question more directly (what
+    temperature the reference gives at the same pressure and enthalpy).
+
+    With ``at="knowns"`` or a pair, the reference is evaluated at those two numbers and every
+    other quantity is compared: the deviations of the two given ones are NaN (they are the
+    same on both sides by construction), so at (P, h) the state has deviation_T_K,
+    deviation_v_percent, deviation_s and the rest, and no deviation_P_percent or deviation_h.
 
     References
     ----------
@@ -334,18 +470,53 @@ def cross_check(state, *, progress=False, executor=None, chunk_size=None, on_int
     _check_state(state)
     _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size, on_interrupt=on_interrupt,
                        with_saturation=with_saturation)
-    pair = state_pair(state)
-    T, P, v = (np.asarray(getattr(state, k), dtype=float) for k in ("T", "P", "v"))
-    first, second = pair.split(",")
-    a = T if first == "T" else P
-    b = {"P": P, "v": v}.get(second)
-    if b is None:
-        b = np.asarray(state.knowns["quality"], dtype=float) * np.ones_like(a)
+    pair, a, b = _comparison_knowns(state, at)
+    return compare_with_reference(state, pair, a, b, progress=progress, executor=executor, chunk_size=chunk_size,
+                                  on_interrupt=on_interrupt, with_saturation=with_saturation)
+
+
+def compare_with_reference(state, pair, a, b, *, shared=None, progress=False, executor=None, chunk_size=None,
+                           on_interrupt="raise", with_saturation=True) -> CrossCheck:
+    """A model state beside the reference equation at given knowns: the one place where a
+    cross-check's deviations are formed (:func:`cross_check`, and the sweeps' isenthalps and
+    isentropes, whose reference starts from its own inlet's h or s).
+
+    Parameters
+    ----------
+    state : State
+    pair : one of :data:`REFERENCE_PAIRS`
+    a, b : array_like
+        The reference's knowns (SI, molar), broadcast to the state's shape; h, s and u on the
+        reference equation's own zero.
+    shared : iterable of str, optional
+        The quantities that are the same on both sides by construction (their deviations are
+        NaN); default the pair's two. An isenthalp whose reference h is the reference's own
+        at the inlet shares only P: its deviation_h is the two inlets' difference.
+    progress, executor, chunk_size, on_interrupt, with_saturation
+        As in :func:`cross_check`.
+
+    Returns
+    -------
+    CrossCheck
+        Its reference_h and reference_s on the model's zero (:func:`convention_offset`).
+    """
+    _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size, on_interrupt=on_interrupt,
+                       with_saturation=with_saturation)
     shape = np.shape(state.T)
+    a, b = (np.broadcast_to(np.asarray(x, dtype=float), shape) for x in (a, b))
     values, completed, notes = _fluid_reference(state.model.fluid, pair, a, b, shape,
                                                 with_saturation=with_saturation, progress=progress,
                                                 executor=executor, chunk_size=chunk_size, on_interrupt=on_interrupt)
-    return _combine(state, pair, values, completed, notes)
+    dh, ds = convention_offset(state.model)
+    if dh != 0.0 or ds != 0.0:              # the reference's energies on the model's zero
+        values = {**values, "h": values["h"] + dh, "u": values["u"] + dh, "s": values["s"] + ds}
+    if not (math.isfinite(dh) and math.isfinite(ds)):
+        notes = tuple(notes) + (f"The reference equation has no saturated liquid where reference_state="
+                                f"{state.model.reference_state!r} puts the zero of h and s for "
+                                f"{_fluid_name(state.model.fluid)} (outside its range, e.g. below its triple "
+                                "point), so h, s and u are not compared; use reference_state='reference'.",)
+    shared = set(pair.split(",")) if shared is None else set(shared)
+    return _combine(state, shared, values, completed, notes)
 
 
 def _check_state(state):
@@ -359,19 +530,21 @@ def _check_state(state):
                     f"got {_given(state)}.{hint}")
 
 
-def _combine(state, pair, ref, completed, notes=()):
-    """Deviations of the model state from reference values (flat arrays in state order)."""
+def _combine(state, shared, ref, completed, notes=()):
+    """Deviations of the model state from reference values (flat arrays in state order);
+    NaN for the quantities in ``shared`` (the same on both sides by construction)."""
     shape = np.shape(state.T)
-    flat = {k: np.asarray(getattr(state, k), dtype=float).ravel() for k in ("T", "P", "v")}
-    phase = np.asarray(state.phase, dtype=object).ravel()
+    flat = {k: np.broadcast_to(np.asarray(getattr(state, k), dtype=float), shape).ravel() for k in ("T", "P", "v")}
+    phase = np.broadcast_to(np.asarray(state.phase, dtype=object), shape).ravel()
     available = ref["reason"] == ""
     nan = np.full(flat["T"].shape, np.nan)
-    volume_known = pair in ("T,v",)
     with np.errstate(invalid="ignore", divide="ignore"):
-        dev_v = nan if volume_known else 100.0 * (flat["v"] - ref["v"]) / ref["v"]
-        dev_rho = nan if volume_known else 100.0 * (ref["v"] / flat["v"] - 1.0)
-        dev_P = 100.0 * (flat["P"] - ref["P"]) / ref["P"] if pair in ("T,v", "T,quality") else nan
-        dev_T = flat["T"] - ref["T"] if pair == "P,quality" else nan
+        dev_v = nan if "v" in shared else 100.0 * (flat["v"] - ref["v"]) / ref["v"]
+        dev_rho = nan if "v" in shared else 100.0 * (ref["v"] / flat["v"] - 1.0)
+        # the pressure of a state whose P is given, and its temperature where T is, are the
+        # reference's too; (T, P) states compare neither
+        dev_P = nan if "P" in shared else 100.0 * (flat["P"] - ref["P"]) / ref["P"]
+        dev_T = nan if "T" in shared else flat["T"] - ref["T"]
         Z = ref["P"] * ref["v"] / (R * ref["T"])
         rho_mass = state.model.fluid.molar_mass / ref["v"]
     values = dict(
@@ -381,21 +554,25 @@ def _combine(state, pair, ref, completed, notes=()):
         deviation_T_K=dev_T, phase_agrees=available & (phase == ref["phase"]),
         reference_P_sat=ref["P_sat"], reference_T_sat=ref["T_sat"], reference_v_liquid=ref["v_liquid"],
         reference_v_vapor=ref["v_vapor"], reference_quality=ref["quality"],
-        **_caloric_deviations(state, ref, flat["T"]),
+        **_caloric_deviations(state, ref, flat["T"], shared),
     )
     return CrossCheck(state=state, completed=completed, warnings=tuple(notes), **_shape_values(values, shape))
 
 
-def _caloric_deviations(state, ref, T):
+def _caloric_deviations(state, ref, T, shared=()):
     """The caloric fields of a cross-check (flat arrays): the reference's h, s, cp, w and the
-    model's deviations from them. A model without ideal-gas data (a user fluid without cp0)
-    has no h or s: its deviations are NaN, the reference values are still given."""
+    model's deviations from them (NaN for h or s in ``shared``). A model without ideal-gas
+    data (a user fluid without cp0) has no h or s: its deviations are NaN, the reference
+    values are still given."""
     n = T.shape
     try:
         model = {k: np.broadcast_to(np.asarray(getattr(state, k), dtype=float), np.shape(state.T)).ravel()
                  for k in ("h", "s", "cp", "w")}
     except DomainError:
         model = {k: np.full(n, np.nan) for k in ("h", "s", "cp", "w")}
+    for name in ("h", "s"):
+        if name in shared:
+            model[name] = np.full(n, np.nan)
     with np.errstate(invalid="ignore", divide="ignore"):
         d_h, d_s = model["h"] - ref["h"], model["s"] - ref["s"]
         out = dict(

@@ -28,6 +28,7 @@ import types
 import numpy as np
 
 from ..errors import InputError, UnknownFluidError
+from ..fluids import as_fluid
 from ..quantities import quantity
 
 #: The pairs of knowns the reference understands, as the names used by ``solve``.
@@ -93,6 +94,10 @@ def _coolprop():
     inputs = {"T,P": CoolProp.PT_INPUTS, "T,v": CoolProp.DmolarT_INPUTS, "P,v": CoolProp.DmolarP_INPUTS,
               "T,quality": CoolProp.QT_INPUTS, "P,quality": CoolProp.PQ_INPUTS,
               "P,h": CoolProp.HmolarP_INPUTS, "P,s": CoolProp.PSmolar_INPUTS, "v,u": CoolProp.DmolarUmolar_INPUTS}
+    # CoolProp's phase codes in the project's phase words. thermo_roots/inversion/phases.py is
+    # now the one place for phase words (PHASES, indexed by LIQUID, VAPOR, SUPERCRITICAL,
+    # TWO_PHASE): these words should be read from there instead of written here (left for the
+    # lead: the mapping is unchanged in this branch).
     phases = {
         CoolProp.iphase_liquid: "liquid", CoolProp.iphase_supercritical_liquid: "liquid",
         CoolProp.iphase_gas: "vapor", CoolProp.iphase_supercritical_gas: "vapor",
@@ -121,9 +126,10 @@ def reference_limits(fluid) -> dict:
 
 
 def _library_name(fluid) -> str:
-    name = getattr(fluid, "library_name", None)
+    fluid = as_fluid(fluid, "reference_limits(fluid)")
+    name = fluid.library_name
     if not name:
-        raise InputError(f"Fluid {getattr(fluid, 'name', fluid)!r} has no library_name, so it has no "
+        raise InputError(f"Fluid {fluid.name!r} has no library_name, so it has no "
                          "reference equation; use a library fluid (get_fluid) to cross-check.")
     return name
 
@@ -300,8 +306,9 @@ def _unavailable_values(n, reason):
 
 
 def _fluid_name(fluid) -> str:
-    """The fluid's name as engineers write it (``display_name`` where the fluid has one)."""
-    return str(getattr(fluid, "display_name", None) or getattr(fluid, "name", fluid))
+    """The fluid's name as engineers write it: ``Fluid.name`` (library fluids carry the
+    everyday name there, e.g. "carbon dioxide"; ``fluids.display_name`` makes it)."""
+    return fluid.name
 
 
 def _no_library_reason(fluid):
@@ -317,7 +324,7 @@ def _unknown_library_reason(fluid):
 def library_reason(fluid) -> str:
     """Why the fluid has no reference equation ("" when it has one): no library name, or a
     library name CoolProp does not know."""
-    if not getattr(fluid, "library_name", None):
+    if not fluid.library_name:
         return _no_library_reason(fluid)
     try:
         _library_limits(fluid.library_name)

@@ -100,7 +100,7 @@ def _shape_values(values, shape):
 
 
 def reference_state(fluid, *, with_saturation: bool = True, progress=False, executor=None,
-                    chunk_size=None, **knowns) -> ReferenceState:
+                    chunk_size=None, on_interrupt="raise", **knowns) -> ReferenceState:
     """The reference equation of the fluid at two knowns.
 
     Parameters
@@ -109,6 +109,10 @@ def reference_state(fluid, *, with_saturation: bool = True, progress=False, exec
         A library fluid (with ``library_name``), or its name.
     with_saturation, progress, executor, chunk_size
         As in :func:`evaluate_reference`.
+    on_interrupt : {"raise", "partial"}
+        On KeyboardInterrupt, re-raise (default) or return the states evaluated so far
+        (``completed`` tells how many; the rest are unavailable with reason
+        :data:`INTERRUPTED`), as :func:`cross_check` does.
     **knowns
         Two of T [K], P [Pa], v [m^3/mol], rho [mol/m^3], rho_mass [kg/m^3], quality [-],
         h [J/mol], s [J/(mol K)], u [J/mol] (or h_mass [J/kg], s_mass [J/(kg K)], u_mass
@@ -125,13 +129,14 @@ def reference_state(fluid, *, with_saturation: bool = True, progress=False, exec
     ----------
     Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498-2508 (CoolProp).
     """
-    _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size,
+    _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size, on_interrupt=on_interrupt,
                        with_saturation=with_saturation)
     fluid = _as_fluid(fluid, "reference_state")
     pair, a, b = _reference_knowns(fluid, knowns)
     shape = np.broadcast(a, b).shape
     values, completed, notes = _fluid_reference(fluid, pair, a, b, shape, with_saturation=with_saturation,
-                                                progress=progress, executor=executor, chunk_size=chunk_size)
+                                                progress=progress, executor=executor, chunk_size=chunk_size,
+                                                on_interrupt=on_interrupt)
     reason = values.pop("reason")
     shaped = _shape_values({**values, "reason": reason, "available": reason == ""}, shape)
     return ReferenceState(fluid=fluid, completed=completed, warnings=notes, **shaped)
