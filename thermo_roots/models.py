@@ -618,6 +618,11 @@ class PengRobinson78(CubicModel):
 #: The zero points of h and s a model can take (see CubicModel).
 REFERENCE_STATES = ("reference", "IIR", "ASHRAE", "NBP")
 
+#: Where each convention puts h [J/kg] and s [J/(kg K)] on saturated liquid, and at which
+#: T [K] (None: the normal boiling point, the saturation temperature at 101.325 kPa).
+#: Common practice of refrigeration tables, e.g. ASHRAE Handbook -- Fundamentals (2017), ch. 30.
+REFERENCE_STATE_POINTS = {"IIR": (273.15, 200e3, 1e3), "ASHRAE": (233.15, 0.0, 0.0), "NBP": (None, 0.0, 0.0)}
+
 
 def _reference_state(option) -> str:
     """The canonical name of a reference-state option, checked."""

@@ -143,7 +143,8 @@ def caloric(model, T, v, P=None) -> Caloric:
         if kernel is not None:
             _ideal_part(model)   # the same error as the numpy path's for a fluid without cp0
             return Caloric(*kernel(T, v, P, shape))
-    A = helmholtz(model, T, v)
-    with np.errstate(invalid="ignore", divide="ignore"):
+    _ideal_part(model)
+    with np.errstate(invalid="ignore", divide="ignore"):   # unphysical elements (T <= 0, v <= b) give NaN quietly
+        A = helmholtz(model, T, v)
         P = -A.a_v if P is None else np.asarray(P, dtype=float)
         return Caloric(*caloric_from_helmholtz(T, v, P, model.fluid.molar_mass, *A))

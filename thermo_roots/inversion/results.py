@@ -11,7 +11,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import DomainError
-from ..models import R, _scalar_or_array
+from ..models import REFERENCE_STATE_POINTS, R, _scalar_or_array
 from .phases import (_NOT_SOLVED_CODE, _PHASE_OBJECTS, NOT_SOLVED, UNSTABLE, _Phase, _PhaseCodes, _root_kinds,
                      _stable_index)
 from .saturation import saturation_pressure, saturation_temperature
@@ -270,9 +270,6 @@ def _root_caloric(state, v):
     return Caloric(*(float(x) for x in record))
 
 
-#: Where each convention puts h and s [J/kg, J/(kg K)] on saturated liquid, and at which T [K]
-#: (None: the normal boiling point, the saturation temperature at 101.325 kPa).
-_CONVENTIONS = {"IIR": (273.15, 200e3, 1e3), "ASHRAE": (233.15, 0.0, 0.0), "NBP": (None, 0.0, 0.0)}
 
 
 def _energy_offset(model):
@@ -284,7 +281,7 @@ def _energy_offset(model):
     if cached is None:
         from ..properties import caloric
 
-        T0, h0, s0 = _CONVENTIONS[model.reference_state]
+        T0, h0, s0 = REFERENCE_STATE_POINTS[model.reference_state]
         if T0 is None:
             T, v_l, _, _ = saturation_temperature(model, np.array([101325.0]))
             T0, P0 = float(T[0]), 101325.0

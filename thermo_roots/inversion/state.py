@@ -32,7 +32,7 @@ from .pairs_volume import (_bracketed, _from_P_v, _from_quality, _from_T_P, _fro
 from .phases import (_NOT_SOLVED_CODE, _PHASE_OBJECTS, LIQUID_LIKE, NOT_SOLVED, PHASES, UNSTABLE,  # noqa: F401
                      VAPOR_LIKE, _branch_index, _Phase, _PhaseCodes, _root_kinds, _single_phase,
                      _stable_index)
-from .results import (_CALORIC_NAMES, _CONVENTIONS, _SINGLE_PHASE_ONLY, Root, State,  # noqa: F401
+from .results import (_CALORIC_NAMES, _SINGLE_PHASE_ONLY, Root, State,  # noqa: F401
                       _caloric_on_reference, _energy_offset, _make_state, _per_mass, _root_caloric,
                       _sat_or_nan, _scalar_view, _shaped_convergence, _solid_warning, _state_caloric,
                       _two_phase_note, mixture_caloric)

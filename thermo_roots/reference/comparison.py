@@ -397,9 +397,9 @@ def convention_offset(model):
 
 @functools.lru_cache(maxsize=None)
 def _reference_offset(library_name, convention, molar_mass):
-    from ..inversion.state import _CONVENTIONS
+    from ..models import REFERENCE_STATE_POINTS
 
-    T0, h0, s0 = _CONVENTIONS[convention]
+    T0, h0, s0 = REFERENCE_STATE_POINTS[convention]
     pair, a = ("P,quality", 101325.0) if T0 is None else ("T,quality", T0)
     sat, _ = evaluate_reference(library_name, pair, [a], [0.0], with_saturation=False)
     if sat["reason"][0]:
