@@ -37,6 +37,7 @@ import numpy as np
 
 from .errors import InputError
 from .inversion import CAUTION, State, solve
+from .inversion.phases import phase_text
 from .models import _scalar_or_array
 from .reference import convention_offset, library_reason, reference_limits
 from .reference.steps import ReferenceStep, reference_flow_step, reference_vessel_step
@@ -127,7 +128,9 @@ class StepResult:
             return "-" if not math.isfinite(x) else f"{x * scale + offset:.{digits}g}"
 
         def phase(st):
-            return "-" if st is None or not getattr(st, "phase", "") else str(st.phase)
+            if st is None or not getattr(st, "phase", ""):
+                return "-"
+            return phase_text(st.phase, float(np.asarray(getattr(st, "quality", np.nan), dtype=float)))
 
         M = self.inlet.model.fluid.molar_mass
         # the reference's h and s on the model's zero (IIR, ASHRAE, NBP), so the columns compare

@@ -245,6 +245,21 @@ def test_a_two_phase_state_shows_its_quality_and_both_coexisting_roots(propane_p
     assert sum(r.stable for r in single.roots) == 1
 
 
+@pytest.mark.parametrize("quality, words", [(0.0, "saturated liquid"), (1.0, "saturated vapor")])
+def test_an_end_of_the_dome_reads_as_saturated_liquid_or_vapor(propane_pr, quality, words):
+    # common practice of property tables: quality 0 is the saturated liquid, 1 the saturated vapor
+    state = tr.solve(propane_pr, P="2 bar", quality=quality)
+    assert state.phase == "two-phase"          # the API's phase word stays
+    phase_row = next(line for line in str(state).splitlines() if line.strip().startswith("Phase"))
+    assert phase_row.split()[-2:] == words.split()
+    step = tr.compress(propane_pr, tr.solve(propane_pr, P="2 bar", quality=1.0), "15 bar", efficiency=0.75)
+    assert "saturated vapor" in str(step)
+    inside = next(line for line in str(tr.solve(propane_pr, P="2 bar", quality=0.5)).splitlines()
+                  if line.strip().startswith("Phase"))
+    assert inside.split()[-1] == "two-phase"
+
+
+
 def _solve_chunk(args):
     model, T, P = args
     state = tr.solve(model, T=T, P=P)

@@ -6,6 +6,8 @@ import html
 
 import numpy as np
 
+from .phases import phase_text
+
 #: Shown with every state a person reads: these numbers can lead to filling, heating or
 #: pressurising equipment.
 CAUTION = (
@@ -27,7 +29,7 @@ def state_rows(state) -> list[tuple[str, str]]:
         return [("Phase", str(state.phase)), ("Not solved", state.reason)]
     M = state.model.fluid.molar_mass
     rows = [
-        ("Phase", str(state.phase)),
+        ("Phase", phase_text(state.phase, float(state.quality))),
         ("Temperature", f"{_fmt(state.T)} K ({_fmt(state.T - 273.15)} °C)"),
         ("Pressure", f"{_fmt(state.P, 1e-5)} bar ({_fmt(state.P, 1e-6)} MPa)"),
         ("Molar volume", f"{_fmt(state.v, 1e3)} L/mol"),

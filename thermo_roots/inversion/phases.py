@@ -25,6 +25,15 @@ LIQUID_LIKE, VAPOR_LIKE, UNSTABLE = "liquid-like", "vapor-like", "unstable"
 PHASES = ("liquid", "vapor", "supercritical", "two-phase")
 #: The phase of an element that could not be solved (its reason is in State.reason).
 NOT_SOLVED = "not solved"
+
+
+def phase_text(phase, quality) -> str:
+    """The phase as a person reads it: a two-phase state on an end of the dome (quality
+    exactly 0 or 1) is the saturated liquid or vapor (common practice of property tables)."""
+    phase = str(phase)
+    if phase == "two-phase" and quality in (0.0, 1.0):
+        return f"saturated {'liquid' if quality == 0.0 else 'vapor'}"
+    return phase
 #: The phases as an object array, indexed by the integer codes above (and
 #: one more code for an element not solved).
 _PHASE_OBJECTS = np.array(PHASES + (NOT_SOLVED,), dtype=object)
