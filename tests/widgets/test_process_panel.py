@@ -299,3 +299,14 @@ def test_an_inlet_given_by_an_energy_pair_runs_the_library_step(knowns, si):
     # cubic's for propane vapor (measured 0 to 2 K here; common practice for a cubic's vapor)
     assert bool(result.reference.available)
     assert float(result.reference.outlet.T) == pytest.approx(float(result.outlet.T), abs=4.0)
+
+
+@pytest.mark.parametrize("pair", [("u", "rho"), ("u", "v"), ("T", "h"), ("h", "s")], ids="-".join)
+def test_the_new_inlet_pairs_start_from_a_state_of_the_default_fluid(pair):
+    # a closed vessel heated to 100 barg from the default fill text of each energy pair
+    panel = ProcessPanel(step="vessel")
+    panel.inlet.pair.value = pair
+    result = panel.solve()
+    assert panel.error is None, panel.error
+    assert result.inlet.reason == "" and float(result.inlet.P) < float(result.outlet.P)
+    assert steps.VESSEL_CAUTION.split(":")[0] in panel.output.value

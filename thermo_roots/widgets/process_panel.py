@@ -25,9 +25,11 @@ STEP_KINDS = (
     ("closed vessel heated or cooled (constant volume)", "vessel"),
 )
 _KIND_LABELS = {key: label for label, key in STEP_KINDS}
-#: The inlet fields' starting text: saturated vapor at 2 bar (a compressor's suction).
+#: The inlet fields' starting text: saturated vapor at 2 bar (a compressor's suction); for
+#: propane with Peng-Robinson, u with the density is a wet fill near -44 °C and 0.95 bar (about
+#: refrigerated storage at atmospheric pressure), u with the volume one near -47 °C.
 _DEFAULTS = {"T": "20 degC", "P": "2 bar", "v": "0.5 L/mol", "rho": "600 kg/m^3", "quality": "1",
-             "h": "550 kJ/kg", "s": "2.4 kJ/(kg K)", "u": "300 kJ/kg"}
+             "h": "550 kJ/kg", "s": "2.4 kJ/(kg K)", "u": "100 kJ/kg"}
 #: Units offered for the vessel's fill: (label, pint spelling).
 MASS_UNITS = (("kg", "kg"), ("g", "g"), ("lb", "lb"))
 VOLUME_UNITS = (("L", "L"), ("m³", "m^3"), ("US gal", "gallon"))
