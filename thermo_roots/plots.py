@@ -30,8 +30,10 @@ from matplotlib.patches import Patch
 
 from .accuracy import model_label
 from .errors import InputError
-from .inversion import CAUTION, saturation, solve
+from .inversion import CAUTION, State, saturation, solve
+from .models import Model
 from .reference import library_reason, reference_limits, reference_saturation, reference_state
+from .steps import CONSTANT_VOLUME, VESSEL_CAUTION, StepResult
 from .units import to_si
 
 #: The one colour, line and marker scheme of every plot.
@@ -195,14 +197,17 @@ def _edges(centres, log):
     return np.exp(e) if log else e
 
 
-def _deduplicated_legend(ax, extra=(), **kwargs):
+def _deduplicated_legend(ax, extra=(), *, wrap=None, **kwargs):
+    """One legend entry per label (the axes' own entries, then ``extra`` (handle, label)
+    pairs); with ``wrap`` a label longer than that many characters is broken into lines, so
+    a legend beside the axes has a bounded width and never squeezes them."""
     handles, labels = ax.get_legend_handles_labels()
     seen, h2, l2 = set(), [], []
     for h, lab in list(zip(handles, labels)) + list(extra):
         if lab and not lab.startswith("_") and lab not in seen:
             seen.add(lab)
             h2.append(h)
-            l2.append(lab)
+            l2.append(lab if wrap is None else textwrap.fill(lab, wrap, break_on_hyphens=False))
     return ax.legend(h2, l2, **kwargs)
 
 
@@ -901,6 +906,9 @@ _DIAGRAM_STYLE = {
     "inlet": dict(marker="o", markersize=7, markerfacecolor="white", linestyle="none"),
     "outlet": dict(marker="s", markersize=7, markerfacecolor="white", linestyle="none"),
 }
+#: Characters per line of the diagrams' legend labels: the longest label of every diagram
+#: ("reference equation (CoolProp): dome and isotherms") fits; longer ones are wrapped.
+_DIAGRAM_LEGEND_WIDTH = 50
 
 
 def _nice_step(span, count):
@@ -934,7 +942,7 @@ def _saturation_grid(fluid, T_lo):
 
 def _state_columns(state, molar_mass):
     """(h [J/kg], s [J/(kg K)], T [K], P [Pa]) arrays of a State or a ReferenceState."""
-    if hasattr(state, "h_mass"):
+    if isinstance(state, State):
         h, s = state.h_mass, state.s_mass
     else:  # the reference's energies are molar
         h, s = np.asarray(state.h, dtype=float) / molar_mass, np.asarray(state.s, dtype=float) / molar_mass
@@ -1013,7 +1021,7 @@ def _check_diagram_model(model, caller):
     if isinstance(model, (list, tuple)):
         raise InputError(f"{caller} draws one model, got a {type(model).__name__} of {len(model)}; "
                          "draw each model on its own axes (give ax=).")
-    if not hasattr(model, "fluid"):
+    if not isinstance(model, Model):
         raise InputError(f"{caller}(model=...) takes a model such as thermo_roots.PengRobinson(fluid), "
                          f"got {model!r}.")
     if not model.has_saturation:
@@ -1073,7 +1081,7 @@ def _label_on_curve(ax, X, Y, target_y, text, colour, gid, log_y):
 
 def _check_step(step, caller):
     """A StepResult of one inlet, or a clear error."""
-    if not hasattr(step, "inlet") or not hasattr(step, "outlet") or not hasattr(step, "reference"):
+    if not isinstance(step, StepResult):
         raise InputError(f"{caller}(step=...) takes a StepResult from thermo_roots.steps (throttle, compress, "
                          f"expand, heat_at_constant_volume), got {type(step).__name__}.")
     if np.ndim(step.outlet.T):
@@ -1141,8 +1149,7 @@ def _draw_step(ax, step, xy, caller):
             drawn = True
     handles = [(Line2D([], [], color=st["color"], linewidth=st["linewidth"], marker=">"),
                 f"{step.kind}, model: inlet (circle) → outlet (square)"
-                + (" — the ends; the heating path between them is not drawn" if step.kind == "constant-volume heat"
-                   else ""))]
+                + ("; the ends only, not the heating path" if step.kind == CONSTANT_VOLUME else ""))]
     if drawn:
         rs = _DIAGRAM_STYLE["reference_step"]
         handles.append((Line2D([], [], color=rs["color"], linewidth=rs["linewidth"], linestyle=rs["linestyle"],
@@ -1186,8 +1193,6 @@ def _step_footer(step, reference_drawn):
     if not reference_drawn:
         reason = np.asarray(step.reference.reason).flat[0] or "unavailable"
         blocks.append((f"The reference equation's step is not drawn ({reason}).", "0.3"))
-    from .steps import CONSTANT_VOLUME, VESSEL_CAUTION
-
     if step.kind == CONSTANT_VOLUME:
         blocks.append((VESSEL_CAUTION, "#a3123a"))
     blocks.append(("Caution: " + CAUTION, "0.25"))
@@ -1327,8 +1332,11 @@ def _property_diagram(model, ax, *, kind, lines, quality_lines, reference, step)
     extra.append((Line2D([], [], color="0.3", **_DIAGRAM_STYLE["line"]),
                   f"{name}s coloured cold (dark) to hot (yellow)" if kind == "ph" else
                   f"{name}s coloured low (dark) to high pressure (yellow)"))
+    # the legend sits right of the axes: its labels are wrapped to the width of the longest
+    # entry every diagram has, so a long step entry adds lines, not width, and the axes (and
+    # the title centred over them) keep their size whatever the step
     _deduplicated_legend(ax, extra=extra, loc="upper left", bbox_to_anchor=(1.02, 1.0), borderaxespad=0.0,
-                         fontsize=8, frameon=False)
+                         fontsize=8, frameon=False, wrap=_DIAGRAM_LEGEND_WIDTH)
     if footer:
         _draw_footer(ax, footer)
     return ax

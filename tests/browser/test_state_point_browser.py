@@ -39,6 +39,8 @@ def test_state_point_notebook_in_chromium(tmp_path):
     # what the page must show for TK-401: the library's own answer, computed here
     state = tr.solve(tr.PengRobinson(tr.get_fluid("CO2")), T="-20 degC", P="18 barg")
     deviation = f"{cross_check(state).deviation_rho_percent:+.3g} %"
+    two = tr.solve(tr.PengRobinson(tr.get_fluid("propane")), T="20 degC", h="610 kJ/kg")
+    second = dict(two.summary())["Second pressure with this T and h"]     # "3214.52 bar"
 
     with lab_server(REPO / "notebooks", tmp_path) as (base, token, _root), sync_playwright() as pw:
         browser = pw.chromium.launch(executable_path=str(CHROMIUM), args=ARGS, timeout=TIMEOUT_MS)
@@ -92,5 +94,22 @@ def test_state_point_notebook_in_chromium(tmp_path):
             expect(panel.locator(".tr-status")).to_have_text("")
             panel.scroll_into_view_if_needed()
             page.screenshot(path=str(OUTPUT / "state_point_browser.png"))
+
+            # an energy pair: propane at 20 degC with h = 610 kJ/kg, which two pressures give
+            panel.locator(".tr-fluid input").fill("propane")
+            panel.locator(".tr-pair select").select_option(label="temperature and enthalpy")
+            expect(panel.locator(".tr-value-P input")).to_be_hidden()
+            expect(panel.locator(".tr-value-T input")).to_have_value("-20")     # the typed T stays
+            panel.locator(".tr-value-T input").fill("20")
+            panel.locator(".tr-value-h input").fill("610")
+            panel.locator(".tr-value-h input").press("Tab")
+            panel.locator(".tr-unit-h select").select_option(label="kJ/kg")
+            panel.locator("button.tr-solve").click()
+            expect(result).to_contain_text("propane")
+            expect(result).to_contain_text(f"Second pressure with this T and h{second}")
+            expect(result.locator(".tr-warnings")).to_contain_text("A second pressure")
+            expect(panel.locator(".tr-status")).to_have_text("")
+            result.scroll_into_view_if_needed()
+            page.screenshot(path=str(OUTPUT / "state_point_browser_T_h.png"))
         finally:
             browser.close()

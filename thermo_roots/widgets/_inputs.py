@@ -15,12 +15,14 @@ import ipywidgets as w
 import numpy as np
 
 from .. import MODELS, Fluid, get_fluid, to_si
+from ..models import CubicModel
 from ..errors import ThermoRootsError
 from ..quantities import QUANTITIES
 from ..units import read_unit, registry, split_value
 
-#: The knowns the state panel offers as fields (v and rho each take either basis).
-FIELDS = ("T", "P", "v", "rho", "quality", "h", "s")
+#: The knowns the state panel offers as fields (v and rho each take either basis; so do the
+#: energies h, s and u: the unit chosen, "kJ/kg" or "kJ/mol", decides).
+FIELDS = ("T", "P", "v", "rho", "quality", "h", "s", "u")
 #: Unit choices per field: (label shown, unit text the units layer reads), from the table of
 #: quantities (``QUANTITIES[name].input_units``, which a field of any other quantity uses).
 UNITS = {name: QUANTITIES[name].input_units for name in FIELDS}
@@ -348,8 +350,12 @@ def to_si_molar_mass(grams_per_mol: float) -> float:
 
 
 def model_label(short: str) -> str:
+    """The model's name and short name for a menu: "Peng-Robinson (PR)", "ideal gas (IG)".
+
+    A cubic's name is its family's (a class attribute); the ideal gas names itself on the class.
+    """
     cls = MODELS[short]
-    name = cls.family.name if hasattr(cls, "family") else "ideal gas"
+    name = cls.family.name if issubclass(cls, CubicModel) else cls.name
     return f"{name} ({short})"
 
 
@@ -482,11 +488,16 @@ class KnownPair:
         return {q: self.fields[q].to_si(molar_mass=molar_mass, atmosphere=atmosphere) for q in self.pair.value}
 
     def blame(self, text: str) -> FieldError:
-        """Show a solve error beside the field it is about (or beside the pair)."""
+        """Show a solve error beside the field it is about (or beside the pair): the known the
+        message starts with ("v = ... is at or below the co-volume"), else the first of the
+        pair it names as "h = ..." ("no pressure gives h = ... at T = ...")."""
         first = text.split(" ", 1)[0].rstrip(",")
         volume = first in ("v", "rho", "rho_mass")
         for q in self.pair.value:
             if q == first or (volume and q in ("v", "rho")):
                 return self.fields[q].fail(text)
+        for named in re.finditer(r"\b(\w+) = ", text):
+            if named.group(1) in self.pair.value:
+                return self.fields[named.group(1)].fail(text)
         self.message.value = message_html(text)
         return FieldError(text)

@@ -89,8 +89,18 @@ def scroll_box(content: str) -> str:
 
 
 def fluid_label(fluid) -> str:
-    """A fluid's name as engineers write it (``display_name`` where the fluid has one)."""
-    return str(getattr(fluid, "display_name", None) or fluid.name)
+    """A fluid's name as engineers write it: a library fluid's ``name`` is its everyday name
+    ("carbon dioxide"), a user fluid's the name it was given."""
+    return str(fluid.name)
+
+
+def warnings_html(texts) -> str:
+    """A result's warnings (plain sentences) as a list under a heading; empty for none."""
+    if not texts:
+        return ""
+    items = "".join(f"<li>{html.escape(text)}</li>" for text in texts)
+    return (f"<div class='tr-warnings' style='color:#8a1c1c;max-width:60em'><b>Warnings</b>"
+            f"<ul style='margin:2px 0 4px 0'>{items}</ul></div>")
 
 
 def side_by_side(*blocks: str) -> str:
@@ -104,15 +114,26 @@ def _item(x):
 
 
 def convergence_text(state) -> str:
-    """One line on how the state was found: closed form, or the root finder's record."""
+    """One line on how the state was found: closed form, or the root finder's record and what
+    it solved for (the saturation, or the state with the pair's two knowns)."""
     result = state.convergence
-    knowns = set(state.knowns)
+    names = [k.removesuffix("_mass") for k in state.knowns]          # as given: "rho", "h"
+    knowns = {"v" if n == "rho" else n for n in names}                  # a density is a volume known
+    energy = bool(knowns & {"h", "s", "u"})
     if result is None:
         if knowns == {"T", "P"}:
             return ("Closed form: the cubic in Z solved directly at this temperature and pressure "
                     "(no iteration).")
-        return "Closed form: the pressure follows from the equation of state at this temperature and volume."
-    what = "saturation" if "quality" in knowns or state.phase == "two-phase" else "temperature at this P and v"
+        if knowns == {"T", "v"}:
+            return "Closed form: the pressure follows from the equation of state at this temperature and volume."
+        lever = " The quality follows from the lever rule." if state.phase == "two-phase" else ""
+        return f"Solved from {' and '.join(names)}; the solver kept no iteration record for this state.{lever}"
+    if "quality" in knowns or (state.phase == "two-phase" and not energy):
+        what = "saturation"
+    elif knowns == {"P", "v"}:
+        what = "temperature at this P and v"
+    else:
+        what = f"the state with this {' and '.join(names)}"
     return (f"Iterative ({what}): {result.method}, {_count(_item(result.iterations), 'iteration')}, "
             f"{_count(_item(result.evaluations), 'evaluation')}, {_item(result.status)}.")
 

@@ -13,7 +13,8 @@ from ..errors import ThermoRootsError
 from ..units import check_atmosphere, registry, split_value
 from ._inputs import (UNITS, FieldError, FluidField, KnownPair, ModelField, QuantityField, _label, _plain_number,
                       message_html)
-from ._render import FigureImage, block, caution_html, error_html, fluid_label, fmt, scroll_box, side_by_side, table
+from ._render import (FigureImage, block, caution_html, error_html, fluid_label, fmt, scroll_box, side_by_side, table,
+                      warnings_html)
 from .state_panel import PAIRS
 
 #: The kinds of step a person can choose, as (label, key).
@@ -24,9 +25,11 @@ STEP_KINDS = (
     ("closed vessel heated or cooled (constant volume)", "vessel"),
 )
 _KIND_LABELS = {key: label for label, key in STEP_KINDS}
-#: The inlet fields' starting text: saturated vapor at 2 bar (a compressor's suction).
+#: The inlet fields' starting text: saturated vapor at 2 bar (a compressor's suction); for
+#: propane with Peng-Robinson, u with the density is a wet fill near -44 °C and 0.95 bar (about
+#: refrigerated storage at atmospheric pressure), u with the volume one near -47 °C.
 _DEFAULTS = {"T": "20 degC", "P": "2 bar", "v": "0.5 L/mol", "rho": "600 kg/m^3", "quality": "1",
-             "h": "550 kJ/kg", "s": "2.4 kJ/(kg K)"}
+             "h": "550 kJ/kg", "s": "2.4 kJ/(kg K)", "u": "100 kJ/kg"}
 #: Units offered for the vessel's fill: (label, pint spelling).
 MASS_UNITS = (("kg", "kg"), ("g", "g"), ("lb", "lb"))
 VOLUME_UNITS = (("L", "L"), ("m³", "m^3"), ("US gal", "gallon"))
@@ -114,7 +117,8 @@ class ProcessPanel(w.VBox):
     tag : str
         Equipment tag shown in the result's heading.
     **knowns
-        The inlet: two of T, P, v, rho, rho_mass, quality, h, s (as in :class:`StatePanel`).
+        The inlet: a pair the state panel offers, e.g. ``P="2 bar", quality=1`` (as in
+        :class:`StatePanel`).
         Default: saturated vapor at 2 bar.
 
     Attributes
@@ -373,9 +377,7 @@ class ProcessPanel(w.VBox):
             of_states = set(step.inlet.warnings) | set(step.outlet.warnings)
             ordered = ([t for t in step.warnings if t not in of_states]
                        + [t for t in step.warnings if t in of_states])
-            items = "".join(f"<li>{html.escape(text)}</li>" for text in ordered)
-            notes = (f"<div class='tr-warnings' style='color:#8a1c1c;max-width:60em'><b>Warnings</b>"
-                     f"<ul style='margin:2px 0 4px 0'>{items}</ul></div>")
+            notes = warnings_html(ordered)
         return (head + vessel + scroll_box(side_by_side(states, energy)) + legend + missing + notes
                 + caution_html())
 

@@ -11,7 +11,7 @@ from ..errors import ThermoRootsError
 from ..units import check_atmosphere
 from ._inputs import UNITS, FluidField, KnownPair, ModelField, QuantityField
 from ._render import (block, caution_html, convergence_text, csv_link, error_html, fluid_label, fmt, in_unit,
-                      label_rows, scroll_box, side_by_side, table)
+                      label_rows, scroll_box, side_by_side, table, warnings_html)
 
 #: The pairs of knowns a person can choose, as (label, (first, second)).
 PAIRS = (
@@ -24,9 +24,18 @@ PAIRS = (
     ("pressure and vapor quality", ("P", "quality")),
     ("pressure and enthalpy", ("P", "h")),
     ("pressure and entropy", ("P", "s")),
+    ("temperature and enthalpy", ("T", "h")),
+    ("temperature and entropy", ("T", "s")),
+    ("enthalpy and entropy", ("h", "s")),
+    ("internal energy and volume", ("u", "v")),
+    ("internal energy and density", ("u", "rho")),
 )
+#: Each field's starting text. Every pair of them is a state of propane with Peng-Robinson (the
+#: panel's default) on its default reference state: (P, h) and (P, s) a vapor just above
+#: saturation at 8 bar, (T, h) a vapor at 5.4 bar (a second, liquid one at about 3200 bar has the
+#: same h), (u, v) a wet vessel at about 19 °C, (u, rho) a liquid at about 41 °C and 52 bar.
 _DEFAULTS = {"T": "20 degC", "P": "8 bar", "v": "0.5 L/mol", "rho": "500 kg/m^3", "quality": "0.5",
-             "h": "600 kJ/kg", "s": "2.4 kJ/(kg K)"}
+             "h": "610 kJ/kg", "s": "2.4 kJ/(kg K)", "u": "300 kJ/kg"}
 #: Significant digits shown per column of the collected table (the DataFrame keeps them all).
 _DIGITS = {"rho deviation [%]": 3}
 #: Columns of the collected table, in order.
@@ -52,8 +61,10 @@ class StatePanel(w.VBox):
     atmosphere : str or float
         Atmospheric pressure that gauge pressures (barg, psig, kPag) refer to [Pa or text].
     **knowns
-        Two of T, P, v, rho, rho_mass, quality, as text with units ("20 degC", "7 barg",
-        "0.5 L/mol", "400 kg/m^3") or SI numbers. They choose the pair shown.
+        Two knowns of a pair in :data:`PAIRS` (T, P, v, rho, rho_mass, quality, h, s, u), as text
+        with units ("20 degC", "7 barg", "0.5 L/mol", "400 kg/m^3", "610 kJ/kg", "25 kJ/mol",
+        "2.4 kJ/(kg K)") or SI numbers (an energy in SI is molar: J/mol, J/(mol K)). They
+        choose the pair shown; the unit of an energy, per kilogram or per mole, decides its basis.
 
     Attributes
     ----------
@@ -192,6 +203,7 @@ class StatePanel(w.VBox):
         if len(roots) == 1:
             root_table += "<div style='font-size:0.85em;color:#555'>One real root: no choice to make.</div>"
         return (head + side_by_side(state_table, root_table) + _check_table(check)
+                + warnings_html(state.warnings)
                 + f"<div style='color:#444;font-size:0.9em'>{html.escape(convergence_text(state))}</div>"
                 + caution_html())
 
