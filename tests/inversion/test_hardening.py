@@ -254,6 +254,8 @@ def test_an_end_of_the_dome_reads_as_saturated_liquid_or_vapor(propane_pr, quali
     assert phase_row.split()[-2:] == words.split()
     step = tr.compress(propane_pr, tr.solve(propane_pr, P="2 bar", quality=1.0), "15 bar", efficiency=0.75)
     assert "saturated vapor" in str(step)
+    u_row = next(line for line in str(state).splitlines() if "internal energy u" in line)
+    assert u_row.split()[-2] == f"{state.u_mass / 1e3:.6g}"   # a vessel's heat changes u: it is shown
     inside = next(line for line in str(tr.solve(propane_pr, P="2 bar", quality=0.5)).splitlines()
                   if line.strip().startswith("Phase"))
     assert inside.split()[-1] == "two-phase"

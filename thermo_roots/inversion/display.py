@@ -67,7 +67,8 @@ def _caloric_rows(state) -> list[tuple[str, str]]:
     if state.model.fluid.ideal_gas is None:
         return [("Enthalpy, entropy", "unknown: the fluid has no ideal-gas heat capacity (give Fluid(..., cp0=...))")]
     rows = [("Specific enthalpy h", f"{_fmt(state.h_mass, 1e-3)} kJ/kg"),
-            ("Specific entropy s", f"{_fmt(state.s_mass, 1e-3)} kJ/(kg K)")]
+            ("Specific entropy s", f"{_fmt(state.s_mass, 1e-3)} kJ/(kg K)"),
+            ("Specific internal energy u", f"{_fmt(state.u_mass, 1e-3)} kJ/kg")]   # what a vessel's heat changes
     if state.phase != "two-phase":
         rows += [("Heat capacities cp, cv", f"{_fmt(state.cp_mass, 1e-3, 5)}, {_fmt(state.cv_mass, 1e-3, 5)} kJ/(kg K)"),
                  ("Speed of sound", f"{_fmt(state.w, digits=5)} m/s"),
