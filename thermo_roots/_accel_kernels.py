@@ -115,6 +115,12 @@ caloric_loop = _make_caloric_loop(_fingerprint(ideal_gas, models, properties))
 _SIXTH = 1.0 / 6.0
 
 
+# --------------------------------------------------------------------------- root finding
+# The cubic's roots in Z (closed form, guarded polish, deflation, sorting, Z > B), the
+# corresponding-states start and the table roots' Newton refinement: numerics, not model
+# formulas, with the data branches a loop takes one state at a time. Their numpy twins
+# (inversion/cubic.py, inversion/saturation/fast.py and table.py) select with np.where;
+# tests/test_performance_paths.py and tests/test_kernels_shared.py hold the pairs together.
 
 @jit
 def polish(z, c2, c1, c0):
