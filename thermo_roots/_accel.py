@@ -18,10 +18,10 @@ The loops in :mod:`thermo_roots._accel_kernels` are those numpy paths: for (T, P
 closed-form root, two guarded Newton polishes, deflation, sorting network, roots v > b and
 Gibbs-energy choice among roots with dP/dv <= 0 of :mod:`thermo_roots.inversion.cubic`;
 for saturation, the bracketed Newton iteration in ln P of
-:mod:`thermo_roots.inversion.saturation` on the same cubic roots; both with the model
-formulas of :mod:`thermo_roots.models` (alpha, cubic coefficients, ln phi, dP/dv),
-written as one pass over the states with the same operations in the same order, so
-each pair agrees to rounding. ``tests/test_performance_paths.py`` and
+:mod:`thermo_roots.inversion.saturation` on the same cubic roots; one pass over the
+states. The model formulas in them (alpha, the cubic's coefficients in Z, ln phi, dP/dv,
+the fugacity gap and the roots' slopes in ln P) are not restated: they are the functions of
+``models.FORMULAS`` the numpy path calls, compiled, so each pair agrees to rounding. ``tests/test_performance_paths.py`` and
 ``tests/inversion/test_saturation_fast.py`` hold them to 1e-12; change one side and
 those tests say where the other must follow. Compiled code is cached on disk
 (``cache=True``), so only the first process on a machine pays for the compilation.
@@ -48,8 +48,8 @@ import numpy as np
 from . import ideal_gas, models
 from .models import R
 
-# The alpha codes (models.ALPHA_CONSTANT, ALPHA_REDLICH_KWONG, ALPHA_SOAVE = 0, 1, 2) are the
-# ones alpha_value in _accel_kernels dispatches on; CubicFamily.compiled_alpha names them.
+# The loops take a model as its models.CubicParameters (Model.formula_parameters(), None for
+# an alpha function the loops do not know); alpha_parts dispatches on its alpha_kind.
 
 
 _switched_off = []   # non-empty inside `disabled()`
@@ -70,37 +70,21 @@ def available() -> bool:
     return _compiled() is not None
 
 
-def _model_inputs(model):
-    """(alpha kind, parameter tuple) of the model for the compiled loops, or None.
-
-    None when the model's alpha function is not one of the built-in formulas (its family's
-    ``compiled_alpha`` is None).
-    """
-    known = model.family.compiled_alpha
-    if known is None:
-        return None
-    kind, slope_of = known
-    slope = 0.0 if slope_of is None else float(slope_of(model.fluid.omega))
-    params = tuple(float(x) for x in (model.fluid.Tc, model.fluid.Pc, model.a_c, model.b, model.c,
-                                      model.v_min, model.v_c, model.delta1, model.delta2, slope, R))
-    return kind, params
-
-
-_inputs_of = weakref.WeakKeyDictionary()   # model -> _model_inputs(model); models do not change
+_inputs_of = weakref.WeakKeyDictionary()   # model -> model.formula_parameters(); models do not change
 
 
 def _kernels_for(model):
-    """(compiled module, alpha kind, parameters), or None where the numpy path must serve."""
+    """(compiled module, the model's CubicParameters), or None where the numpy path must serve."""
     kernels = None if _switched_off else _compiled()
     if kernels is None:
         return None
     try:
-        inputs = _inputs_of[model]
+        cubic = _inputs_of[model]
     except (KeyError, TypeError):
-        inputs = _model_inputs(model)
+        cubic = model.formula_parameters()
         with contextlib.suppress(TypeError):   # a model that cannot be weakly referenced
-            _inputs_of[model] = inputs
-    return None if inputs is None else (kernels, *inputs)
+            _inputs_of[model] = cubic
+    return None if cubic is None else (kernels, cubic)
 
 
 def stable_roots_kernel(model):
@@ -112,14 +96,14 @@ def stable_roots_kernel(model):
     found = _kernels_for(model)
     if found is None:
         return None
-    kernels, kind, params = found
+    kernels, cubic = found
 
     def run(T, P):
         n = T.size
         roots, v = np.empty((n, 3)), np.empty(n)
         stable, phase = np.empty(n, np.int8), np.empty(n, np.int8)
-        kernels.kernel(np.ascontiguousarray(T, dtype=float), np.ascontiguousarray(P, dtype=float),
-                       kind, params, roots, stable, v, phase)
+        kernels.stable_roots_loop(np.ascontiguousarray(T, dtype=float), np.ascontiguousarray(P, dtype=float),
+                                  cubic, roots, stable, v, phase)
         return roots, stable, v, phase
 
     return run
@@ -144,15 +128,15 @@ def saturation_kernel(model):
     found = _kernels_for(model)
     if found is None:
         return None
-    kernels, kind, params = found
-    loop = kernels.saturation_kernel
+    kernels, cubic = found
+    loop = kernels.saturation_loop
 
     def run(T, start, table, volumes, settings):
         n = T.size
         real = np.empty((4, n))
         counts = np.empty((2, n), np.int64)
         flags = np.empty((2, n), np.bool_)
-        summary = loop(T, kind, params, start, table, volumes, settings, real, counts, flags)
+        summary = loop(T, cubic, start, table, volumes, settings, real, counts, flags)
         return real[0], real[1], real[2], real[3], flags[0], counts[0], counts[1], flags[1], summary
 
     with contextlib.suppress(TypeError):   # a model that cannot be weakly referenced

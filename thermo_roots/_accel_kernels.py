@@ -14,6 +14,7 @@ import numba
 import numpy as np
 
 from . import ideal_gas, models, properties
+from .models import R
 
 jit = functools.partial(numba.njit, cache=True, nogil=True, error_model="numpy")
 
@@ -55,6 +56,11 @@ ideal_molar = _ideal["ideal_molar"]
 planck_einstein_term = _ideal["_planck_einstein_term"]
 alpha_parts = _cubic["alpha_parts"]
 cubic_residual = _cubic["cubic_residual"]
+cubic_ln_phi = _cubic["cubic_ln_phi"]
+cubic_dP_dv_at = _cubic["cubic_dP_dv_at"]
+cubic_z_coefficients = _cubic["cubic_z_coefficients"]
+cubic_z_root_rate = _cubic["cubic_z_root_rate"]
+cubic_fugacity_gap_z = _cubic["cubic_fugacity_gap_z"]
 gas_constant_shift = _caloric["gas_constant_shift"]
 caloric_from_helmholtz = _caloric["caloric_from_helmholtz"]
 
@@ -109,6 +115,12 @@ caloric_loop = _make_caloric_loop(_fingerprint(ideal_gas, models, properties))
 _SIXTH = 1.0 / 6.0
 
 
+# --------------------------------------------------------------------------- root finding
+# The cubic's roots in Z (closed form, guarded polish, deflation, sorting, Z > B), the
+# corresponding-states start and the table roots' Newton refinement: numerics, not model
+# formulas, with the data branches a loop takes one state at a time. Their numpy twins
+# (inversion/cubic.py, inversion/saturation/fast.py and table.py) select with np.where;
+# tests/test_performance_paths.py and tests/test_kernels_shared.py hold the pairs together.
 
 @jit
 def polish(z, c2, c1, c0):
@@ -137,51 +149,6 @@ def one_real_root(c2, c1, c0):
         cos_arg = -1.0 if cos_arg < -1.0 else (1.0 if cos_arg > 1.0 else cos_arg)
         root = m * np.cos(np.arccos(cos_arg) / 3.0)
     return root - shift
-
-
-@jit
-def ln_phi_and_slope(T, v, P, a, prm):
-    Tc, Pc, a_c, b, c, v_min, v_c, d1, d2, slope, R = prm
-    RT = R * T
-    w = v + c
-    if d1 == d2:
-        integral = 1.0 / (w + d1 * b)
-    else:
-        integral = np.log((w + d1 * b) / (w + d2 * b)) / ((d1 - d2) * b)
-    Z = P * v / RT
-    helmholtz = -R * T * np.log1p(-v_min / v) - a * integral
-    ln_phi = helmholtz / RT + Z - 1.0 - np.log(Z)
-    D = (w + d1 * b) * (w + d2 * b)
-    gap = v - v_min
-    dP_dv = -R * T / (gap * gap) + a * (2.0 * (v + c) + (d1 + d2) * b) / (D * D)
-    return ln_phi, dP_dv
-
-
-@jit
-def alpha_value(T, kind, Tc, slope):
-    """alpha(T) of the built-in families: 0 constant, 1 Redlich-Kwong, 2 Soave form."""
-    if kind == 0:
-        return 1.0
-    if kind == 1:
-        return (T / Tc) ** -0.5
-    root = 1.0 + slope * (1.0 - np.sqrt(T / Tc))
-    return root * root
-
-
-@jit
-def coefficients(a, b, T, P, R, u, w):
-    """c2, c1, c0 of the cubic in Z and B = bP/(RT), as CubicModel.cubic_coefficients."""
-    RT = R * T
-    return coefficients_of(a * P / (RT * RT), b * P / RT, u, w)
-
-
-@jit
-def coefficients_of(A, B, u, w):
-    """c2, c1, c0 of the cubic in Z, and B, from A = aP/(RT)^2 and B = bP/(RT)."""
-    c2 = (u - 1.0) * B - 1.0
-    c1 = A + w * B * B - u * B * (1.0 + B)
-    c0 = -B * (A + w * B * (1.0 + B))
-    return c2, c1, c0, B
 
 
 @jit
@@ -224,34 +191,45 @@ def z_roots(c2, c1, c0, B):
     return nan, nan, nan
 
 
-@jit
-def kernel(T_in, P_in, kind, prm, roots, stable, v_out, phase):
-    Tc, Pc, a_c, b, c, v_min, v_c, d1, d2, slope, R = prm
-    u, w = d1 + d2, d1 * d2
-    for i in range(T_in.size):
-        T, P = T_in[i], P_in[i]
-        a = a_c * alpha_value(T, kind, Tc, slope)
-        c2, c1, c0, B = coefficients(a, b, T, P, R, u, w)
-        r0, r1, r2 = z_roots(c2, c1, c0, B)
-        scale = R * T / P
-        r0, r1, r2 = r0 * scale - c, r1 * scale - c, r2 * scale - c
-        roots[i, 0], roots[i, 1], roots[i, 2] = r0, r1, r2
-        pick, v = 0, r0
-        if np.isfinite(r1):   # several roots: the usable one of lowest ln phi
-            best = np.inf
-            for k in range(3):
-                vk = r0 if k == 0 else (r1 if k == 1 else r2)
-                if not np.isfinite(vk):
-                    continue
-                lnphi, dP_dv = ln_phi_and_slope(T, vk, P, a, prm)
-                if not (dP_dv > 0.0) and np.isfinite(lnphi) and lnphi < best:
-                    best, pick, v = lnphi, k, vk
-        stable[i] = pick
-        v_out[i] = v
-        if T >= Tc:
-            phase[i] = 2 if P >= Pc else 1
-        else:
-            phase[i] = 0 if v < v_c else 1
+def _make_stable_roots_loop(fingerprint):
+    def stable_roots_loop(T_in, P_in, cubic, roots, stable, v_out, phase):
+        """Roots v > b, the stable one and its phase code of each (T, P), as
+        inversion.cubic.stable_roots_numpy: alpha, the cubic in Z, ln phi and dP/dv are the
+        shared formulas of thermo_roots.models (alpha_parts, cubic_z_coefficients,
+        cubic_ln_phi, cubic_dP_dv_at), compiled; ``cubic`` is a models.CubicParameters."""
+        if fingerprint < 0:   # never: keeps the fingerprint in the closure (the cache key)
+            return
+        kind, Tc, k, a_c, b, c = cubic.alpha_kind, cubic.Tc, cubic.slope, cubic.a_c, cubic.b, cubic.c
+        v_min, d1, d2, Pc, v_c = cubic.v_min, cubic.delta1, cubic.delta2, cubic.Pc, cubic.v_c
+        u, w = d1 + d2, d1 * d2
+        for i in range(T_in.size):
+            T, P = T_in[i], P_in[i]
+            a = a_c * alpha_parts(kind, T, Tc, k)[0]
+            RT = R * T
+            c2, c1, c0, B = cubic_z_coefficients(a * P / (RT * RT), b * P / RT, u, w)
+            r0, r1, r2 = z_roots(c2, c1, c0, B)
+            scale = RT / P
+            r0, r1, r2 = r0 * scale - c, r1 * scale - c, r2 * scale - c
+            roots[i, 0], roots[i, 1], roots[i, 2] = r0, r1, r2
+            pick, v = 0, r0
+            if np.isfinite(r1):   # several roots: the usable one of lowest ln phi
+                best = np.inf
+                for j in range(3):
+                    vk = r0 if j == 0 else (r1 if j == 1 else r2)
+                    if not np.isfinite(vk):
+                        continue
+                    lnphi = cubic_ln_phi(T, vk, P, R, a, b, c, v_min, d1, d2)
+                    dP_dv = cubic_dP_dv_at(T, vk, R, a, b, c, v_min, d1, d2)
+                    if not (dP_dv > 0.0) and np.isfinite(lnphi) and lnphi < best:
+                        best, pick, v = lnphi, j, vk
+            stable[i] = pick
+            v_out[i] = v
+            if T >= Tc:
+                phase[i] = 2 if P >= Pc else 1
+            else:
+                phase[i] = 0 if v < v_c else 1
+
+    return jit(stable_roots_loop)
 
 
 @jit
@@ -298,112 +276,106 @@ def table_roots(zl, zv, c2, c1, c0, B, steps, tol):
     return zl, zv, dl > 0.0 and dv > 0.0 and zl > B and zm > zl and zv > zm
 
 
-@jit
-def root_rate(z, c2, c1, A, B, u, w):
-    """dZ/dln P [-] of a root z of the cubic at fixed T (A and B proportional to P), as
-    saturation._root_rate."""
-    df = (3.0 * z + 2.0 * c2) * z + c1
-    dfl = ((u - 1.0) * B * z + (A + 2.0 * w * B * B - u * B * (1.0 + 2.0 * B))) * z - B * (2.0 * A + w * B * (2.0 + 3.0 * B))
-    return -dfl / df
+def _make_saturation_loop(fingerprint):
+    def saturation_loop(T_in, cubic, start, table, volumes, settings, real_out, count_out, flag_out):
+        """Bracketed Newton in ln P on ln phi_L - ln phi_V, as saturation._newton_saturation_numpy.
 
-
-@jit
-def fugacity_gap_z(zl, zv, A_over_B, B, d1, d2):
-    """ln phi_L - ln phi_V from the cubic's Z roots, as saturation.fugacity_gap_z."""
-    if d1 == d2:
-        attraction = B / (zl + d1 * B) - B / (zv + d1 * B)
-    else:
-        attraction = np.log((zl + d1 * B) * (zv + d2 * B) / ((zl + d2 * B) * (zv + d1 * B))) / (d1 - d2)
-    return (zl - zv) - np.log((zl - B) / (zv - B)) - A_over_B * attraction
-
-
-@jit
-def saturation_kernel(T_in, kind, prm, start, table, volumes, settings, real_out, count_out, flag_out):
-    """Bracketed Newton in ln P on ln phi_L - ln phi_V, as saturation._newton_saturation_numpy.
-
-    Writes ln P, P, v_L, v_V to the rows of real_out, iterations and evaluations to those
-    of count_out, finished and table-started to those of flag_out (few arguments: each
-    one costs time at every call). Temperatures from fast_tr_max Tc on are left unsolved.
-    Returns T's least and greatest value (both NaN if one T is NaN) and the number of
-    temperatures not finished, so that the caller needs no other pass over the arrays."""
-    Tc, Pc, a_c, b, c, v_min, v_c, d1, d2, slope, R = prm
-    x_first, inv_h, shift = start
-    ln_lowest, accept, narrow, maxiter, eps4, root_steps, root_tol, fast_tr_max = settings
-    steps = int(root_steps)
-    u, w = d1 + d2, d1 * d2
-    lnPc = np.log(Pc)
-    t_min, t_max, nan_seen, unfinished = np.inf, -np.inf, False, 0
-    for i in range(T_in.size):
-        T = T_in[i]
-        t_min, t_max, nan_seen = min(t_min, T), max(t_max, T), nan_seen or T != T
-        alpha = alpha_value(T, kind, Tc, slope)
-        a = a_c * alpha
-        RT = R * T
-        A_over_B = a / (b * RT)
-        A_per_P, B_per_P = a / (RT * RT), b / RT   # A and B are proportional to P
-        lo, hi = lnPc + ln_lowest, lnPc
-        ln_pr, rl, zv_start = start_values(T / Tc, alpha, x_first, inv_h, shift, table, volumes)
-        x = lnPc + ln_pr if T < fast_tr_max * Tc else np.nan
-        ok, iters, evals, started = False, 0, 0, False
-        P, zl, zv, step, rate_l, rate_v = np.nan, np.nan, np.nan, 0.0, 0.0, 0.0
-        from_table = x > lo and x < hi   # the table's volumes belong to its own start only
-        if not from_table and np.isfinite(x):   # NaN (outside the table) stays NaN
-            x = lo + 0.5 * (hi - lo)
-        if np.isfinite(x):
-            for _ in range(int(maxiter)):
-                P = np.exp(x)
-                c2, c1, c0, B = coefficients_of(A_per_P * P, B_per_P * P, u, w)
-                if from_table:
-                    from_table = False
-                    r0, r2, started = table_roots(B * rl, zv_start, c2, c1, c0, B, steps, root_tol)
-                    if not started:
-                        r0, r1, r2 = z_roots(c2, c1, c0, B)
-                else:
-                    r0, r1, r2 = z_roots(c2, c1, c0, B)
-                evals += 1
-                scale = RT / P
-                v0 = r0 * scale - c
-                if np.isfinite(r2):
-                    if r2 * scale - c < narrow * v0:
-                        break
-                    gap = fugacity_gap_z(r0, r2, A_over_B, B, d1, d2)
-                    step = -gap / (r0 - r2)
-                    if gap > 0.0:
-                        lo = x
-                    elif gap < 0.0:
-                        hi = x
-                    iters += 1
-                    if abs(step) <= accept:
-                        zl, zv, ok = r0, r2, True
-                        rate_l = root_rate(r0, c2, c1, A_per_P * P, B, u, w)
-                        rate_v = root_rate(r2, c2, c1, A_per_P * P, B, u, w)
-                        break
-                    xn = x + step
-                    if not (xn > lo and xn < hi):
-                        xn = lo + 0.5 * (hi - lo)
-                else:
-                    if v0 > v_c:
-                        lo = x
+        ``cubic`` is a models.CubicParameters; alpha, the cubic in Z, the fugacity gap and the
+        roots' slopes are the shared formulas of thermo_roots.models, compiled. Writes ln P, P,
+        v_L, v_V to the rows of real_out, iterations and evaluations to those of count_out,
+        finished and table-started to those of flag_out. Temperatures from fast_tr_max Tc on
+        are left unsolved. Returns T's least and greatest value (both NaN if one T is NaN) and
+        the number of temperatures not finished, so that the caller needs no other pass over
+        the arrays."""
+        if fingerprint < 0:   # never: keeps the fingerprint in the closure (the cache key)
+            return np.nan, np.nan, 0
+        kind, Tc, k, a_c, b, c = cubic.alpha_kind, cubic.Tc, cubic.slope, cubic.a_c, cubic.b, cubic.c
+        d1, d2, Pc, v_c = cubic.delta1, cubic.delta2, cubic.Pc, cubic.v_c
+        x_first, inv_h, shift = start
+        ln_lowest, accept, narrow, maxiter, eps4, root_steps, root_tol, fast_tr_max = settings
+        steps = int(root_steps)
+        u, w = d1 + d2, d1 * d2
+        lnPc = np.log(Pc)
+        t_min, t_max, nan_seen, unfinished = np.inf, -np.inf, False, 0
+        for i in range(T_in.size):
+            T = T_in[i]
+            t_min, t_max, nan_seen = min(t_min, T), max(t_max, T), nan_seen or T != T
+            alpha = alpha_parts(kind, T, Tc, k)[0]
+            a = a_c * alpha
+            RT = R * T
+            A_over_B = a / (b * RT)
+            A_per_P, B_per_P = a / (RT * RT), b / RT   # A and B are proportional to P
+            lo, hi = lnPc + ln_lowest, lnPc
+            ln_pr, rl, zv_start = start_values(T / Tc, alpha, x_first, inv_h, shift, table, volumes)
+            x = lnPc + ln_pr if T < fast_tr_max * Tc else np.nan
+            ok, iters, evals, started = False, 0, 0, False
+            P, zl, zv, step, rate_l, rate_v = np.nan, np.nan, np.nan, 0.0, 0.0, 0.0
+            from_table = x > lo and x < hi   # the table's volumes belong to its own start only
+            if not from_table and np.isfinite(x):   # NaN (outside the table) stays NaN
+                x = lo + 0.5 * (hi - lo)
+            if np.isfinite(x):
+                for _ in range(int(maxiter)):
+                    P = np.exp(x)
+                    c2, c1, c0, B = cubic_z_coefficients(A_per_P * P, B_per_P * P, u, w)
+                    if from_table:
+                        from_table = False
+                        r0, r2, started = table_roots(B * rl, zv_start, c2, c1, c0, B, steps, root_tol)
+                        if not started:
+                            r0, r1, r2 = z_roots(c2, c1, c0, B)
                     else:
-                        hi = x
-                    iters += 1
-                    xn = lo + 0.5 * (hi - lo)
-                if hi - lo <= eps4 * max(1.0, abs(x)):
-                    break
-                x = xn
-        vl, vv = np.nan, np.nan
-        if ok:   # the last step taken, and the roots carried to its pressure along their slopes
-            x = x + step
-            P = P * (1.0 + step * (1.0 + 0.5 * step))
-            zl, zv = zl + rate_l * step, zv + rate_v * step
-            if zl > B_per_P * P and zv > zl:
-                scale = RT / P
-                vl, vv = zl * scale - c, zv * scale - c
-            else:
-                ok = False
-        real_out[0, i], real_out[1, i], real_out[2, i], real_out[3, i] = x, P, vl, vv
-        count_out[0, i], count_out[1, i], flag_out[0, i], flag_out[1, i] = iters, evals, ok, started
-        unfinished += not ok
-    if nan_seen:
-        t_min, t_max = np.nan, np.nan
-    return t_min, t_max, unfinished
+                        r0, r1, r2 = z_roots(c2, c1, c0, B)
+                    evals += 1
+                    scale = RT / P
+                    v0 = r0 * scale - c
+                    if np.isfinite(r2):
+                        if r2 * scale - c < narrow * v0:
+                            break
+                        gap = cubic_fugacity_gap_z(r0, r2, A_over_B, B, d1, d2)
+                        step = -gap / (r0 - r2)
+                        if gap > 0.0:
+                            lo = x
+                        elif gap < 0.0:
+                            hi = x
+                        iters += 1
+                        if abs(step) <= accept:
+                            zl, zv, ok = r0, r2, True
+                            rate_l = cubic_z_root_rate(r0, c2, c1, A_per_P * P, B, u, w)
+                            rate_v = cubic_z_root_rate(r2, c2, c1, A_per_P * P, B, u, w)
+                            break
+                        xn = x + step
+                        if not (xn > lo and xn < hi):
+                            xn = lo + 0.5 * (hi - lo)
+                    else:
+                        if v0 > v_c:
+                            lo = x
+                        else:
+                            hi = x
+                        iters += 1
+                        xn = lo + 0.5 * (hi - lo)
+                    if hi - lo <= eps4 * max(1.0, abs(x)):
+                        break
+                    x = xn
+            vl, vv = np.nan, np.nan
+            if ok:   # the last step taken, and the roots carried to its pressure along their slopes
+                x = x + step
+                P = P * (1.0 + step * (1.0 + 0.5 * step))
+                zl, zv = zl + rate_l * step, zv + rate_v * step
+                if zl > B_per_P * P and zv > zl:
+                    scale = RT / P
+                    vl, vv = zl * scale - c, zv * scale - c
+                else:
+                    ok = False
+            real_out[0, i], real_out[1, i], real_out[2, i], real_out[3, i] = x, P, vl, vv
+            count_out[0, i], count_out[1, i], flag_out[0, i], flag_out[1, i] = iters, evals, ok, started
+            unfinished += not ok
+        if nan_seen:
+            t_min, t_max = np.nan, np.nan
+        return t_min, t_max, unfinished
+
+    return jit(saturation_loop)
+
+
+# The (T, P) and saturation loops inline the formulas of models alone; each holds their
+# fingerprint in its closure, as the caloric loop does.
+stable_roots_loop = _make_stable_roots_loop(_fingerprint(models))
+saturation_loop = _make_saturation_loop(_fingerprint(models))

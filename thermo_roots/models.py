@@ -283,6 +283,71 @@ def cubic_residual(T, v, R, a, da, d2a, b, c, v_min, d1, d2, repulsion, log_rati
             R * inv_v - cubic_dP_dT(R, da, gap, D))
 
 
+def cubic_ln_phi(T, v, P, R, a, b, c, v_min, d1, d2):
+    """ln phi = a_res/(R T) + Z - 1 - ln Z [-] at (T, v) with the pressure P [Pa] given.
+
+    a [Pa m^6/mol^2] is a(T); b, c, v_min [m^3/mol]; d1, d2 [-]. Z = P v/(R T) is formed
+    from the given P, not from P(T, v): on a dense liquid at very low pressure P(T, v) is a
+    small difference of large terms and would spoil ln Z (Michelsen & Mollerup 2007, ch. 4).
+    CubicModel.ln_phi and the compiled (T, P) loop's choice of the stable root both call it.
+    """
+    e1 = v + c + d1 * b
+    e2 = v + c + d2 * b
+    RT = R * T
+    integral = cubic_attraction_integral(e1, d1, d2, b, cubic_log_ratio(e1, e2, d1, d2))
+    Z = P * v / RT
+    return cubic_residual_helmholtz(RT, a, cubic_repulsion(v, v_min), integral) / RT + Z - 1.0 - np.log(Z)
+
+
+def cubic_dP_dv_at(T, v, R, a, b, c, v_min, d1, d2):
+    """(dP/dv)_T [Pa mol/m^3] at (T, v): :func:`cubic_dP_dv` with its factors formed here."""
+    e1 = v + c + d1 * b
+    e2 = v + c + d2 * b
+    return cubic_dP_dv(R * T, a, v - v_min, e1, e2, e1 * e2)
+
+
+# The cubic in Z at given (T, P): A = a P/(R T)^2, B = b P/(R T), u = d1 + d2, w = d1 d2 (the
+# untranslated cubic's Z = P v_cubic/(R T)). Its roots come from inversion/cubic.py; these are
+# the polynomial's own formulas, shared by the numpy path and the compiled loops.
+
+def cubic_z_coefficients(A, B, u, w):
+    """(c2, c1, c0, B) of Z^3 + c2 Z^2 + c1 Z + c0 = 0 (Michelsen & Mollerup 2007, ch. 3)."""
+    c2 = (u - 1.0) * B - 1.0
+    c1 = A + w * B * B - u * B * (1.0 + B)
+    c0 = -B * (A + w * B * (1.0 + B))
+    return c2, c1, c0, B
+
+
+def cubic_z_root_rate(z, c2, c1, A, B, u, w):
+    """dZ/d ln P [-] of a root z of the cubic in Z at fixed T, by implicit differentiation.
+
+    A and B are proportional to P, so the coefficients' derivatives in ln P are polynomials
+    in A and B: dc2 = (u - 1) B, dc1 = A + 2 w B^2 - u B (1 + 2 B),
+    dc0 = -B (2 A + w B (2 + 3 B)); dZ = -(dc2 Z^2 + dc1 Z + dc0) / (3 Z^2 + 2 c2 Z + c1).
+    """
+    df = (3.0 * z + 2.0 * c2) * z + c1
+    dfl = ((u - 1.0) * B * z + (A + 2.0 * w * B * B - u * B * (1.0 + 2.0 * B))) * z - B * (2.0 * A + w * B * (2.0 + 3.0 * B))
+    return -dfl / df
+
+
+def cubic_fugacity_gap_z(zl, zv, A_over_B, B, d1, d2):
+    """ln phi_L - ln phi_V [-] of the untranslated cubic from its roots Z_L, Z_V at one (T, P).
+
+    From ln phi = Z - 1 - ln(Z - B) - (A/B) J(Z), J = ln((Z + d1 B)/(Z + d2 B))/(d1 - d2)
+    (J = B/(Z + d B) when d1 = d2 = d): :func:`cubic_ln_phi` written in Z with the
+    logarithms of the two phases merged, so two logarithms give the difference instead of
+    six, and no P(T, v) is formed (it keeps its digits at the tiny liquid roots of very low
+    pressures). A volume translation shifts both ln phi by the same c P/(R T), so the
+    difference is the translated model's too (Peneloux, Rauzy & Freze 1982).
+    A_over_B = a/(b R T), B = b P/(R T) [-].
+    """
+    if d1 == d2:
+        attraction = B / (zl + d1 * B) - B / (zv + d1 * B)
+    else:
+        attraction = np.log((zl + d1 * B) * (zv + d2 * B) / ((zl + d2 * B) * (zv + d1 * B))) / (d1 - d2)
+    return (zl - zv) - np.log((zl - B) / (zv - B)) - A_over_B * attraction
+
+
 class CubicParameters(NamedTuple):
     """What the compiled loops need of a model (``Model.formula_parameters``); SI units."""
 
@@ -295,13 +360,16 @@ class CubicParameters(NamedTuple):
     v_min: float       #: b - c [m^3/mol]
     delta1: float
     delta2: float
+    Pc: float = 0.0    #: the fluid's critical pressure [Pa] (phase words of the (T, P) loop)
+    v_c: float = 0.0   #: the model's critical volume [m^3/mol] (liquid below it, vapor above)
 
 
 #: The formula functions of this module that thermo_roots._accel_kernels compiles.
 FORMULAS = ("redlich_kwong_alpha_parts", "soave_alpha_parts", "alpha_parts", "cubic_repulsion", "cubic_log_ratio",
             "cubic_attraction_integral",
             "cubic_pressure", "cubic_dP_dv", "cubic_dP_dT", "cubic_residual_helmholtz", "cubic_residual_entropy",
-            "cubic_residual")
+            "cubic_residual", "cubic_ln_phi", "cubic_dP_dv_at", "cubic_z_coefficients", "cubic_z_root_rate",
+            "cubic_fugacity_gap_z")
 
 
 # --------------------------------------------------------------------------- models
@@ -378,7 +446,8 @@ class IdealGas(Model):
 
     def formula_parameters(self):
         """The ideal gas as the cubic with a = b = c = 0, whose residual bundle is exactly zero."""
-        return CubicParameters(ALPHA_CONSTANT, float(self.fluid.Tc), 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0)
+        return CubicParameters(ALPHA_CONSTANT, float(self.fluid.Tc), 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0,
+                               float(self.fluid.Pc), self.v_c)
 
     def residual_bundle(self, T, v):
         """The residual Helmholtz energy and its derivatives: all zero for the ideal gas."""
@@ -467,7 +536,7 @@ class CubicModel(Model):
         kind, slope = known
         return CubicParameters(int(kind), float(self.fluid.Tc), 0.0 if slope is None else float(slope(self.fluid.omega)),
                                float(self.a_c), float(self.b), float(self.c), float(self.v_min),
-                               float(self.delta1), float(self.delta2))
+                               float(self.delta1), float(self.delta2), float(self.fluid.Pc), float(self.v_c))
 
     def _factors(self, v):
         """(e1, e2, D) = (v_cubic + d1 b, v_cubic + d2 b, their product) at the model volume v."""
@@ -496,8 +565,7 @@ class CubicModel(Model):
         """(dP/dv) at constant T [Pa mol/m^3]."""
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         a, _ = self.attraction(T)
-        e1, e2, D = self._factors(v)
-        return _scalar_or_array(cubic_dP_dv(R * T, a, v - self.v_min, e1, e2, D))
+        return _scalar_or_array(cubic_dP_dv_at(T, v, R, a, self.b, self.c, self.v_min, self.delta1, self.delta2))
 
     def dP_dT(self, T, v):
         """(dP/dT) at constant v [Pa/K]."""
@@ -553,8 +621,8 @@ class CubicModel(Model):
         """
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
         P = self.pressure(T, v) if P is None else np.asarray(P, dtype=float)
-        Z = P * v / (R * T)
-        return _scalar_or_array(self.residual_helmholtz(T, v) / (R * T) + Z - 1.0 - np.log(Z))
+        a, _ = self.attraction(T)
+        return _scalar_or_array(cubic_ln_phi(T, v, P, R, a, self.b, self.c, self.v_min, self.delta1, self.delta2))
 
     def residual_gibbs(self, T, v, P=None):
         """Residual Gibbs energy g_res = R T ln phi [J/mol] at T [K], v [m^3/mol] (P as in ln_phi)."""
@@ -568,13 +636,9 @@ class CubicModel(Model):
         """
         T, P = np.asarray(T, dtype=float), np.asarray(P, dtype=float)
         a, _ = self.attraction(T)
-        A = a * P / (R * T) ** 2
-        B = self.b * P / (R * T)
-        u, w = self.delta1 + self.delta2, self.delta1 * self.delta2
-        c2 = (u - 1.0) * B - 1.0
-        c1 = A + w * B * B - u * B * (1.0 + B)
-        c0 = -B * (A + w * B * (1.0 + B))
-        return c2, c1, c0, B
+        RT = R * T
+        return cubic_z_coefficients(a * P / (RT * RT), self.b * P / RT, self.delta1 + self.delta2,
+                                    self.delta1 * self.delta2)
 
 
 class VanDerWaals(CubicModel):
