@@ -405,6 +405,18 @@ def _second_pressure_warning(model, P_other, P, count, total):
 
 # --------------------------------------------------------------------------- (h, s)
 
+#: Up to this many (state, doubling) pairs, the (h, s) bracket's doublings are solved in one
+#: vectorized call (see _from_h_s); beyond it, one call per doubling on the open states.
+_DOUBLINGS_AT_ONCE = 256
+
+
+def _doublings_at_once(gap, T_cold, steps, s, h):
+    """gap at T_cold 2^k for k < steps at every state, shape (steps, n): one call."""
+    T = T_cold * 2.0 ** np.arange(steps, dtype=float)
+    n = s.size
+    return gap(np.repeat(T, n), np.tile(s, steps), np.tile(h, steps)).reshape(steps, n)
+
+
 def _from_h_s(model, flat, problems, branch=None):
     """(h, s) -> the state, by bracketing T along the isentrope.
 
@@ -443,11 +455,16 @@ def _from_h_s(model, flat, problems, branch=None):
     lo, hi = np.full(n, np.nan), np.full(n, T_cold)
     g_lo, g_hi = np.full(n, np.nan), np.full(n, np.nan)
     open_ = np.ones(n, bool)
-    for _ in range(int(np.ceil(np.log2(256.0 * Tc / T_cold))) + 1):
+    steps = int(np.ceil(np.log2(256.0 * Tc / T_cold))) + 1
+    # a few states: every doubling at once, in one vectorized (T, s) solve instead of one
+    # solve per doubling (each costs about the same for 1 state as for 50); the loop below
+    # then reads them off in the same order, so the bracket is the same
+    ahead = _doublings_at_once(gap, T_cold, steps, s, h) if n * steps <= _DOUBLINGS_AT_ONCE else None
+    for step in range(steps):
         k = np.flatnonzero(open_)
         if k.size == 0:
             break
-        g = gap(hi[k], s[k], h[k])
+        g = gap(hi[k], s[k], h[k]) if ahead is None else ahead[step, k]
         g_hi[k] = g
         done = (g >= 0.0) | (~np.isfinite(g) & np.isfinite(lo[k]))   # bracketed, or the isentrope ended
         short = g < 0.0
@@ -483,8 +500,16 @@ def _from_h_s(model, flat, problems, branch=None):
     convergence = None
     j = np.flatnonzero(bracketed & problems.ok)
     if j.size:
-        result = find_root(gap, bracket=(lo[j], hi[j]), args=(s[j], h[j]), xtol=0.0,
-                           rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
+        def gap_inside(T, sx, hx, T_lo, g_at_lo, T_hi, g_at_hi):   # the ends are known already
+            known = (T == T_lo) | (T == T_hi)
+            g = np.where(T == T_hi, g_at_hi, g_at_lo)
+            if not np.all(known):
+                new = ~known
+                g[new] = gap(T[new], sx[new], hx[new])
+            return g
+
+        result = find_root(gap_inside, bracket=(lo[j], hi[j]), args=(s[j], h[j], lo[j], g_lo[j], hi[j], g_hi[j]),
+                           xtol=0.0, rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
         convergence = (result, j)
         ok = np.asarray(result.converged)
         T[j[ok]] = np.asarray(result.root)[ok]
