@@ -164,3 +164,18 @@ def test_next_to_the_critical_point_the_window_gap_in_temperature_serves(propane
     sat = tr.saturation(m, P=np.array([0.995, 0.9999, 1 - 1e-7]) * propane.Pc)
     assert calls == [] and np.all(np.isfinite(sat.T))
     assert np.all(np.asarray(sat.convergence.converged))
+
+
+@pytest.mark.parametrize("cls", CUBICS)
+def test_the_nodes_around_a_pressure_bracket_its_saturation_temperature(cls, co2):
+    # the start line's nodes are the model's own saturation states, so the two around P hold
+    # T_sat(P) between them (checked against the proven path, Psat(T) inverted)
+    m = cls(co2)
+    line = fast._saturation_line(m)
+    assert line[0].size >= 3 and line[1][-1] == 1.0   # the critical point is the last node
+    P = np.concatenate([np.geomspace(1e-40, 0.99, 40), [0.995, 0.9999]]) * co2.Pc
+    lo, hi = fast._node_bracket(line, np.log(P))
+    y = co2.Tc / api._inverted_saturation_pressure(m, P)[0]
+    assert np.all((lo <= y) & (y <= hi))
+    inside = np.log(P) > line[0][0]   # below the coldest node the cold end is Tc/1000
+    assert np.all(hi[inside] / lo[inside] < 1.2) and np.all(hi[~inside] == 1e3)   # two nodes, not the whole range

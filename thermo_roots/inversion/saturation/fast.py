@@ -425,6 +425,25 @@ def _temperature_start(line, lnP):
         return np.where(lnP < nodes[-1], start, np.nan)
 
 
+def _node_bracket(line, lnP):
+    """(lo, hi) of y = Tc/T [-] from the two nodes of the saturation line around each ln P.
+
+    The nodes are saturation states of the model itself (to rounding), and ln Psat rises
+    with T, so the saturation temperature at P lies between its neighbours' temperatures;
+    each end is moved out by 1e-9 of itself. Below the coldest node the cold end is
+    Tc/1000 (:data:`_Y_COLDEST`); y never goes below 1 (Tc).
+    """
+    nodes, y = line
+    k = np.searchsorted(nodes, lnP)   # nodes[k - 1] < lnP <= nodes[k]
+    inside = (k > 0) & (k < nodes.size)
+    j = np.clip(k, 1, nodes.size - 1)
+    lo = np.where(inside, np.maximum(y[j] * (1.0 - 1e-9), 1.0), 1.0)
+    hi = np.where(inside, y[j - 1] * (1.0 + 1e-9), _Y_COLDEST)
+    hi = np.where(k == 0, _Y_COLDEST, hi)
+    lo = np.where(k == 0, y[0] * (1.0 - 1e-9), lo)
+    return lo, hi
+
+
 def _vaporization_enthalpy(zl, zv, A_over_B, B, T_dadT_over_a, delta1, delta2):
     """(h_V - h_L) / (R T) [-] of the untranslated cubic from its roots Z_L, Z_V at one (T, P).
 
@@ -452,8 +471,9 @@ def _newton_saturation_temperature(model, P):
     One cubic solve per step, so T_sat(P) costs about what Psat(T) does, instead of one
     saturation-pressure solve per trial temperature. In y, ln Psat is nearly linear
     (Clausius-Clapeyron), so Newton's steps are good from the start, which comes from the
-    model's own saturation line at a few nodes (:func:`_saturation_line`). The bracket
-    starts as y in [1, 1e3] (Tc down to Tc/1000) and shrinks at every evaluation; the step
+    model's own saturation line at a few nodes (:func:`_saturation_line`), and so does the
+    bracket: the two nodes around P (:func:`_node_bracket`; y in [1, 1e3], Tc down to
+    Tc/1000, without a line). It shrinks at every evaluation; the step
     is Newton's where it stays inside, a bisection in ln y otherwise. A step of at most
     :data:`_ACCEPT_Y_STEP` y is taken as the last one and the roots are solved at the
     final (T, P).
@@ -490,7 +510,7 @@ def _newton_saturation_temperature(model, P):
     line = _saturation_line(model)
     lnP = np.log(P)
     y = _temperature_start(line, lnP) if line[0].size else np.full(n, np.nan)
-    lo, hi = np.ones(n), np.full(n, _Y_COLDEST)
+    lo, hi = _node_bracket(line, lnP) if line[0].size else (np.ones(n), np.full(n, _Y_COLDEST))
     y = np.where(np.isnan(y) | ((y > lo) & (y < hi)), y, np.sqrt(lo * hi))
     ok, iterations, evaluations = np.zeros(n, bool), np.zeros(n, np.int64), np.zeros(n, np.int64)
     idx = np.flatnonzero(np.isfinite(y))
