@@ -179,3 +179,19 @@ def test_the_nodes_around_a_pressure_bracket_its_saturation_temperature(cls, co2
     assert np.all((lo <= y) & (y <= hi))
     inside = np.log(P) > line[0][0]   # below the coldest node the cold end is Tc/1000
     assert np.all(hi[inside] / lo[inside] < 1.2) and np.all(hi[~inside] == 1e3)   # two nodes, not the whole range
+
+
+@pytest.mark.parametrize("cls", CUBICS)
+@pytest.mark.parametrize("name", ["water", "CarbonDioxide"])
+def test_next_to_the_critical_point_every_path_agrees_with_the_proven_one(cls, name):
+    # 1 - P/Pc from 3e-2 to 1e-10: the temperature iteration (with the equal-area gap once the
+    # dome is narrow), the window gap in T beyond Tr = 1 - 1e-6, the proven path for the rest
+    m = cls(tr.get_fluid(name))
+    P = m.fluid.Pc * (1.0 - np.geomspace(3e-2, 1e-10, 40))
+    sat = tr.saturation(m, P=P)
+    assert np.all(np.diff(sat.T) > 0.0) and np.all(sat.T <= m.fluid.Tc)
+    np.testing.assert_allclose(sat.T, api._inverted_saturation_pressure(m, P)[0], rtol=1e-13, atol=0.0)
+    narrow = sat.v_vapor < 1.5 * sat.v_liquid   # solved on the equal-area gap, in the iteration
+    iterated = narrow & (sat.T < (1.0 - 1e-6) * m.fluid.Tc)
+    assert np.any(iterated)
+    assert np.all(fast._newton_saturation_temperature(m, P[iterated])[3].converged)

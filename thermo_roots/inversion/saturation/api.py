@@ -4,7 +4,9 @@ The public entry points: :func:`saturation` (checks, per-element reasons, the re
 value), :func:`saturation_pressure` and :func:`saturation_temperature` (the SI array
 helpers of the state solver), and the model's floor (:func:`lowest_saturation_temperature`).
 Each temperature goes to the fast path (:mod:`.fast`) first and to the window solver
-(:mod:`.window`) where the fast path does not finish or Tr >= 0.99.
+(:mod:`.window`) where the fast path does not finish or Tr >= 0.99; each pressure to the
+temperature iteration at fixed P first, then to the window solver's gap in T, then to
+Psat(T) inverted (see :func:`saturation_temperature`).
 """
 
 from __future__ import annotations
@@ -320,9 +322,11 @@ def saturation_temperature(model, P, strict=True):
     """Saturation temperature [K] and saturated volumes at P [Pa] (array, P <= Pc).
 
     A bracketed Newton iteration in Tc/T on the fugacity gap at fixed P serves first
-    (:func:`.fast._newton_saturation_temperature`, one cubic solve per step); every
-    pressure it does not finish (next to the critical point, where the phases are too alike
-    for the ln phi difference, at about Tr = 0.995) is solved by inverting Psat(T): ln Psat(T) rises strictly with T
+    (:func:`.fast._newton_saturation_temperature`, one cubic solve per step, the window
+    solver's equal-area gap where the dome is narrow); what it does not finish (Tr above
+    1 - 1e-6) goes to the window solver's gap in T at fixed P
+    (:func:`.window._window_saturation_temperature`), and whatever is left is solved by
+    inverting Psat(T): ln Psat(T) rises strictly with T
     (Clausius-Clapeyron), so T is bracketed between the model's lowest saturation
     temperature and Tc, and each trial T costs one vectorized saturation-pressure solve
     (:func:`_inverted_saturation_pressure`). strict : raise at the first P that fails (below
@@ -359,8 +363,8 @@ def saturation_temperature(model, P, strict=True):
 def _near_critical_temperature(model, P, T, v_l, v_v, result, cold, warm):
     """Finish what the temperature iteration left: the window solver's gap at fixed P
     (:func:`.window._window_saturation_temperature`) on the iteration's last bracket, each
-    end moved out by 1e-9 of itself (its sign came from the ln phi difference, good to
-    rounding); then Psat(T) inverted (:func:`_inverted_saturation_pressure`) for the rest.
+    end moved out by 1e-9 of itself (its sign came from the same gap, good to rounding);
+    then Psat(T) inverted (:func:`_inverted_saturation_pressure`) for the rest.
     """
     Tc = model.fluid.Tc
     rest = ~np.asarray(result.converged)

@@ -20,7 +20,7 @@ from ...models import R
 from ...roots import RootResult
 from ..cubic import _volume_columns
 from .table import _TABLE_START, _start_tables, _start_values
-from .window import _LNP_RTOL, _LOWEST_REDUCED_PRESSURE, _NARROW_DOME, _UNRESOLVED_GAP
+from .window import _LNP_RTOL, _LOWEST_REDUCED_PRESSURE, _NARROW_DOME, _UNRESOLVED_GAP, _equal_area_gap
 
 #: Below this reduced temperature the bracketed Newton iteration is tried first.
 FAST_TR_MAX = 0.99
@@ -277,7 +277,7 @@ def _newton_saturation_numpy(model, T, start, table, volumes, settings):
             fin = idx[done]
             ok[fin] = True
             P_last[fin], z_l[fin], z_v[fin], last[fin] = P[done], zl[done], zv[done], step[done]
-            idx = idx[~(done | stop | collapsed)]
+            idx = idx[~(done | collapsed)]
     # the last step taken, and the roots carried to its pressure along their slopes
     v_l, v_v, P_out = np.full(n, np.nan), np.full(n, np.nan), P_last
     fin = np.flatnonzero(ok)
@@ -380,10 +380,12 @@ _LINE_TR = (0.25, FAST_TR_MAX)
 _LINE_NODES = 48
 #: A Newton step in y = Tc/T of at most this share of y is taken as the last one.
 _ACCEPT_Y_STEP = 1e-10
-#: The temperature iteration's results from this reduced temperature on go to the proven
-#: path (its narrow-dome stop, v_V < 1.5 v_L, ends it earlier for every cubic seen, at
-#: about Tr = 0.995: the window solver also switches from the ln phi difference there).
-_T_ITERATION_TR_MAX = 0.999
+#: The temperature iteration's results from this reduced temperature on go to the window
+#: solver's gap in T (:func:`.window._window_saturation_temperature`): closer to Tc Newton's
+#: error after the last accepted step (|g''/(2 g')| dy^2, g' vanishing like (1 - Tr)^0.5)
+#: was seen to reach 1e-12 in T at 1 - Tr ~ 1e-7; up to here it agrees with the proven path
+#: to 3e-15 (five cubics, six fluids, tests/inversion/test_saturation_by_pressure.py).
+_T_ITERATION_TR_MAX = 1.0 - 1e-6
 #: Iteration limit of the temperature iteration (bisection in ln y from the widest bracket
 #: [1, 1e3] takes about 50).
 _T_MAXITER = 80
@@ -478,10 +480,11 @@ def _newton_saturation_temperature(model, P):
     :data:`_ACCEPT_Y_STEP` y is taken as the last one and the roots are solved at the
     final (T, P).
 
-    Not finished, for the proven path (Psat(T) inverted by bracketed root finding) to take
-    over: phases too alike for the ln phi difference (v_V < 1.5 v_L, as in the window
-    solver), an end at or above Tr = :data:`_T_ITERATION_TR_MAX`, the iteration limit, a
-    final (T, P) without three roots.
+    Where the phases are too alike for the ln phi difference (v_V < 1.5 v_L) the gap is
+    the window solver's equal-area integral (:func:`.window._equal_area_gap`), as there.
+    Not finished, for the window solver's gap in T and then the proven path (Psat(T)
+    inverted) to take over: an end at or above Tr = :data:`_T_ITERATION_TR_MAX`, the
+    iteration limit, a collapsed bracket, a final (T, P) without three roots.
 
     Parameters
     ----------
@@ -527,31 +530,31 @@ def _newton_saturation_temperature(model, P):
             zl, zv, B, A_over_B = (v0 + c) * to_z, (v2 + c) * to_z, model.b * to_z, a / (model.b * (R * T))
             evaluations[idx] += 1
             three = np.isfinite(v2)
-            stop = three & (v2 < _NARROW_DOME * v0)
             gap = fugacity_gap_z(zl, zv, A_over_B, B, d1, d2)
+            narrow = three & (v2 < _NARROW_DOME * v0)   # phases too alike for the ln phi difference:
+            if narrow.any():                             # the window solver's equal-area integral
+                gap[narrow] = _equal_area_gap(model, T[narrow], Pi[narrow], v0[narrow], v2[narrow])
             step = yi * gap / _vaporization_enthalpy(zl, zv, A_over_B, B, T * da / a, d1, d2)
-            # T above the saturation temperature (where the dome is too narrow for the ln phi
-            # difference, its sign is not trusted: the bracket stays as it was)
-            warm = np.where(three, gap > 0.0, v0 > model.v_c) & ~stop
-            cold = np.where(three, gap < 0.0, ~(v0 > model.v_c)) & ~stop
+            warm = np.where(three, gap > 0.0, v0 > model.v_c)   # T above the saturation temperature
+            cold = np.where(three, gap < 0.0, ~(v0 > model.v_c))
             lo_i, hi_i = np.where(warm, yi, lo_i), np.where(cold, yi, hi_i)
-            iterations[idx] += ~stop
-            done = three & ~stop & (np.abs(step) <= _ACCEPT_Y_STEP * yi)
+            iterations[idx] += 1
+            done = three & (np.abs(step) <= _ACCEPT_Y_STEP * yi)
             yn = yi + step
             newton = three & (yn > lo_i) & (yn < hi_i)
             yn = np.where(newton, yn, np.sqrt(lo_i * hi_i))
             collapsed = hi_i - lo_i <= _LNP_RTOL * yi
-            y[idx] = np.where(done | collapsed | stop, yi, yn)
+            y[idx] = np.where(done | collapsed, yi, yn)
             lo[idx], hi[idx] = lo_i, hi_i
             fin = idx[done]
             ok[fin] = True
             y_out[fin] = yi[done] + step[done]
-            idx = idx[~(done | stop | collapsed)]
+            idx = idx[~(done | collapsed)]
     T_out, v_l, v_v = Tc / y_out, np.full(n, np.nan), np.full(n, np.nan)
     fin = np.flatnonzero(ok)
-    if fin.size:   # the roots at the final (T, P): three of them, a dome still wide enough
+    if fin.size:   # the roots at the final (T, P): three of them, not too close to Tc
         v0, _, v2 = _volume_columns(model, T_out[fin], P[fin])
-        good = np.isfinite(v2) & (v2 >= _NARROW_DOME * v0) & (T_out[fin] < _T_ITERATION_TR_MAX * Tc)
+        good = np.isfinite(v2) & (v2 > v0) & (T_out[fin] < _T_ITERATION_TR_MAX * Tc)
         evaluations[fin] += 1
         ok[fin] = good
         v_l[fin], v_v[fin] = np.where(good, v0, np.nan), np.where(good, v2, np.nan)
