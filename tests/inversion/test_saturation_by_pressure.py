@@ -195,3 +195,34 @@ def test_next_to_the_critical_point_every_path_agrees_with_the_proven_one(cls, n
     iterated = narrow & (sat.T < (1.0 - 1e-6) * m.fluid.Tc)
     assert np.any(iterated)
     assert np.all(fast._newton_saturation_temperature(m, P[iterated])[3].converged)
+
+
+@pytest.mark.parametrize("cls", CUBICS)
+@pytest.mark.parametrize("name", ["propane", "water", "helium"])
+def test_the_models_floor_is_the_saturation_temperature_at_the_floor_pressure(cls, name):
+    # lowest_saturation_temperature is defined by Psat(T_min) = SATURATION_FLOOR Pc: the
+    # model's own Psat there (the window solver's, outside the table) gives that pressure back,
+    # a hair above T_min a saturation exists and a hair below it is refused
+    m = cls(tr.get_fluid(name))
+    T_min = api.lowest_saturation_temperature(m)
+    floor = api.SATURATION_FLOOR * m.fluid.Pc
+    P = api._raw_saturation_pressure(m, np.array([T_min]), strict=False)[0][0]
+    assert np.log(P / floor) == pytest.approx(0.0, abs=1e-9)
+    assert tr.saturation(m, T=T_min * (1 + 1e-6)).P > floor
+    with pytest.raises(tr.DomainError, match="give T of at least"):
+        tr.saturation(m, T=T_min * (1 - 1e-6))
+    assert api._lowest_saturation_state(m) == (T_min, floor)
+
+
+def test_finding_the_floor_needs_no_window_solve(propane, monkeypatch):
+    # the fix: the floor came from root finding on ln Psat(T), a window solve per trial
+    # temperature (below the table's range), some 60-190 ms on the first low-pressure or
+    # energy solve of every model; the temperature iteration at the floor pressure finds it
+    m = tr.PengRobinson(propane)
+    calls = []
+    real = api._window_saturation
+    monkeypatch.setattr(api, "_window_saturation", lambda *a, **k: calls.append(1) or real(*a, **k))
+    T_min = api.lowest_saturation_temperature(m)
+    assert calls == []
+    P = api._raw_saturation_pressure(m, np.array([T_min]), strict=False)[0][0]   # the window solver's, once
+    assert np.log(P / (api.SATURATION_FLOOR * propane.Pc)) == pytest.approx(0.0, abs=1e-9)

@@ -203,12 +203,21 @@ SATURATION_FLOOR = 1e-100
 def lowest_saturation_temperature(model) -> float:
     """The temperature [K] below which the model's saturation pressure is under the floor.
 
-    :data:`SATURATION_FLOOR` times Pc; found once per model by bracketed root finding on
-    ln Psat(T), which rises strictly with T (Clausius-Clapeyron), and kept on the model.
+    :data:`SATURATION_FLOOR` times Pc: the saturation temperature at that pressure, found
+    once per model and kept on it. The temperature iteration at fixed P
+    (:func:`.fast._newton_saturation_temperature`) serves first (a few cubic solves); where
+    it does not finish, bracketed root finding on ln Psat(T), which rises strictly with T
+    (Clausius-Clapeyron; each trial T a window solve there, below the table's range).
     """
     cached = model.__dict__.get("_lowest_saturation_T")
     if cached is None:
         target = np.array([SATURATION_FLOOR * model.fluid.Pc])
+        T_it, _, _, iterated, _ = _newton_saturation_temperature(model, target)
+        if iterated.converged[0]:
+            cached = float(T_it[0])
+            model.__dict__["_lowest_saturation_state"] = (cached, float(target[0]))
+            model.__dict__["_lowest_saturation_T"] = cached
+            return cached
         Tc = model.fluid.Tc
 
         def above_floor(Tx):   # where the solve fails (far below the floor) count it as below
