@@ -475,8 +475,8 @@ def _newton_saturation_temperature(model, P):
     (Clausius-Clapeyron), so Newton's steps are good from the start, which comes from the
     model's own saturation line at a few nodes (:func:`_saturation_line`), and so does the
     bracket: the two nodes around P (:func:`_node_bracket`; y in [1, 1e3], Tc down to
-    Tc/1000, without a line). It shrinks at every evaluation; the step
-    is Newton's where it stays inside, a bisection in ln y otherwise. A step of at most
+    Tc/1000, without a line). It shrinks at every evaluation; the step is Newton's where it
+    stays inside, a bisection in ln y otherwise. A step of at most
     :data:`_ACCEPT_Y_STEP` y is taken as the last one and the roots are solved at the
     final (T, P).
 
@@ -500,7 +500,7 @@ def _newton_saturation_temperature(model, P):
         Root T [K] per pressure; converged False where not finished.
     bracket : tuple of numpy.ndarray
         (cold, warm) [K]: the last bracket of the saturation temperature at each P, from
-        the sign rule (Tc/1000 and Tc where nothing was learnt).
+        the sign rule (the nodes' bracket where nothing was learnt).
 
     References
     ----------

@@ -177,5 +177,5 @@ def _window_saturation_temperature(model, P, cold, warm):
     T = np.where(result.converged, result.root, np.nan)
     v = volume_roots(model, T, P)
     ok = np.asarray(result.converged) & np.isfinite(v[..., 2]) & (v[..., 2] > v[..., 0])
-    result = dataclasses.replace(result, converged=ok, status=np.where(ok, "converged", "not a window root"))
+    result = dataclasses.replace(result, converged=ok, status=np.where(ok, "converged", "no window root"))
     return np.where(ok, T, np.nan), np.where(ok, v[..., 0], np.nan), np.where(ok, v[..., 2], np.nan), result
