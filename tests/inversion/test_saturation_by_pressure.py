@@ -226,3 +226,17 @@ def test_finding_the_floor_needs_no_window_solve(propane, monkeypatch):
     assert calls == []
     P = api._raw_saturation_pressure(m, np.array([T_min]), strict=False)[0][0]   # the window solver's, once
     assert np.log(P / (api.SATURATION_FLOOR * propane.Pc)) == pytest.approx(0.0, abs=1e-9)
+
+
+@pytest.mark.parametrize("cls", [tr.PengRobinson, tr.SoaveRedlichKwong])
+def test_a_volume_translation_moves_the_volumes_and_not_the_temperature(cls, co2):
+    # Peneloux, Rauzy & Freze (1982), Fluid Phase Equilib. 8, 7-23: a volume translation
+    # leaves the saturation pressure (so T_sat(P)) unchanged and shifts both volumes by -c
+    plain, shifted = cls(co2), cls(co2, volume_shift="peneloux")
+    assert shifted.c != 0.0
+    P = co2.Pc * np.array([1e-3, 0.1, 0.5, 0.9, 0.99, 0.9999])
+    a, b = tr.saturation(plain, P=P), tr.saturation(shifted, P=P)
+    np.testing.assert_allclose(b.T, a.T, rtol=1e-14)
+    np.testing.assert_allclose(b.v_liquid, a.v_liquid - shifted.c, rtol=1e-9)
+    np.testing.assert_allclose(b.v_vapor, a.v_vapor - shifted.c, rtol=1e-9)
+    np.testing.assert_allclose(tr.saturation(shifted, T=b.T).P, P, rtol=1e-10)
