@@ -64,3 +64,38 @@ def test_h_s_solves_no_isentrope_state_twice(propane, monkeypatch):
     assert seen[0].size > 1   # every doubling at once
     solved = np.concatenate(seen[:-1])
     assert np.unique(solved).size == solved.size
+
+
+def test_p_h_solves_each_bracket_end_once(propane, monkeypatch):
+    # the fix: the ends of the temperature bracket were solved by the bracket's growth, again
+    # for the outside check, and again by the root finder's start; now once each
+    m = tr.PengRobinson(propane)
+    st = tr.solve(m, T=500.0, P=2.0 * propane.Pc)   # above Pc: one segment, from the coldest T to 4 Tc
+    temperatures, brackets = [], []
+    real_caloric, real_find_root = pairs_energy._caloric_on_reference, pairs_energy.find_root
+
+    def caloric_spy(model, T, *args, **kwargs):
+        temperatures.append(np.array(T, dtype=float).ravel())
+        return real_caloric(model, T, *args, **kwargs)
+
+    def find_root_spy(f, bracket=None, **kwargs):
+        brackets.append(tuple(np.array(end, dtype=float).ravel() for end in bracket))
+        return real_find_root(f, bracket=bracket, **kwargs)
+
+    monkeypatch.setattr(pairs_energy, "_caloric_on_reference", caloric_spy)
+    monkeypatch.setattr(pairs_energy, "find_root", find_root_spy)
+    back = tr.solve(m, P=st.P, h=st.h)
+    assert back.T == pytest.approx(500.0, rel=1e-9)
+    assert len(brackets) == 1
+    solved = np.concatenate(temperatures)
+    for end in brackets[0]:
+        assert np.count_nonzero(solved == end[0]) == 1
+
+
+@pytest.mark.parametrize("cls", [tr.PengRobinson, tr.RedlichKwong])
+def test_p_h_and_p_s_round_trip_in_every_region(cls, propane):
+    m = cls(propane)
+    for st in _states(m):
+        for back in (tr.solve(m, P=st.P, h=st.h, errors="raise"), tr.solve(m, P=st.P, s=st.s, errors="raise")):
+            assert back.T == pytest.approx(st.T, rel=1e-9)
+            assert back.v == pytest.approx(st.v, rel=1e-8)

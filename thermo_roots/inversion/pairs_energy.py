@@ -38,6 +38,21 @@ def _coldest_temperature(model):
     return max(1.01 * lowest_saturation_temperature(model), 0.5 * (model.fluid.T_triple or 0.2 * model.fluid.Tc))
 
 
+def _known_ends(f):
+    """f(x, *args) for a bracketed root finder whose ends were solved already: called as
+    f(x, *args, x_lo, f_lo, x_hi, f_hi), it returns f_lo at x == x_lo and f_hi at x == x_hi
+    and calls f at the other x only (the finder's start evaluates both ends again)."""
+    def with_ends(x, *rest):
+        *args, x_lo, f_lo, x_hi, f_hi = rest
+        known = (x == x_lo) | (x == x_hi)
+        out = np.where(x == x_hi, f_hi, f_lo).astype(float)
+        if not np.all(known):
+            new = ~known
+            out[new] = f(x[new], *(a[new] for a in args))
+        return out
+    return with_ends
+
+
 def _from_P_energy(model, flat, problems, branch, name):
     """(P, h) or (P, s) -> T: at fixed P both rise with T (dh/dT = cp > 0, ds/dT = cp/T), so
     each phase's segment is bracketed: below P_c, liquid from the model's lowest temperature
@@ -88,24 +103,28 @@ def _from_P_energy(model, flat, problems, branch, name):
 
     if np.any(single):
         j = np.flatnonzero(single)
-        # the top end grows until the energy is passed (a hot gas), up to 64 Tc
-        for _ in range(5):
-            short = gap(hi[j], P[j], target[j], segment[j]) < 0.0
-            short &= segment[j] != "liquid"
-            if not short.any():
-                break
-            hi[j[short]] *= 2.0
+        # the top end grows until the energy is passed (a hot gas), up to 64 Tc; each end's
+        # gap is solved once and handed to the root finder (_known_ends)
         with np.errstate(all="ignore"):
-            g_lo = gap(lo[j], P[j], target[j], segment[j])
             g_hi = gap(hi[j], P[j], target[j], segment[j])
+            for _ in range(5):
+                short = (g_hi < 0.0) & (segment[j] != "liquid")
+                if not short.any():
+                    break
+                hi[j[short]] *= 2.0
+                k = j[short]
+                g_hi[short] = gap(hi[k], P[k], target[k], segment[k])
+            g_lo = gap(lo[j], P[j], target[j], segment[j])
         outside = ~((g_lo <= 0.0) & (g_hi >= 0.0))
         problems.flag_at(j[outside], [
             f"{name} = {target[k]:.6g} {_unit(name)} at P = {P[k]:.6g} Pa lies outside what {model.name} gives "
             f"between {lo[k]:.4g} K and {hi[k]:.4g} K; check the value, its unit and its reference state."
             for k in j[outside]], kind=DomainError)
-        j = j[~outside]
+        inside = ~outside
+        j, g_lo, g_hi = j[inside], g_lo[inside], g_hi[inside]
         if j.size:
-            result = find_root(gap, bracket=(lo[j], hi[j]), args=(P[j], target[j], segment[j]), xtol=0.0,
+            result = find_root(_known_ends(gap), bracket=(lo[j], hi[j]),
+                               args=(P[j], target[j], segment[j], lo[j], g_lo, hi[j], g_hi), xtol=0.0,
                                rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
             ok = np.asarray(result.converged)
             convergence = (result, j)
@@ -500,15 +519,7 @@ def _from_h_s(model, flat, problems, branch=None):
     convergence = None
     j = np.flatnonzero(bracketed & problems.ok)
     if j.size:
-        def gap_inside(T, sx, hx, T_lo, g_at_lo, T_hi, g_at_hi):   # the ends are known already
-            known = (T == T_lo) | (T == T_hi)
-            g = np.where(T == T_hi, g_at_hi, g_at_lo)
-            if not np.all(known):
-                new = ~known
-                g[new] = gap(T[new], sx[new], hx[new])
-            return g
-
-        result = find_root(gap_inside, bracket=(lo[j], hi[j]), args=(s[j], h[j], lo[j], g_lo[j], hi[j], g_hi[j]),
+        result = find_root(_known_ends(gap), bracket=(lo[j], hi[j]), args=(s[j], h[j], lo[j], g_lo[j], hi[j], g_hi[j]),
                            xtol=0.0, rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
         convergence = (result, j)
         ok = np.asarray(result.converged)
