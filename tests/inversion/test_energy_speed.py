@@ -99,3 +99,36 @@ def test_p_h_and_p_s_round_trip_in_every_region(cls, propane):
         for back in (tr.solve(m, P=st.P, h=st.h, errors="raise"), tr.solve(m, P=st.P, s=st.s, errors="raise")):
             assert back.T == pytest.approx(st.T, rel=1e-9)
             assert back.v == pytest.approx(st.v, rel=1e-8)
+
+
+@pytest.mark.parametrize("name", ["h", "s"])
+def test_t_h_and_t_s_root_finders_solve_no_end_again(name, propane, monkeypatch):
+    # the fix: the ends of the volume bracket, solved for the bracket check, were solved again
+    # by the root finder's start; the (h, s) solve runs one such (T, s) solve per trial T
+    m = tr.PengRobinson(propane)
+    states = [tr.solve(m, T=T, P=P) for T, P in ((300.0, 3e6), (350.0, 2e5), (500.0, 2.0 * propane.Pc))]
+    inside, ends, evaluated = [False], [], []
+    real_energy_at, real_find_root = pairs_energy._energy_at, pairs_energy.find_root
+
+    def energy_spy(model, T, x, which):
+        if inside[0]:
+            evaluated.append(np.array(x, dtype=float).ravel())
+        return real_energy_at(model, T, x, which)
+
+    def find_root_spy(f, bracket=None, **kwargs):
+        ends.extend(np.array(end, dtype=float).ravel() for end in bracket)
+        inside[0] = True
+        try:
+            return real_find_root(f, bracket=bracket, **kwargs)
+        finally:
+            inside[0] = False
+
+    monkeypatch.setattr(pairs_energy, "_energy_at", energy_spy)
+    monkeypatch.setattr(pairs_energy, "find_root", find_root_spy)
+    for st in states:
+        ends.clear(), evaluated.clear()
+        back = tr.solve(m, T=st.T, **{name: getattr(st, name)})
+        assert back.P == pytest.approx(st.P, rel=1e-8)
+        assert ends and evaluated
+        solved = np.concatenate(evaluated)
+        assert not np.any(np.isin(solved, np.concatenate(ends)))

@@ -48,7 +48,7 @@ def _known_ends(f):
         out = np.where(x == x_hi, f_hi, f_lo).astype(float)
         if not np.all(known):
             new = ~known
-            out[new] = f(x[new], *(a[new] for a in args))
+            out[new] = f(x[new], *(a[new] if isinstance(a, np.ndarray) and a.ndim else a for a in args))
         return out
     return with_ends
 
@@ -317,8 +317,8 @@ def _from_T_energy(model, flat, problems, branch, name):
         two &= target >= e_min
     lo = np.where(dome & (target > e_v), x_v, x_min)
     hi = np.where(dome & (target < e_l), x_l, x_far)
-    dilute = problems.ok & ~two & (_energy_gap(lo, T, target, 1.0, model, name) <= 0.0) \
-        & (_energy_gap(hi, T, target, 1.0, model, name) >= 0.0) & (hi > lo)
+    g_lo, g_hi = _energy_gap(lo, T, target, 1.0, model, name), _energy_gap(hi, T, target, 1.0, model, name)
+    dilute = problems.ok & ~two & (g_lo <= 0.0) & (g_hi >= 0.0) & (hi > lo)
     k = np.flatnonzero(two)
     q = np.clip((target[k] - e_l[k]) / (e_v[k] - e_l[k]), 0.0, 1.0)
     out["quality"][k], out["P"][k] = q, P_sat[k]
@@ -326,19 +326,21 @@ def _from_T_energy(model, flat, problems, branch, name):
     convergence = None
     j = np.flatnonzero(dilute)
     if j.size:
-        result = find_root(_energy_gap, bracket=(lo[j], hi[j]), args=(T[j], target[j], scale, model, name),
+        result = find_root(_known_ends(_energy_gap), bracket=(lo[j], hi[j]),   # the ends' gaps are known
+                           args=(T[j], target[j], scale, model, name, lo[j], g_lo[j] / scale, hi[j], g_hi[j] / scale),
                            **_OPTIONS)
         convergence = (result, j)
         _take_root(model, T, result, j, out, problems, name, target)
     # the dense side (x_floor, x_min], falling: h only (s has no dense side of its own)
     dense = np.zeros(n, bool)
     if name == "h":
-        dense = problems.ok & (x_min > x_floor) & (target >= e_min) & \
-            (_energy_gap(x_floor, T, target, 1.0, model, name) >= 0.0)
+        g_floor = _energy_gap(x_floor, T, target, 1.0, model, name)
+        dense = problems.ok & (x_min > x_floor) & (target >= e_min) & (g_floor >= 0.0)
         d = np.flatnonzero(dense)
         if d.size:
-            result = find_root(_energy_gap, bracket=(x_floor[d], x_min[d]), args=(T[d], target[d], scale, model,
-                                                                                 name), **_OPTIONS)
+            result = find_root(_known_ends(_energy_gap), bracket=(x_floor[d], x_min[d]),
+                               args=(T[d], target[d], scale, model, name, x_floor[d], g_floor[d] / scale, x_min[d],
+                                     (e_min[d] - target[d]) / scale), **_OPTIONS)
             second = dict(P=np.full(n, np.nan), v=np.full(n, np.nan))
             _take_root(model, T, result, d, second, problems, name, target)
             alone = np.flatnonzero(dense & ~(two | dilute))   # the only solution: it is the state
