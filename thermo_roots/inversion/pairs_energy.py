@@ -38,6 +38,21 @@ def _coldest_temperature(model):
     return max(1.01 * lowest_saturation_temperature(model), 0.5 * (model.fluid.T_triple or 0.2 * model.fluid.Tc))
 
 
+def _known_ends(f):
+    """f(x, *args) for a bracketed root finder whose ends were solved already: called as
+    f(x, *args, x_lo, f_lo, x_hi, f_hi), it returns f_lo at x == x_lo and f_hi at x == x_hi
+    and calls f at the other x only (the finder's start evaluates both ends again)."""
+    def with_ends(x, *rest):
+        *args, x_lo, f_lo, x_hi, f_hi = rest
+        known = (x == x_lo) | (x == x_hi)
+        out = np.where(x == x_hi, f_hi, f_lo).astype(float)
+        if not np.all(known):
+            new = ~known
+            out[new] = f(x[new], *(a[new] if isinstance(a, np.ndarray) and a.ndim else a for a in args))
+        return out
+    return with_ends
+
+
 def _from_P_energy(model, flat, problems, branch, name):
     """(P, h) or (P, s) -> T: at fixed P both rise with T (dh/dT = cp > 0, ds/dT = cp/T), so
     each phase's segment is bracketed: below P_c, liquid from the model's lowest temperature
@@ -88,24 +103,28 @@ def _from_P_energy(model, flat, problems, branch, name):
 
     if np.any(single):
         j = np.flatnonzero(single)
-        # the top end grows until the energy is passed (a hot gas), up to 64 Tc
-        for _ in range(5):
-            short = gap(hi[j], P[j], target[j], segment[j]) < 0.0
-            short &= segment[j] != "liquid"
-            if not short.any():
-                break
-            hi[j[short]] *= 2.0
+        # the top end grows until the energy is passed (a hot gas), up to 64 Tc; each end's
+        # gap is solved once and handed to the root finder (_known_ends)
         with np.errstate(all="ignore"):
-            g_lo = gap(lo[j], P[j], target[j], segment[j])
             g_hi = gap(hi[j], P[j], target[j], segment[j])
+            for _ in range(5):
+                short = (g_hi < 0.0) & (segment[j] != "liquid")
+                if not short.any():
+                    break
+                hi[j[short]] *= 2.0
+                k = j[short]
+                g_hi[short] = gap(hi[k], P[k], target[k], segment[k])
+            g_lo = gap(lo[j], P[j], target[j], segment[j])
         outside = ~((g_lo <= 0.0) & (g_hi >= 0.0))
         problems.flag_at(j[outside], [
             f"{name} = {target[k]:.6g} {_unit(name)} at P = {P[k]:.6g} Pa lies outside what {model.name} gives "
             f"between {lo[k]:.4g} K and {hi[k]:.4g} K; check the value, its unit and its reference state."
             for k in j[outside]], kind=DomainError)
-        j = j[~outside]
+        inside = ~outside
+        j, g_lo, g_hi = j[inside], g_lo[inside], g_hi[inside]
         if j.size:
-            result = find_root(gap, bracket=(lo[j], hi[j]), args=(P[j], target[j], segment[j]), xtol=0.0,
+            result = find_root(_known_ends(gap), bracket=(lo[j], hi[j]),
+                               args=(P[j], target[j], segment[j], lo[j], g_lo, hi[j], g_hi), xtol=0.0,
                                rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
             ok = np.asarray(result.converged)
             convergence = (result, j)
@@ -298,8 +317,8 @@ def _from_T_energy(model, flat, problems, branch, name):
         two &= target >= e_min
     lo = np.where(dome & (target > e_v), x_v, x_min)
     hi = np.where(dome & (target < e_l), x_l, x_far)
-    dilute = problems.ok & ~two & (_energy_gap(lo, T, target, 1.0, model, name) <= 0.0) \
-        & (_energy_gap(hi, T, target, 1.0, model, name) >= 0.0) & (hi > lo)
+    g_lo, g_hi = _energy_gap(lo, T, target, 1.0, model, name), _energy_gap(hi, T, target, 1.0, model, name)
+    dilute = problems.ok & ~two & (g_lo <= 0.0) & (g_hi >= 0.0) & (hi > lo)
     k = np.flatnonzero(two)
     q = np.clip((target[k] - e_l[k]) / (e_v[k] - e_l[k]), 0.0, 1.0)
     out["quality"][k], out["P"][k] = q, P_sat[k]
@@ -307,19 +326,21 @@ def _from_T_energy(model, flat, problems, branch, name):
     convergence = None
     j = np.flatnonzero(dilute)
     if j.size:
-        result = find_root(_energy_gap, bracket=(lo[j], hi[j]), args=(T[j], target[j], scale, model, name),
+        result = find_root(_known_ends(_energy_gap), bracket=(lo[j], hi[j]),   # the ends' gaps are known
+                           args=(T[j], target[j], scale, model, name, lo[j], g_lo[j] / scale, hi[j], g_hi[j] / scale),
                            **_OPTIONS)
         convergence = (result, j)
         _take_root(model, T, result, j, out, problems, name, target)
     # the dense side (x_floor, x_min], falling: h only (s has no dense side of its own)
     dense = np.zeros(n, bool)
     if name == "h":
-        dense = problems.ok & (x_min > x_floor) & (target >= e_min) & \
-            (_energy_gap(x_floor, T, target, 1.0, model, name) >= 0.0)
+        g_floor = _energy_gap(x_floor, T, target, 1.0, model, name)
+        dense = problems.ok & (x_min > x_floor) & (target >= e_min) & (g_floor >= 0.0)
         d = np.flatnonzero(dense)
         if d.size:
-            result = find_root(_energy_gap, bracket=(x_floor[d], x_min[d]), args=(T[d], target[d], scale, model,
-                                                                                 name), **_OPTIONS)
+            result = find_root(_known_ends(_energy_gap), bracket=(x_floor[d], x_min[d]),
+                               args=(T[d], target[d], scale, model, name, x_floor[d], g_floor[d] / scale, x_min[d],
+                                     (e_min[d] - target[d]) / scale), **_OPTIONS)
             second = dict(P=np.full(n, np.nan), v=np.full(n, np.nan))
             _take_root(model, T, result, d, second, problems, name, target)
             alone = np.flatnonzero(dense & ~(two | dilute))   # the only solution: it is the state
@@ -405,6 +426,18 @@ def _second_pressure_warning(model, P_other, P, count, total):
 
 # --------------------------------------------------------------------------- (h, s)
 
+#: Up to this many (state, doubling) pairs, the (h, s) bracket's doublings are solved in one
+#: vectorized call (see _from_h_s); beyond it, one call per doubling on the open states.
+_DOUBLINGS_AT_ONCE = 256
+
+
+def _doublings_at_once(gap, T_cold, steps, s, h):
+    """gap at T_cold 2^k for k < steps at every state, shape (steps, n): one call."""
+    T = T_cold * 2.0 ** np.arange(steps, dtype=float)
+    n = s.size
+    return gap(np.repeat(T, n), np.tile(s, steps), np.tile(h, steps)).reshape(steps, n)
+
+
 def _from_h_s(model, flat, problems, branch=None):
     """(h, s) -> the state, by bracketing T along the isentrope.
 
@@ -443,11 +476,16 @@ def _from_h_s(model, flat, problems, branch=None):
     lo, hi = np.full(n, np.nan), np.full(n, T_cold)
     g_lo, g_hi = np.full(n, np.nan), np.full(n, np.nan)
     open_ = np.ones(n, bool)
-    for _ in range(int(np.ceil(np.log2(256.0 * Tc / T_cold))) + 1):
+    steps = int(np.ceil(np.log2(256.0 * Tc / T_cold))) + 1
+    # a few states: every doubling at once, in one vectorized (T, s) solve instead of one
+    # solve per doubling (each costs about the same for 1 state as for 50); the loop below
+    # then reads them off in the same order, so the bracket is the same
+    ahead = _doublings_at_once(gap, T_cold, steps, s, h) if n * steps <= _DOUBLINGS_AT_ONCE else None
+    for step in range(steps):
         k = np.flatnonzero(open_)
         if k.size == 0:
             break
-        g = gap(hi[k], s[k], h[k])
+        g = gap(hi[k], s[k], h[k]) if ahead is None else ahead[step, k]
         g_hi[k] = g
         done = (g >= 0.0) | (~np.isfinite(g) & np.isfinite(lo[k]))   # bracketed, or the isentrope ended
         short = g < 0.0
@@ -483,8 +521,8 @@ def _from_h_s(model, flat, problems, branch=None):
     convergence = None
     j = np.flatnonzero(bracketed & problems.ok)
     if j.size:
-        result = find_root(gap, bracket=(lo[j], hi[j]), args=(s[j], h[j]), xtol=0.0,
-                           rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
+        result = find_root(_known_ends(gap), bracket=(lo[j], hi[j]), args=(s[j], h[j], lo[j], g_lo[j], hi[j], g_hi[j]),
+                           xtol=0.0, rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
         convergence = (result, j)
         ok = np.asarray(result.converged)
         T[j[ok]] = np.asarray(result.root)[ok]

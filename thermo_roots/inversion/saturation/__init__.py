@@ -4,9 +4,11 @@
   :class:`Saturation`, the array helpers :func:`saturation_pressure` and
   :func:`saturation_temperature`, :func:`lowest_saturation_temperature`;
 - :mod:`.window` -- the window solver: a guaranteed bracket between the spinodal pressures,
-  valid to Tr = 1 - 1e-9 (:func:`spinodal_volumes`);
-- :mod:`.fast` -- the fast path below Tr = 0.99: a bracketed Newton iteration in ln P,
-  compiled when numba is there;
+  valid to Tr = 1 - 1e-9 (:func:`spinodal_volumes`); its gap solved in T at fixed P serves
+  T_sat(P) next to the critical point;
+- :mod:`.fast` -- the fast paths: Psat(T) below Tr = 0.99 by a bracketed Newton iteration
+  in ln P, compiled when numba is there; T_sat(P) by a bracketed Newton iteration in Tc/T
+  at fixed P, started and bracketed by the model's own saturation line at a few nodes;
 - :mod:`.table` -- the corresponding-states table of each cubic family that starts it.
 
 Every name importable from ``thermo_roots.inversion.saturation`` before the split still is

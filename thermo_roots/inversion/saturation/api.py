@@ -4,7 +4,9 @@ The public entry points: :func:`saturation` (checks, per-element reasons, the re
 value), :func:`saturation_pressure` and :func:`saturation_temperature` (the SI array
 helpers of the state solver), and the model's floor (:func:`lowest_saturation_temperature`).
 Each temperature goes to the fast path (:mod:`.fast`) first and to the window solver
-(:mod:`.window`) where the fast path does not finish or Tr >= 0.99.
+(:mod:`.window`) where the fast path does not finish or Tr >= 0.99; each pressure to the
+temperature iteration at fixed P first, then to the window solver's gap in T, then to
+Psat(T) inverted (see :func:`saturation_temperature`).
 """
 
 from __future__ import annotations
@@ -19,8 +21,8 @@ from ...models import Model, _scalar_or_array
 from ...roots import find_root
 from ...units import to_si
 from .._problems import Problems, check_errors_option, si_array
-from .fast import _all_converged, _compiled_newton, _newton_saturation
-from .window import _UNRESOLVED_GAP, _critical_tangent, _window_saturation
+from .fast import _all_converged, _compiled_newton, _newton_saturation, _newton_saturation_temperature
+from .window import _UNRESOLVED_GAP, _critical_tangent, _window_saturation, _window_saturation_temperature
 
 #: The reason array of a result with nothing to report: one shared read-only "" (the
 #: general path's :class:`Problems` gives the same view), far cheaper than a filled array.
@@ -201,12 +203,21 @@ SATURATION_FLOOR = 1e-100
 def lowest_saturation_temperature(model) -> float:
     """The temperature [K] below which the model's saturation pressure is under the floor.
 
-    :data:`SATURATION_FLOOR` times Pc; found once per model by bracketed root finding on
-    ln Psat(T), which rises strictly with T (Clausius-Clapeyron), and kept on the model.
+    :data:`SATURATION_FLOOR` times Pc: the saturation temperature at that pressure, found
+    once per model and kept on it. The temperature iteration at fixed P
+    (:func:`.fast._newton_saturation_temperature`) serves first (a few cubic solves); where
+    it does not finish, bracketed root finding on ln Psat(T), which rises strictly with T
+    (Clausius-Clapeyron; each trial T a window solve there, below the table's range).
     """
     cached = model.__dict__.get("_lowest_saturation_T")
     if cached is None:
         target = np.array([SATURATION_FLOOR * model.fluid.Pc])
+        T_it, _, _, iterated, _ = _newton_saturation_temperature(model, target)
+        if iterated.converged[0]:
+            cached = float(T_it[0])
+            model.__dict__["_lowest_saturation_state"] = (cached, float(target[0]))
+            model.__dict__["_lowest_saturation_T"] = cached
+            return cached
         Tc = model.fluid.Tc
 
         def above_floor(Tx):   # where the solve fails (far below the floor) count it as below
@@ -254,9 +265,14 @@ def _flag_outside_the_dome(model, name, unit, flat, problems):
 
 
 def _lowest_saturation_state(model):
-    """(T [K], P [Pa]) of the model's floor: its lowest saturation temperature and pressure."""
-    T_min = lowest_saturation_temperature(model)
-    return T_min, _raw_saturation_pressure(model, np.array([T_min]), strict=False)[0][0]
+    """(T [K], P [Pa]) of the model's floor: its lowest saturation temperature and pressure,
+    found once per model and kept on it (the pressure needs the window solver)."""
+    cached = model.__dict__.get("_lowest_saturation_state")
+    if cached is None:
+        T_min = lowest_saturation_temperature(model)
+        cached = (T_min, float(_raw_saturation_pressure(model, np.array([T_min]), strict=False)[0][0]))
+        model.__dict__["_lowest_saturation_state"] = cached
+    return cached
 
 
 def _below_lowest_pressure_message(model, P, T_min, P_min):
@@ -314,10 +330,17 @@ def _merge(fast, mask, slow):
 def saturation_temperature(model, P, strict=True):
     """Saturation temperature [K] and saturated volumes at P [Pa] (array, P <= Pc).
 
-    ln Psat(T) rises strictly with T (Clausius-Clapeyron), so T is bracketed between the
-    model's lowest saturation temperature and Tc, and each trial T costs one vectorized
-    saturation-pressure solve. strict : raise at the first P that fails (below the model's
-    lowest saturation pressure, or not converged); with False those elements are NaN.
+    A bracketed Newton iteration in Tc/T on the fugacity gap at fixed P serves first
+    (:func:`.fast._newton_saturation_temperature`, one cubic solve per step, the window
+    solver's equal-area gap where the dome is narrow); what it does not finish (Tr above
+    1 - 1e-6) goes to the window solver's gap in T at fixed P
+    (:func:`.window._window_saturation_temperature`), and whatever is left is solved by
+    inverting Psat(T): ln Psat(T) rises strictly with T
+    (Clausius-Clapeyron), so T is bracketed between the model's lowest saturation
+    temperature and Tc, and each trial T costs one vectorized saturation-pressure solve
+    (:func:`_inverted_saturation_pressure`). strict : raise at the first P that fails (below
+    the model's lowest saturation pressure, or not converged); with False those elements
+    are NaN.
     """
     P = np.asarray(P, dtype=float)
     T = np.full(P.shape, model.fluid.Tc)
@@ -326,24 +349,59 @@ def saturation_temperature(model, P, strict=True):
     below = P < model.fluid.Pc
     result = None
     if np.any(below):
-        T_floor, P_floor = _lowest_saturation_state(model)
-        reachable = below & (P > P_floor)
-        if strict and np.any(below & ~reachable):
-            raise DomainError(_below_lowest_pressure_message(model, P[below & ~reachable].flat[0], T_floor, P_floor))
-        T[below & ~reachable], v_l[below & ~reachable], v_v[below & ~reachable] = np.nan, np.nan, np.nan
+        reachable = below.copy()
+        if np.any(P[below] < 1e-90 * model.fluid.Pc):   # the floor is found once per model, when it matters
+            T_floor, P_floor = _lowest_saturation_state(model)
+            reachable &= P > P_floor
+            if strict and np.any(below & ~reachable):
+                raise DomainError(_below_lowest_pressure_message(model, P[below & ~reachable].flat[0], T_floor,
+                                                                 P_floor))
+            T[below & ~reachable], v_l[below & ~reachable], v_v[below & ~reachable] = np.nan, np.nan, np.nan
         Pb = P[reachable]
         if Pb.size:
-            def log_pressure_gap(Tx, target):
-                return np.log(_raw_saturation_pressure(model, Tx, strict=False)[0] / target)
+            T_b, vl_b, vv_b, result, (cold, warm) = _newton_saturation_temperature(model, Pb.ravel())
+            if result.status is not _all_converged(Pb.size):
+                T_b, vl_b, vv_b, result = _near_critical_temperature(model, Pb.ravel(), T_b, vl_b, vv_b, result,
+                                                                    cold, warm)
+                if strict:
+                    _require(result, "saturation temperature", Pb.ravel(), "P", "Pa")
+            T[reachable], v_l[reachable], v_v[reachable] = T_b, vl_b, vv_b
+    return T, v_l, v_v, result
 
-            T_lo = _lowest_temperature(model, Pb, T_floor)
-            result = find_root(log_pressure_gap, bracket=(np.full(Pb.shape, T_lo), np.full(Pb.shape, model.fluid.Tc)),
-                               args=(Pb,), xtol=0.0, rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
-            if strict:
-                _require(result, "saturation temperature", Pb, "P", "Pa")
-            T_b = np.where(result.converged, result.root, np.nan)
-            T[reachable] = T_b
-            _, v_l[reachable], v_v[reachable], _ = _raw_saturation_pressure(model, T_b, strict=False)
+
+def _near_critical_temperature(model, P, T, v_l, v_v, result, cold, warm):
+    """Finish what the temperature iteration left: the window solver's gap at fixed P
+    (:func:`.window._window_saturation_temperature`) on the iteration's last bracket, each
+    end moved out by 1e-9 of itself (its sign came from the same gap, good to rounding);
+    then Psat(T) inverted (:func:`_inverted_saturation_pressure`) for the rest.
+    """
+    Tc = model.fluid.Tc
+    rest = ~np.asarray(result.converged)
+    lo, hi = cold[rest] * (1.0 - 1e-9), np.minimum(warm[rest] * (1.0 + 1e-9), Tc)
+    T[rest], v_l[rest], v_v[rest], window = _window_saturation_temperature(model, P[rest], lo, hi)
+    result = _merge(result, rest, window)
+    rest = ~np.asarray(result.converged)
+    if np.any(rest):
+        T[rest], v_l[rest], v_v[rest], slow = _inverted_saturation_pressure(model, P[rest])
+        result = _merge(result, rest, slow)
+    return T, v_l, v_v, result
+
+
+def _inverted_saturation_pressure(model, P):
+    """Saturation temperature [K] and volumes at 1-D P [Pa] (above the model's floor, below
+    Pc) by bracketed root finding on ln Psat(T) - ln P in T between the model's lowest
+    saturation temperature and Tc: the proven path, for whatever the other two leave
+    (the critical tangent's last 1e-11 of Tc among them). NaN where it fails.
+    """
+    def log_pressure_gap(Tx, target):
+        return np.log(_raw_saturation_pressure(model, Tx, strict=False)[0] / target)
+
+    lo = np.full(P.shape, _lowest_temperature(model, P, lowest_saturation_temperature(model)))
+    hi = np.full(P.shape, model.fluid.Tc)
+    result = find_root(log_pressure_gap, bracket=(lo, hi), args=(P,), xtol=0.0, rtol=4.0 * np.finfo(float).eps,
+                       maxiter=200, trace=False)
+    T = np.where(result.converged, result.root, np.nan)
+    _, v_l, v_v, _ = _raw_saturation_pressure(model, T, strict=False)
     return T, v_l, v_v, result
 
 

@@ -20,7 +20,7 @@ from ...models import R
 from ...roots import RootResult
 from ..cubic import _volume_columns
 from .table import _TABLE_START, _start_tables, _start_values
-from .window import _LNP_RTOL, _LOWEST_REDUCED_PRESSURE, _NARROW_DOME, _UNRESOLVED_GAP
+from .window import _LNP_RTOL, _LOWEST_REDUCED_PRESSURE, _NARROW_DOME, _UNRESOLVED_GAP, _equal_area_gap
 
 #: Below this reduced temperature the bracketed Newton iteration is tried first.
 FAST_TR_MAX = 0.99
@@ -168,12 +168,20 @@ def fugacity_gap_z(zl, zv, A_over_B, B, delta1, delta2):
     Peneloux, A., Rauzy, E. & Freze, R. (1982), Fluid Phase Equilib. 8, 7-23 (translation
     leaves phase equilibrium unchanged).
     """
+    return (zl - zv) - np.log((zl - B) / (zv - B)) - A_over_B * _attraction_gap(zl, zv, B, delta1, delta2)
+
+
+def _attraction_gap(zl, zv, B, delta1, delta2):
+    """B (I_L - I_V) [-]: the difference of the attraction integrals of the two phases in Z,
+    I(Z) = ln((Z + d1 B)/(Z + d2 B)) / ((d1 - d2) B) (1/(Z + d B) when d1 = d2 = d).
+
+    The one term that ln phi and the residual enthalpy of the cubic share, written once for
+    :func:`fugacity_gap_z` and :func:`_vaporization_enthalpy`.
+    """
     if delta1 == delta2:
-        attraction = B / (zl + delta1 * B) - B / (zv + delta1 * B)
-    else:
-        ratio = (zl + delta1 * B) * (zv + delta2 * B) / ((zl + delta2 * B) * (zv + delta1 * B))
-        attraction = np.log(ratio) / (delta1 - delta2)
-    return (zl - zv) - np.log((zl - B) / (zv - B)) - A_over_B * attraction
+        return B / (zl + delta1 * B) - B / (zv + delta1 * B)
+    ratio = (zl + delta1 * B) * (zv + delta2 * B) / ((zl + delta2 * B) * (zv + delta1 * B))
+    return np.log(ratio) / (delta1 - delta2)
 
 
 def _newton_saturation_numpy(model, T, start, table, volumes, settings):
@@ -269,7 +277,7 @@ def _newton_saturation_numpy(model, T, start, table, volumes, settings):
             fin = idx[done]
             ok[fin] = True
             P_last[fin], z_l[fin], z_v[fin], last[fin] = P[done], zl[done], zv[done], step[done]
-            idx = idx[~(done | stop | collapsed)]
+            idx = idx[~(done | collapsed)]
     # the last step taken, and the roots carried to its pressure along their slopes
     v_l, v_v, P_out = np.full(n, np.nan), np.full(n, np.nan), P_last
     fin = np.flatnonzero(ok)
@@ -362,3 +370,195 @@ def _refine_root(z, c2, c1, c0, steps, tol):
     return np.where(active, np.nan, z), np.where(active, 0.0, slope)
 
 
+
+
+# --------------------------------------------------------------------------- T from P
+
+#: Reduced temperatures of the nodes of each model's own saturation line (uniform in Tc/T),
+#: solved once per model by the fast path: they start the temperature iteration.
+_LINE_TR = (0.25, FAST_TR_MAX)
+_LINE_NODES = 48
+#: A Newton step in y = Tc/T of at most this share of y is taken as the last one.
+_ACCEPT_Y_STEP = 1e-10
+#: The temperature iteration's results from this reduced temperature on go to the window
+#: solver's gap in T (:func:`.window._window_saturation_temperature`): closer to Tc Newton's
+#: error after the last accepted step (|g''/(2 g')| dy^2, g' vanishing like (1 - Tr)^0.5)
+#: was seen to reach 1e-12 in T at 1 - Tr ~ 1e-7; up to here it agrees with the proven path
+#: to 3e-15 (five cubics, six fluids, tests/inversion/test_saturation_by_pressure.py).
+_T_ITERATION_TR_MAX = 1.0 - 1e-6
+#: Iteration limit of the temperature iteration (bisection in ln y from the widest bracket
+#: [1, 1e3] takes about 50).
+_T_MAXITER = 80
+#: The cold end of the temperature iteration's bracket, as Tc/T: Tr = 1e-3, far below the
+#: model's floor (:data:`api.SATURATION_FLOOR`) for every cubic.
+_Y_COLDEST = 1e3
+
+
+def _saturation_line(model):
+    """The model's own saturation line at a few nodes: (ln P [ln Pa], y = Tc/T [-]), both
+    ascending in ln P, the critical point (ln Pc, 1) the last; solved once per model by
+    :func:`_newton_saturation` and kept on the model (the nodes only start an iteration,
+    so a node it did not finish is left out).
+    """
+    cached = model.__dict__.get("_saturation_line")
+    if cached is None:
+        y = np.linspace(1.0 / _LINE_TR[0], 1.0 / _LINE_TR[1], _LINE_NODES)   # cold to warm: ln P ascending
+        P, *_ = _newton_saturation(model, model.fluid.Tc / y)
+        keep = np.isfinite(P) & (P > 0.0)
+        lnP, y = np.log(P[keep]), y[keep]
+        lnP, y = np.append(lnP, np.log(model.fluid.Pc)), np.append(y, 1.0)
+        if lnP.size < 3 or np.any(np.diff(lnP) <= 0.0):
+            lnP, y = np.array([]), np.array([])
+        for shared in (lnP, y):
+            shared.setflags(write=False)
+        cached = model.__dict__["_saturation_line"] = (lnP, y)
+    return cached
+
+
+def _temperature_start(line, lnP):
+    """y = Tc/T [-] of the saturation line at ln P by linear interpolation in (ln P, Tc/T)
+    (nearly a straight line, Clausius-Clapeyron), extrapolated along the coldest segment;
+    NaN at and above the critical pressure."""
+    nodes, y = line
+    inner = np.interp(lnP, nodes, y)
+    cold = y[0] + (lnP - nodes[0]) * (y[1] - y[0]) / (nodes[1] - nodes[0])
+    start = np.where(lnP < nodes[0], cold, inner)
+    with np.errstate(invalid="ignore"):
+        return np.where(lnP < nodes[-1], start, np.nan)
+
+
+def _node_bracket(line, lnP):
+    """(lo, hi) of y = Tc/T [-] from the two nodes of the saturation line around each ln P.
+
+    The nodes are saturation states of the model itself (to rounding), and ln Psat rises
+    with T, so the saturation temperature at P lies between its neighbours' temperatures;
+    each end is moved out by 1e-9 of itself. Below the coldest node the cold end is
+    Tc/1000 (:data:`_Y_COLDEST`); y never goes below 1 (Tc).
+    """
+    nodes, y = line
+    k = np.searchsorted(nodes, lnP)   # nodes[k - 1] < lnP <= nodes[k]
+    inside = (k > 0) & (k < nodes.size)
+    j = np.clip(k, 1, nodes.size - 1)
+    lo = np.where(inside, np.maximum(y[j] * (1.0 - 1e-9), 1.0), 1.0)
+    hi = np.where(inside, y[j - 1] * (1.0 + 1e-9), _Y_COLDEST)
+    hi = np.where(k == 0, _Y_COLDEST, hi)
+    lo = np.where(k == 0, y[0] * (1.0 - 1e-9), lo)
+    return lo, hi
+
+
+def _vaporization_enthalpy(zl, zv, A_over_B, B, T_dadT_over_a, delta1, delta2):
+    """(h_V - h_L) / (R T) [-] of the untranslated cubic from its roots Z_L, Z_V at one (T, P).
+
+    From h_res/(RT) = Z - 1 - (A/B)(1 - T a'/a) B I(Z) (the generalized cubic's residual
+    enthalpy, written in Z; the attraction term is :func:`_attraction_gap`'s). A volume
+    translation shifts both phases' h_res by the same c P, so the difference is the
+    translated model's too. It is also the slope of the fugacity gap at fixed P:
+    d(ln phi_L - ln phi_V)/dT = (h_V - h_L)/(R T^2), since (d ln phi/dT)_P = -h_res/(R T^2).
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., ch. 2 and 3 (residual enthalpy; d ln phi/dT at fixed P).
+    """
+    return (zv - zl) + A_over_B * (1.0 - T_dadT_over_a) * _attraction_gap(zl, zv, B, delta1, delta2)
+
+
+def _newton_saturation_temperature(model, P):
+    """Saturation temperature by a bracketed Newton iteration in y = Tc/T at fixed P.
+
+    The fugacity gap g = ln phi_L - ln phi_V at fixed P rises with T at the slope
+    (h_V - h_L)/(R T^2) > 0 (:func:`_vaporization_enthalpy`) wherever the cubic has three
+    roots; where it has one, the lone root's side of v_c says which side of the saturation
+    temperature T lies on (a lone liquid root: below it; a lone vapor root: above it).
+    One cubic solve per step, so T_sat(P) costs about what Psat(T) does, instead of one
+    saturation-pressure solve per trial temperature. In y, ln Psat is nearly linear
+    (Clausius-Clapeyron), so Newton's steps are good from the start, which comes from the
+    model's own saturation line at a few nodes (:func:`_saturation_line`), and so does the
+    bracket: the two nodes around P (:func:`_node_bracket`; y in [1, 1e3], Tc down to
+    Tc/1000, without a line). It shrinks at every evaluation; the step is Newton's where it
+    stays inside, a bisection in ln y otherwise. A step of at most
+    :data:`_ACCEPT_Y_STEP` y is taken as the last one and the roots are solved at the
+    final (T, P).
+
+    Where the phases are too alike for the ln phi difference (v_V < 1.5 v_L) the gap is
+    the window solver's equal-area integral (:func:`.window._equal_area_gap`), as there.
+    Not finished, for the window solver's gap in T and then the proven path (Psat(T)
+    inverted) to take over: an end at or above Tr = :data:`_T_ITERATION_TR_MAX`, the
+    iteration limit, a collapsed bracket, a final (T, P) without three roots.
+
+    Parameters
+    ----------
+    model : CubicModel
+    P : numpy.ndarray
+        1-D pressures [Pa], 0 < P < Pc.
+
+    Returns
+    -------
+    T, v_l, v_v : numpy.ndarray
+        [K], [m^3/mol]; NaN where not finished.
+    result : RootResult
+        Root T [K] per pressure; converged False where not finished.
+    bracket : tuple of numpy.ndarray
+        (cold, warm) [K]: the last bracket of the saturation temperature at each P, from
+        the sign rule (the nodes' bracket where nothing was learnt).
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., ch. 11 (equal fugacity).
+    Press, W. H. et al. (2007), Numerical Recipes, 3rd ed., section 9.4 (Newton's method
+    safeguarded by bisection).
+    """
+    n, c, d1, d2, Tc = P.size, model.c, model.delta1, model.delta2, model.fluid.Tc
+    line = _saturation_line(model)
+    lnP = np.log(P)
+    y = _temperature_start(line, lnP) if line[0].size else np.full(n, np.nan)
+    lo, hi = _node_bracket(line, lnP) if line[0].size else (np.ones(n), np.full(n, _Y_COLDEST))
+    y = np.where(np.isnan(y) | ((y > lo) & (y < hi)), y, np.sqrt(lo * hi))
+    ok, iterations, evaluations = np.zeros(n, bool), np.zeros(n, np.int64), np.zeros(n, np.int64)
+    idx = np.flatnonzero(np.isfinite(y))
+    y_out = np.full(n, np.nan)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        for _ in range(_T_MAXITER):
+            if idx.size == 0:
+                break
+            yi, lo_i, hi_i, Pi = y[idx], lo[idx], hi[idx], P[idx]
+            T = Tc / yi
+            a, da = model.attraction(T)
+            v0, _, v2 = _volume_columns(model, T, Pi)
+            to_z = Pi / (R * T)
+            zl, zv, B, A_over_B = (v0 + c) * to_z, (v2 + c) * to_z, model.b * to_z, a / (model.b * (R * T))
+            evaluations[idx] += 1
+            three = np.isfinite(v2)
+            gap = fugacity_gap_z(zl, zv, A_over_B, B, d1, d2)
+            narrow = three & (v2 < _NARROW_DOME * v0)   # phases too alike for the ln phi difference:
+            if narrow.any():                             # the window solver's equal-area integral
+                gap[narrow] = _equal_area_gap(model, T[narrow], Pi[narrow], v0[narrow], v2[narrow])
+            step = yi * gap / _vaporization_enthalpy(zl, zv, A_over_B, B, T * da / a, d1, d2)
+            warm = np.where(three, gap > 0.0, v0 > model.v_c)   # T above the saturation temperature
+            cold = np.where(three, gap < 0.0, ~(v0 > model.v_c))
+            lo_i, hi_i = np.where(warm, yi, lo_i), np.where(cold, yi, hi_i)
+            iterations[idx] += 1
+            done = three & (np.abs(step) <= _ACCEPT_Y_STEP * yi)
+            yn = yi + step
+            newton = three & (yn > lo_i) & (yn < hi_i)
+            yn = np.where(newton, yn, np.sqrt(lo_i * hi_i))
+            collapsed = hi_i - lo_i <= _LNP_RTOL * yi
+            y[idx] = np.where(done | collapsed, yi, yn)
+            lo[idx], hi[idx] = lo_i, hi_i
+            fin = idx[done]
+            ok[fin] = True
+            y_out[fin] = yi[done] + step[done]
+            idx = idx[~(done | collapsed)]
+    T_out, v_l, v_v = Tc / y_out, np.full(n, np.nan), np.full(n, np.nan)
+    fin = np.flatnonzero(ok)
+    if fin.size:   # the roots at the final (T, P): three of them, not too close to Tc
+        v0, _, v2 = _volume_columns(model, T_out[fin], P[fin])
+        good = np.isfinite(v2) & (v2 > v0) & (T_out[fin] < _T_ITERATION_TR_MAX * Tc)
+        evaluations[fin] += 1
+        ok[fin] = good
+        v_l[fin], v_v[fin] = np.where(good, v0, np.nan), np.where(good, v2, np.nan)
+    T_out = np.where(ok, T_out, np.nan)
+    status = _all_converged(n) if ok.all() else np.where(ok, "converged", "iteration limit")
+    bracket = (Tc / hi, Tc / lo)   # where the iteration stopped: the proven path's start
+    return T_out, v_l, v_v, RootResult(T_out, ok, status, iterations, evaluations, None, "newton in Tc/T"), bracket

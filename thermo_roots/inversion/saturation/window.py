@@ -152,3 +152,30 @@ def _saturated_volumes(model, T, P, lo, hi):
         v_l[merged], v_v[merged] = vm[..., 0], np.fmax.reduce(vm, axis=-1)   # NaN, quietly, where none
     return v_l, v_v
 
+
+
+def _window_saturation_temperature(model, P, cold, warm):
+    """Saturation temperature [K] and volumes at 1-D P [Pa] near the critical point, by
+    bracketed root finding in T on the window solver's own gap at fixed P.
+
+    :func:`_fugacity_gap` is the equal-area integral where the dome is narrow and keeps
+    its sign rule outside the three-root window (a lone vapor root: T above the
+    saturation temperature, +1; a lone liquid root: below it, -1), so it changes sign once
+    in [cold, warm], at the saturation temperature; the gap's error maps to T through the
+    saturation line's slope as it maps to ln P at fixed T, so this is as precise as the
+    window solver. It costs one cubic solve per step instead of one window solve (two
+    spinodal solves and a saturation solve) per trial temperature.
+
+    cold, warm : a bracket [K] (from the temperature iteration's sign rule, or [T_lo, Tc]).
+
+    Returns T, v_l, v_v (NaN where the root finder did not converge or the final (T, P)
+    has fewer than three roots: the caller's proven path takes those) and the RootResult.
+    """
+    lnP = np.log(P)
+    result = find_root(lambda T, lnp: _fugacity_gap(lnp, model, T), bracket=(cold, warm), args=(lnP,),
+                       xtol=0.0, rtol=_LNP_RTOL, maxiter=200, trace=False)
+    T = np.where(result.converged, result.root, np.nan)
+    v = volume_roots(model, T, P)
+    ok = np.asarray(result.converged) & np.isfinite(v[..., 2]) & (v[..., 2] > v[..., 0])
+    result = dataclasses.replace(result, converged=ok, status=np.where(ok, "converged", "no window root"))
+    return np.where(ok, T, np.nan), np.where(ok, v[..., 0], np.nan), np.where(ok, v[..., 2], np.nan), result
