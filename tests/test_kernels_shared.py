@@ -306,3 +306,12 @@ def test_switched_off_by_environment_or_context_the_answers_are_the_same():
         np.testing.assert_allclose(on_sat, ctx_sat, rtol=1e-12)
         namespace[short] = True
     assert set(namespace) == {"vdW", "RK", "SRK", "PR", "PR78"}
+
+
+def test_the_fast_saturation_path_uses_the_model_layers_formulas():
+    # one formula in one place: the numpy fast path's gap, attraction term and root rate are
+    # the model layer's functions, the same ones the saturation loop compiles
+    assert _sat_fast.fugacity_gap_z is models.cubic_fugacity_gap_z
+    assert _sat_fast._attraction_gap is models.cubic_attraction_gap
+    assert _sat_fast._root_rate is models.cubic_z_root_rate
+    assert "cubic_attraction_gap" in models.FORMULAS

@@ -341,11 +341,19 @@ def cubic_fugacity_gap_z(zl, zv, A_over_B, B, d1, d2):
     difference is the translated model's too (Peneloux, Rauzy & Freze 1982).
     A_over_B = a/(b R T), B = b P/(R T) [-].
     """
+    return (zl - zv) - np.log((zl - B) / (zv - B)) - A_over_B * cubic_attraction_gap(zl, zv, B, d1, d2)
+
+
+def cubic_attraction_gap(zl, zv, B, d1, d2):
+    """B (I_L - I_V) [-]: the difference of the attraction integrals of two roots in Z,
+    I(Z) = ln((Z + d1 B)/(Z + d2 B)) / ((d1 - d2) B) (1/(Z + d B) when d1 = d2 = d).
+
+    The one term that the fugacity gap and the vaporization enthalpy of the cubic share.
+    The branch is on the family's constants, never on the data.
+    """
     if d1 == d2:
-        attraction = B / (zl + d1 * B) - B / (zv + d1 * B)
-    else:
-        attraction = np.log((zl + d1 * B) * (zv + d2 * B) / ((zl + d2 * B) * (zv + d1 * B))) / (d1 - d2)
-    return (zl - zv) - np.log((zl - B) / (zv - B)) - A_over_B * attraction
+        return B / (zl + d1 * B) - B / (zv + d1 * B)
+    return np.log((zl + d1 * B) * (zv + d2 * B) / ((zl + d2 * B) * (zv + d1 * B))) / (d1 - d2)
 
 
 class CubicParameters(NamedTuple):
@@ -369,7 +377,7 @@ FORMULAS = ("redlich_kwong_alpha_parts", "soave_alpha_parts", "alpha_parts", "cu
             "cubic_attraction_integral",
             "cubic_pressure", "cubic_dP_dv", "cubic_dP_dT", "cubic_residual_helmholtz", "cubic_residual_entropy",
             "cubic_residual", "cubic_ln_phi", "cubic_dP_dv_at", "cubic_z_coefficients", "cubic_z_root_rate",
-            "cubic_fugacity_gap_z")
+            "cubic_fugacity_gap_z", "cubic_attraction_gap")
 
 
 # --------------------------------------------------------------------------- models

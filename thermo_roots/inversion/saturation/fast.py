@@ -16,7 +16,7 @@ import functools
 import numpy as np
 
 from ... import _accel
-from ...models import R
+from ...models import R, cubic_attraction_gap, cubic_fugacity_gap_z, cubic_z_root_rate
 from ...roots import RootResult
 from ..cubic import _volume_columns
 from .table import _TABLE_START, _start_tables, _start_values
@@ -139,54 +139,19 @@ def _all_converged(n):
 
 
 
-def fugacity_gap_z(zl, zv, A_over_B, B, delta1, delta2):
-    """ln phi_L - ln phi_V [-] of the untranslated cubic from its roots Z_L, Z_V at one (T, P).
-
-    From ln phi = Z - 1 - ln(Z - B) - (A/B) J(Z), J = ln((Z + d1 B)/(Z + d2 B))/(d1 - d2)
-    (J = B/(Z + d B) when d1 = d2 = d): :meth:`CubicModel.ln_phi` written in Z, with the
-    logarithms of the two phases merged, so two logarithms give the difference instead of
-    six. A volume translation shifts both ln phi by the same cP/RT, so the difference is
-    the translated model's too. ``tests/inversion/test_saturation_fast.py`` holds it to
-    the difference of :meth:`CubicModel.ln_phi`. Compiled twin:
-    :func:`thermo_roots._accel_kernels.fugacity_gap_z`.
-
-    Parameters
-    ----------
-    zl, zv : numpy.ndarray
-        Liquid and vapor roots of the cubic in Z [-].
-    A_over_B : numpy.ndarray
-        a / (b R T) [-].
-    B : numpy.ndarray
-        b P / (R T) [-].
-    delta1, delta2 : float
-        The family's constants [-].
-
-    References
-    ----------
-    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
-    Computational Aspects, 2nd ed., ch. 3 and 4 (ln phi of the generalized cubic).
-    Peneloux, A., Rauzy, E. & Freze, R. (1982), Fluid Phase Equilib. 8, 7-23 (translation
-    leaves phase equilibrium unchanged).
-    """
-    return (zl - zv) - np.log((zl - B) / (zv - B)) - A_over_B * _attraction_gap(zl, zv, B, delta1, delta2)
-
-
-def _attraction_gap(zl, zv, B, delta1, delta2):
-    """B (I_L - I_V) [-]: the difference of the attraction integrals of the two phases in Z,
-    I(Z) = ln((Z + d1 B)/(Z + d2 B)) / ((d1 - d2) B) (1/(Z + d B) when d1 = d2 = d).
-
-    The one term that ln phi and the residual enthalpy of the cubic share, written once for
-    :func:`fugacity_gap_z` and :func:`_vaporization_enthalpy`.
-    """
-    if delta1 == delta2:
-        return B / (zl + delta1 * B) - B / (zv + delta1 * B)
-    ratio = (zl + delta1 * B) * (zv + delta2 * B) / ((zl + delta2 * B) * (zv + delta1 * B))
-    return np.log(ratio) / (delta1 - delta2)
+# The fugacity gap ln phi_L - ln phi_V from the two roots in Z (logarithms of the two phases
+# merged, no P(T, v) formed, so it keeps its digits at the tiny liquid roots of very low
+# pressures), the attraction term it shares with the vaporization enthalpy, and dZ/d ln P
+# of a root: the model layer's formulas, whose compiled twins the saturation loop runs.
+# ``tests/inversion/test_saturation_fast.py`` holds the gap to the difference of ln phi.
+fugacity_gap_z = cubic_fugacity_gap_z
+_attraction_gap = cubic_attraction_gap
+_root_rate = cubic_z_root_rate
 
 
 def _newton_saturation_numpy(model, T, start, table, volumes, settings):
     """The iteration of :func:`_newton_saturation` in numpy; the compiled twin is
-    :func:`thermo_roots._accel_kernels.saturation_kernel` (same steps, same order; this
+    :func:`thermo_roots._accel_kernels.saturation_loop` (same steps, same order; this
     one recovers Z from cubic.py's volumes, the loop keeps Z itself, so they agree to
     rounding, not bit for bit).
 
@@ -296,25 +261,6 @@ def _newton_saturation_numpy(model, T, start, table, volumes, settings):
         v_v[fin] = np.where(ok[fin], zv * scale - c, np.nan)
     summary = (T.min(), T.max(), int(n - ok.sum())) if n else (np.inf, -np.inf, 0)
     return x, P_out, v_l, v_v, ok, iterations, evaluations, started, summary
-
-
-def _root_rate(z, c2, c1, A, B, u, w):
-    """dZ/dln P [-] of a root z of the cubic in Z at fixed T, by implicit differentiation.
-
-    A = aP/(RT)^2 and B = bP/(RT) are proportional to P, so the coefficients' derivatives
-    in ln P are polynomials in A and B; u = delta1 + delta2, w = delta1 delta2. The fast
-    path's last step in ln P is at most 1e-9, so Z + rate * step is the root at the new
-    pressure to about 1e-18 (the neglected term is of second order in the step).
-    Compiled twin: :func:`thermo_roots._accel_kernels.root_rate`.
-
-    References
-    ----------
-    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
-    Computational Aspects, 2nd ed., ch. 3 (the cubic in Z with A and B).
-    """
-    df = (3.0 * z + 2.0 * c2) * z + c1
-    dfl = ((u - 1.0) * B * z + (A + 2.0 * w * B * B - u * B * (1.0 + 2.0 * B))) * z - B * (2.0 * A + w * B * (2.0 + 3.0 * B))
-    return -dfl / df
 
 
 def _table_roots(model, T, P, rl, zv, steps, tol):
