@@ -253,3 +253,12 @@ def test_h_s_arrays_keep_their_good_elements_and_the_finders_record(propane):
         tr.solve(model, h=h, s=st.s, errors="raise")
     scalar = tr.solve(model, T=300.0, s=float(st.s[0]))
     assert scalar.convergence.is_scalar and scalar.convergence.converged
+
+
+def test_the_second_pressure_is_said_in_bar_and_flagged_when_far_beyond_the_cubics_range(propane):
+    # propane at 40 °C, h = 620 kJ/kg: a vapor near 13.5 bar and, on the far side of the
+    # isotherm's lowest h, a second pressure thousands of bar up (measured with PR)
+    state = tr.solve(tr.PengRobinson(propane), T="40 degC", h="620 kJ/kg")
+    text = " ".join(state.warnings)
+    assert f"{state.P_other / 1e5:.6g} bar" in text and f"{state.P / 1e5:.6g} bar" in text
+    assert state.P_other > 10 * propane.Pc and "far outside the range" in text

@@ -417,9 +417,12 @@ def _no_solution_reason(model, name, T, target, e_min, e_far, has_minimum):
 
 def _second_pressure_warning(model, P_other, P, count, total):
     if total == 1:
-        return (f"A second pressure, {float(P_other[0]):.6g} Pa, gives the same T and h in {model.name}: along the "
+        other, lower = float(P_other[0]), float(P[0])
+        far = (f" At {other / model.fluid.Pc:.3g} times the critical pressure it lies far outside the range where "
+               "a cubic equation is any guide." if other > 10.0 * model.fluid.Pc else "")
+        return (f"A second pressure, {other / 1e5:.6g} bar, gives the same T and h in {model.name}: along the "
                 "isotherm h falls to a minimum (where the Joule-Thomson coefficient changes sign) and rises again. "
-                f"The lower pressure ({float(P[0]):.6g} Pa) is reported; the other is State.P_other.")
+                f"The lower pressure ({lower / 1e5:.6g} bar) is reported; the other is State.P_other.{far}")
     return (f"At {count} of {total} states a second, higher pressure gives the same T and h in {model.name} "
             "(see State.P_other); the lower one is reported.")
 
