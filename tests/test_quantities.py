@@ -232,7 +232,7 @@ def test_panel_fields_take_units_and_labels_from_the_table():
     pytest.importorskip("ipywidgets")
     from thermo_roots.widgets._inputs import LABELS, UNITS, QuantityField
 
-    assert list(UNITS) == ["T", "P", "v", "rho", "quality", "h", "s"]   # the state panel's fields
+    assert list(UNITS) == ["T", "P", "v", "rho", "quality", "h", "s", "u"]   # the state panel's fields
     assert UNITS["P"] == QUANTITIES["P"].input_units and LABELS["v"] == "Volume"
     field = QuantityField("h_mass", "250")
     assert field.unit.value == "kJ/kg" and field.label.value == "<b>Enthalpy</b>"
