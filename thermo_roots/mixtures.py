@@ -337,7 +337,8 @@ class BinaryParameters:
             raise InputError(f"{who}: the matrix has shape {k.shape}; with {n} components it must be ({n}, {n}).")
         if not np.isfinite(k).all():
             i, j = np.argwhere(~np.isfinite(k))[0]
-            raise InputError(f"{who}: k[{i}, {j}] = {k[i, j]!r} is not finite; every kᵢⱼ must be a finite number.")
+            raise InputError(f"{who}: k[{i}, {j}] = {float(k[i, j])!r} is not finite; every kᵢⱼ must be a "
+                             "finite number.")
         if np.any(np.diag(k) != 0):
             i = int(np.flatnonzero(np.diag(k) != 0)[0])
             raise InputError(f"{who}: the diagonal must be 0 (kᵢᵢ = 0 by definition); k[{i}, {i}] = {k[i, i]:g}.")

@@ -35,7 +35,7 @@ def _positive(value, label: str) -> np.ndarray:
     bad = ~(np.isfinite(out) & (out > 0))
     if bad.any():
         raise InputError(f"wilson_k: {label} must be positive and finite in SI units "
-                         f"({'K' if label == 'T' else 'Pa'}); got {out[bad].ravel()[0]!r}"
+                         f"({'K' if label == 'T' else 'Pa'}); got {float(out[bad].ravel()[0])!r}"
                          f"{'' if out.ndim == 0 else f' at index {tuple(int(i) for i in np.argwhere(bad)[0])}'}.")
     return out
 

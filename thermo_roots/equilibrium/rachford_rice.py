@@ -172,7 +172,8 @@ def rachford_rice(z, K, negative_flash: bool = False, xtol: float = 1e-15, maxit
                          "give both as (n_components,) or (n_states, n_components).") from None
     if np.any(K_b < 0):
         raise InputError("rachford_rice: every K must be >= 0 (K = y/x; 0 for a component that does not "
-                         f"vaporise); got {K_b[K_b < 0].ravel()[0]!r}. Check the K-values (e.g. Wilson's estimate).")
+                         f"vaporise); got {float(K_b[K_b < 0].ravel()[0])!r}. Check the K-values (e.g. Wilson's "
+                         "estimate).")
     shape = z_b.shape[:-1]
     n_c = z_b.shape[-1]
     zf, Kf = z_b.reshape(-1, n_c), K_b.reshape(-1, n_c)
