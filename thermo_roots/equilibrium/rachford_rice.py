@@ -14,7 +14,10 @@ taken from the physics of that root: xᵢ ≤ 1 and yᵢ ≤ 1 give
     max over Kᵢ > 1 of (Kᵢ zᵢ − 1)/(Kᵢ − 1)  ≤  β  ≤  min over Kᵢ < 1 of (1 − zᵢ)/(1 − Kᵢ),
 
 two ends strictly inside the window where g is finite; the root is found between them by
-bracketed root finding (Chandrupatla's method, :func:`thermo_roots.find_root`).
+bracketed root finding (Chandrupatla's method, :func:`thermo_roots.find_root`). The unknown
+actually solved for is the distance to the nearer pole, u = 1 + β (Kₚ − 1) of the component
+p whose pole it is (in ln u), so that x and y keep their digits when the root lies next to a
+pole (a nearly pure feed, a trace component, a negative flash far out); see ``_solve``.
 
 References
 ----------
@@ -25,7 +28,9 @@ References
    51–71 (1989): the window between the poles and β outside [0, 1].
 .. [3] Leibovici, C. F., Neoschil, J., "A new look at the Rachford-Rice equation",
    Fluid Phase Equilib. 74, 303–308 (1992): the tighter bracket from xᵢ, yᵢ ≤ 1.
-.. [4] Michelsen, M. L., Mollerup, J. M., *Thermodynamic Models: Fundamentals and
+.. [4] Nielsen, M., Lia, H., "Avoiding round-off error in the Rachford-Rice equation",
+   Fluid Phase Equilib. (2023) (the pole-distance unknown; from memory).
+.. [5] Michelsen, M. L., Mollerup, J. M., *Thermodynamic Models: Fundamentals and
    Computational Aspects*, 2nd ed., Tie-Line Publications, 2007, ch. 10.
 """
 
@@ -48,6 +53,7 @@ ALL_K_ABOVE = "all K >= 1"         # no root at all: g(β) > 0 everywhere (vapor
 ALL_K_BELOW = "all K <= 1"         # no root at all: g(β) < 0 everywhere (liquid for these K)
 ALL_K_ONE = "all K = 1"            # g ≡ 0: the trivial solution, β undetermined
 NOT_SOLVED = "not solved"          # NaN or infinite input, or the root finder failed
+_EPS = float(np.finfo(float).eps)
 STATUSES = (TWO_PHASE, BELOW_ZERO, ABOVE_ONE, ALL_K_ABOVE, ALL_K_BELOW, ALL_K_ONE, NOT_SOLVED)
 
 
@@ -121,7 +127,7 @@ def _as_components(value, label: str) -> np.ndarray:
     return out
 
 
-def rachford_rice(z, K, negative_flash: bool = False, xtol: float = 1e-15, maxiter: int = 100) -> RachfordRice:
+def rachford_rice(z, K, negative_flash: bool = False, rtol: float = 4 * _EPS, maxiter: int = 100) -> RachfordRice:
     """Vapor fraction and phase compositions of a feed z split by K-values, for many states at once.
 
     Parameters
@@ -135,8 +141,11 @@ def rachford_rice(z, K, negative_flash: bool = False, xtol: float = 1e-15, maxit
         Return the root β even where it lies outside [0, 1] (Whitson & Michelsen's
         negative flash, with x and y from it); by default such states get β = 0 or 1 and
         x = y = z.
-    xtol : float
-        Absolute tolerance on β [-] (a relative one of 4 machine epsilons is added).
+    rtol : float
+        Relative tolerance [-] on the unknown actually solved for, the denominator
+        u = 1 + β (Kₚ − 1) of the component whose pole is nearer (see :func:`_solve`;
+        it is the absolute tolerance on ln u); the default, 4 machine epsilons, followed
+        by one Newton step on u, gives x and y to rounding even next to a pole.
     maxiter : int
         Most root-finder iterations per state.
 
@@ -192,29 +201,10 @@ def rachford_rice(z, K, negative_flash: bool = False, xtol: float = 1e-15, maxit
 
     beta = np.full(n, np.nan)
     iterations = np.zeros(n, dtype=int)
+    t = np.full_like(zf, np.nan)                  # the denominators 1 + β (Kᵢ − 1), solved for accurately
     if has_root.any():
-        zr, Kr = zf[has_root], Kf[has_root]
-        d = Kr - 1.0
-        with np.errstate(divide="ignore", invalid="ignore"):
-            lo = np.where(present[has_root] & (d > 0), (Kr * zr - 1.0) / d, -np.inf).max(axis=1)
-            hi = np.where(present[has_root] & (d < 0), (1.0 - zr) / -d, np.inf).min(axis=1)
-        rows = np.arange(zr.shape[0])
-
-        def g(b, i):
-            return np.sum(zr[i] * d[i] / (1.0 + b[..., None] * d[i]), axis=-1)
-
-        d_max = np.where(present[has_root], d, -np.inf).max(axis=1)   # poles of the components present
-        d_min = np.where(present[has_root], d, np.inf).min(axis=1)
-        lo, hi = _keep_sign(g, rows, lo, -1.0 / d_max, +1), _keep_sign(g, rows, hi, -1.0 / d_min, -1)
-
-        result = find_root(g, bracket=(lo, hi), args=(rows,), xtol=xtol, maxiter=maxiter, trace=False)
-        ok = np.asarray(result.converged)
-        root = np.where(ok, result.root, np.nan)
-        beta[has_root] = root
-        iterations[has_root] = result.iterations
-        # Which side of [0, 1] the root lies on, from the sign of g at 0 and 1 (g falls).
-        g0, g1 = g(np.zeros(len(rows)), rows), g(np.ones(len(rows)), rows)
-        side = np.where(g0 <= 0, BELOW_ZERO, np.where(g1 >= 0, ABOVE_ONE, TWO_PHASE))
+        solved = _solve(zf[has_root], Kf[has_root], rtol, maxiter)
+        beta[has_root], t[has_root], iterations[has_root], ok, side = solved
         status[has_root] = np.where(ok, side, NOT_SOLVED)
 
     x = np.full_like(zf, np.nan)
@@ -225,7 +215,7 @@ def rachford_rice(z, K, negative_flash: bool = False, xtol: float = 1e-15, maxit
     else:
         beta[(status == BELOW_ZERO) | (status == ALL_K_BELOW)] = 0.0
         beta[(status == ABOVE_ONE) | (status == ALL_K_ABOVE)] = 1.0
-    x[split] = zf[split] / (1.0 + beta[split, None] * (Kf[split] - 1.0))
+    x[split] = zf[split] / t[split]
     y[split] = Kf[split] * x[split]
     one_phase = ~split & (status != NOT_SOLVED)
     x[one_phase] = zf[one_phase]
@@ -237,16 +227,87 @@ def rachford_rice(z, K, negative_flash: bool = False, xtol: float = 1e-15, maxit
                         iterations.reshape(shape), bool(negative_flash))
 
 
-def _keep_sign(g, rows, end, pole, sign):
-    """Move a bracket end towards its pole until g has the sign it has there (+1 at the low end).
 
-    The bounds from xᵢ, yᵢ ≤ 1 enclose the root exactly; rounding can put one a hair past it
-    when the root sits on it (a feed that is nearly one component). Halving the distance to
-    the pole, where g goes to ±∞, restores the sign; g stays monotone on the way.
+def _solve(z, K, rtol, maxiter):
+    """β for states that have a root (a component present with K > 1 and one with K < 1).
+
+    Near a pole, β itself cannot carry the digits of 1 + β (Kᵢ − 1) (a feed that is nearly
+    one component, or a negative flash far out). So the unknown is the distance to the
+    nearer pole: u = tₚ = 1 + β dₚ (dᵢ = Kᵢ − 1) of the component p whose pole it is
+    (largest K at the low end, smallest at the high end), and every other denominator is
+    tᵢ = ((dₚ − dᵢ) + u dᵢ)/dₚ, without cancellation. Which pole is nearer follows from the
+    sign of g at the middle of the window (g falls, so g > 0 there puts the root in the
+    upper half); u runs from the pole (u = 0) to past the middle, and the physical bound
+    (yₚ ≤ 1 at the low end: u ≥ Kₚ zₚ; xₚ ≤ 1 at the high end: u ≥ zₚ) closes the bracket.
+    References: Leibovici & Neoschil (1992); Nielsen & Lia (2023) (module references).
+    """
+    n, n_c = z.shape
+    d = K - 1.0
+    present = z > 0
+    j = np.where(present, d, -np.inf).argmax(axis=1)   # largest K present: the low pole −1/dⱼ
+    k = np.where(present, d, np.inf).argmin(axis=1)    # smallest K present: the high pole −1/dₖ
+    rows = np.arange(n)
+    dj, dk = d[rows, j], d[rows, k]
+    mid = -0.5 * (1.0 / dj + 1.0 / dk)
+    upper = np.sum(z * d / (1.0 + mid[:, None] * d), axis=1) > 0
+    p = np.where(upper, k, j)
+    dp = d[rows, p]
+    # tₚ at three quarters of the window from p's pole (≥ 3/4): past the middle, so a root on
+    # the middle itself stays inside the bracket whatever rounding does to g there
+    u_hi = 0.75 * (1.0 - dp / np.where(upper, dj, dk))
+    u_lo = np.minimum(np.where(upper, z[rows, p], K[rows, p] * z[rows, p]), 0.5 * u_hi)
+    offset = (dp[:, None] - d) / dp[:, None]
+    scale = d / dp[:, None]
+    weight = z * d
+
+    def g(u, i):
+        with np.errstate(divide="ignore", invalid="ignore"):   # u = 0 is the pole itself
+            return np.sum(weight[i] / (offset[i] + u[..., None] * scale[i]), axis=-1)
+
+    def slope(u, i):
+        return -np.sum(weight[i] * scale[i] / (offset[i] + u[..., None] * scale[i]) ** 2, axis=-1)
+
+    # g → ±∞ at u → 0; rounding can put u_lo a hair past the root when the root sits on the bound
+    sign_at_pole = np.where(upper, -1.0, 1.0)
+    u_lo = _keep_sign(g, rows, u_lo, np.zeros(n), sign_at_pole)
+    # Solved in ln u: the root can be hundreds of decades closer to the pole than u_hi (a trace
+    # component), where halving u would take a thousand steps and halving ln u takes ten.
+    result = find_root(lambda s, i: g(np.exp(s), i), bracket=(np.log(u_lo), np.log(u_hi)), args=(rows,),
+                       xtol=rtol, rtol=_EPS, maxiter=maxiter, trace=False)
+    ok = np.asarray(result.converged)
+    u = _polish(g, slope, rows, np.where(ok, np.exp(result.root), np.nan), u_lo, u_hi)
+    t = offset + u[:, None] * scale
+    t[rows, p] = u
+    beta = (u - 1.0) / dp
+    # which side of [0, 1] the root lies on, from the sign of g at 0 and 1 (g falls in β)
+    g0, g1 = np.sum(z * d, axis=1), np.sum(z * d / K, axis=1)
+    side = np.where(g0 <= 0, BELOW_ZERO, np.where(g1 >= 0, ABOVE_ONE, TWO_PHASE))
+    return beta, t, result.iterations, ok, side
+
+
+
+def _polish(g, slope, rows, u, lo, hi):
+    """One Newton step on u after the solve in ln u, kept only where it stays in the bracket
+    and lowers |g|: ln u carries |ln u| eps of relative error in u, Newton's step on u
+    itself brings it back to rounding."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        f = g(u, rows)
+        step = u - f / slope(u, rows)
+        better = np.isfinite(step) & (step > lo) & (step < hi)
+        better[better] = np.abs(g(step[better], rows[better])) < np.abs(f[better])
+    return np.where(better, step, u)
+
+
+def _keep_sign(g, rows, end, pole, sign):
+    """Move a bracket end towards its pole until g has there the sign it has at the pole.
+
+    The physical bounds enclose the root exactly; rounding can put one a hair past it
+    when the root sits on it. Halving the distance to the pole, where g goes to ±∞,
+    restores the sign; g stays monotone on the way.
     """
     end = end.copy()
-    for _ in range(64):
-        wrong = sign * g(end, rows) < 0
+    for _ in range(1100):   # enough halvings to reach the smallest subnormal from 1
+        wrong = ~(sign * g(end, rows) > 0)
         if not wrong.any():
             break
         end[wrong] = 0.5 * (end[wrong] + pole[wrong])
