@@ -205,7 +205,7 @@ def test_function_helper_matches_the_written_out_sum():
 def test_bad_input():
     with pytest.raises(InputError, match=r"do not broadcast"):
         rachford_rice([0.5, 0.5], [1.0, 2.0, 3.0])
-    with pytest.raises(InputError, match=r"K must be >= 0.*-1\.0"):
+    with pytest.raises(InputError, match=r"K must be >= 0.*got -1\.0\."):
         rachford_rice([0.5, 0.5], [-1.0, 2.0])
     with pytest.raises(InputError, match=r"last axis"):
         rachford_rice(0.5, [1.0, 2.0])
