@@ -148,6 +148,18 @@ def test_repr_and_html_show_the_composition():
         assert needle in page
 
 
+def test_with_fractions_keeps_the_components():
+    gas = Mixture(GAS)
+    liquid = gas.with_fractions([0.1, 0.2, 0.3, 0.4])
+    assert liquid.fluids == gas.fluids
+    np.testing.assert_array_equal(liquid.z, [0.1, 0.2, 0.3, 0.4])
+    assert gas.with_fractions([1, 1, 1, 1], normalize=True).z[2] == pytest.approx(0.25, rel=1e-15)
+    with pytest.raises(InputError, match=r"shape \(2,\); this mixture has 4 components"):
+        gas.with_fractions([0.5, 0.5])
+    with pytest.raises(InputError, match=r"sum to 1\.1"):
+        gas.with_fractions([0.5, 0.2, 0.2, 0.2])
+
+
 def test_index_finds_a_component_by_any_alias():
     mix = Mixture({"methane": 0.9, "CO2": 0.1})
     assert mix.index("carbon dioxide") == 1 and mix.index(tr.get_fluid("R744")) == 1

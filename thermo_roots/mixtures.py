@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import html
 import math
-import numbers
 import re
 from collections.abc import Mapping
 from dataclasses import dataclass
@@ -17,14 +16,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from .errors import InputError, UnknownFluidError, WrongTypeError
-from .fluids import Fluid, as_fluid, display_name
+from .fluids import Fluid, _is_real_number as _real, as_fluid, display_name
 
 #: Largest accepted distance of the sum of mole fractions from 1 (without ``normalize=True``).
 SUM_TOLERANCE = 1e-9
-
-
-def _real(value) -> bool:
-    return isinstance(value, numbers.Real) and not isinstance(value, (bool, np.bool_))
 
 
 def _component(entry, who: str) -> Fluid:
@@ -234,6 +229,22 @@ class Mixture:
     def molar_mass(self) -> float:
         """The mixture's molar mass, Σ zᵢ Mᵢ [kg/mol]."""
         return math.fsum(z * f.molar_mass for z, f in zip(self.fractions, self.fluids))
+
+    def with_fractions(self, z, normalize: bool = False) -> "Mixture":
+        """The same components with other mole fractions (a phase's x or y, a trial phase).
+
+        Parameters
+        ----------
+        z : array_like, shape (n_components,)
+            Mole fractions [-] in this mixture's component order.
+        normalize : bool
+            As for :class:`Mixture`.
+        """
+        values = np.asarray(z, dtype=float)
+        if values.shape != (len(self),):
+            raise InputError(f"Mixture.with_fractions: z has shape {values.shape}; this mixture has {len(self)} "
+                             f"components ({', '.join(self.names)}), so give {len(self)} mole fractions.")
+        return Mixture(list(zip(self.fluids, values.tolist())), normalize=normalize)
 
     def index(self, component) -> int:
         """Position of a component given by name (any library alias) or Fluid."""

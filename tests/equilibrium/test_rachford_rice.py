@@ -107,6 +107,14 @@ def test_binary_closed_form():
     np.testing.assert_allclose(r.beta, expected, rtol=1e-10, atol=1e-12)
 
 
+def test_a_component_that_does_not_vaporise():
+    # K = 0 puts the high pole at beta = 1; binary closed form beta = -(z1 a1 + z2 a2)/(a1 a2) = 0.2.
+    r = rachford_rice([0.6, 0.4], [2.0, 0.0])
+    assert r.status == TWO_PHASE and r.beta == pytest.approx(0.2, rel=1e-14)
+    np.testing.assert_allclose(r.x, [0.5, 0.5], rtol=1e-14)
+    np.testing.assert_allclose(r.y, [1.0, 0.0], rtol=1e-14, atol=0)
+
+
 def test_symmetric_feed():
     # z = (1/2, 1/2), K = (k, 1/k): g(1/2) = 0 for every k by symmetry (common practice).
     k = np.array([1.01, 2.0, 10.0, 1e3])

@@ -13,11 +13,13 @@ taken from the physics of that root: xᵢ ≤ 1 and yᵢ ≤ 1 give
 
     max over Kᵢ > 1 of (Kᵢ zᵢ − 1)/(Kᵢ − 1)  ≤  β  ≤  min over Kᵢ < 1 of (1 − zᵢ)/(1 − Kᵢ),
 
-two ends strictly inside the window where g is finite; the root is found between them by
-bracketed root finding (Chandrupatla's method, :func:`thermo_roots.find_root`). The unknown
-actually solved for is the distance to the nearer pole, u = 1 + β (Kₚ − 1) of the component
-p whose pole it is (in ln u), so that x and y keep their digits when the root lies next to a
-pole (a nearly pure feed, a trace component, a negative flash far out); see ``_solve``.
+two ends strictly inside the window where g is finite. The sign of g at the middle of the
+window tells which half holds the root; the root is then found by bracketed root finding
+(Chandrupatla's method, :func:`thermo_roots.find_root`) between the bound on that side and
+a point past the middle. The unknown actually solved for is the distance to the nearer
+pole, u = 1 + β (Kₚ − 1) of the component p whose pole it is (in ln u), so that x and y
+keep their digits when the root lies next to a pole (a nearly pure feed, a trace
+component, a negative flash far out); see ``_solve``.
 
 References
 ----------
@@ -53,8 +55,9 @@ ALL_K_ABOVE = "all K >= 1"         # no root at all: g(β) > 0 everywhere (vapor
 ALL_K_BELOW = "all K <= 1"         # no root at all: g(β) < 0 everywhere (liquid for these K)
 ALL_K_ONE = "all K = 1"            # g ≡ 0: the trivial solution, β undetermined
 NOT_SOLVED = "not solved"          # NaN or infinite input, or the root finder failed
-_EPS = float(np.finfo(float).eps)
 STATUSES = (TWO_PHASE, BELOW_ZERO, ABOVE_ONE, ALL_K_ABOVE, ALL_K_BELOW, ALL_K_ONE, NOT_SOLVED)
+
+_EPS = float(np.finfo(float).eps)
 
 
 def rachford_rice_function(beta, z, K):
@@ -163,7 +166,7 @@ def rachford_rice(z, K, negative_flash: bool = False, rtol: float = 4 * _EPS, ma
     References
     ----------
     See the module: Rachford & Rice (1952), Whitson & Michelsen (1989), Leibovici &
-    Neoschil (1992), Michelsen & Mollerup (2007) ch. 10.
+    Neoschil (1992), Nielsen & Lia (2023), Michelsen & Mollerup (2007) ch. 10.
 
     Examples
     --------
@@ -227,7 +230,6 @@ def rachford_rice(z, K, negative_flash: bool = False, rtol: float = 4 * _EPS, ma
                         iterations.reshape(shape), bool(negative_flash))
 
 
-
 def _solve(z, K, rtol, maxiter):
     """β for states that have a root (a component present with K > 1 and one with K < 1).
 
@@ -280,10 +282,10 @@ def _solve(z, K, rtol, maxiter):
     t[rows, p] = u
     beta = (u - 1.0) / dp
     # which side of [0, 1] the root lies on, from the sign of g at 0 and 1 (g falls in β)
-    g0, g1 = np.sum(z * d, axis=1), np.sum(z * d / K, axis=1)
+    with np.errstate(divide="ignore"):   # K = 0 (a component that does not vaporise): g(1) = -inf
+        g0, g1 = np.sum(z * d, axis=1), np.sum(z * d / K, axis=1)
     side = np.where(g0 <= 0, BELOW_ZERO, np.where(g1 >= 0, ABOVE_ONE, TWO_PHASE))
     return beta, t, result.iterations, ok, side
-
 
 
 def _polish(g, slope, rows, u, lo, hi):
