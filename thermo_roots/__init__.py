@@ -1,14 +1,15 @@
 """thermo_roots: state points of real fluids from cubic equations of state, with every root
 shown, the convergence visible, and the answer checked against a reference equation.
 
-Layers (each imports only from those above it): roots, fluids, models, units, inversion,
-reference, sweeps and accuracy, plots, widgets.
+Layers (each imports only from those above it): roots, fluids and mixtures, models, units,
+inversion, equilibrium, reference, sweeps and accuracy, plots, widgets.
 """
 
 from .errors import (ConvergenceError, DomainError, InputError, ThermoRootsError, UnknownFluidError,
                      WrongTypeError)
 from .roots import find_root
 from .fluids import Fluid, fluid_names, get_fluid
+from .mixtures import Mixture
 from .models import (MODELS, R, CubicFamily, CubicModel, IdealGas, Model, PengRobinson, PengRobinson78,
                      RedlichKwong, SoaveRedlichKwong, VanDerWaals)
 from .units import to_si
@@ -41,7 +42,7 @@ __version__ = "0.1.0"
 
 __all__ = [
     "CAUTION", "ConvergenceError", "CubicFamily", "CubicModel", "DomainError", "Fluid", "IdealGas", "Model",
-    "InputError", "MODELS", "PengRobinson", "PengRobinson78", "R", "RedlichKwong", "Root", "Saturation",
+    "InputError", "MODELS", "Mixture", "PengRobinson", "PengRobinson78", "R", "RedlichKwong", "Root", "Saturation",
     "SoaveRedlichKwong", "State", "ThermoRootsError", "UnknownFluidError", "VanDerWaals", "WrongTypeError", "find_root",
     "fluid_names", "get_fluid", "saturation", "solve", "to_si", "volume_roots", "__version__",
     "AccuracyMap", "CrossCheck", "ReferenceSaturation", "ReferenceState", "accuracy_map", "between",

@@ -1,0 +1,409 @@
+"""Layer 2 (beside fluids): the :class:`Mixture` value and binary interaction parameters.
+
+A mixture is a tuple of :class:`~thermo_roots.fluids.Fluid` values with their mole
+fractions. It knows nothing about equations of state: the mixing rules that turn it into a
+model, and the phase equilibrium, live in the layers below (``models``, ``equilibrium``).
+"""
+
+from __future__ import annotations
+
+import html
+import math
+import re
+from collections.abc import Mapping
+from dataclasses import dataclass
+
+import numpy as np
+
+from .errors import InputError, UnknownFluidError, WrongTypeError
+from .fluids import Fluid, _is_real_number as _real, as_fluid, display_name
+
+#: Largest accepted distance of the sum of mole fractions from 1 (without ``normalize=True``).
+SUM_TOLERANCE = 1e-9
+
+
+def _component(entry, who: str) -> Fluid:
+    """A Fluid from a library name or a Fluid; unknown names keep get_fluid's close matches."""
+    if isinstance(entry, str):
+        try:
+            return as_fluid(entry, who)
+        except UnknownFluidError as err:
+            raise UnknownFluidError(f"{who}: {err}", err.suggestions) from None
+    if isinstance(entry, Fluid):
+        return entry
+    raise WrongTypeError(f"{who}: a component must be a library fluid's name (e.g. 'methane', 'CO2') or a "
+                         f"Fluid; got {entry!r} ({type(entry).__name__}).")
+
+
+def _identity(fluid: Fluid):
+    """What makes two components the same fluid: the library entry, or the custom Fluid itself."""
+    return ("library", fluid.library_name) if fluid.library_name is not None else ("custom", fluid)
+
+
+def _pairs(composition, who: str) -> list[tuple[object, object]]:
+    if isinstance(composition, Mixture):
+        return list(zip(composition.fluids, composition.z.tolist()))
+    if isinstance(composition, Mapping):
+        return list(composition.items())
+    if isinstance(composition, str):
+        raise WrongTypeError(f"{who}: for a composition written as text use Mixture.from_text({composition!r}).")
+    try:
+        items = list(composition)
+    except TypeError:
+        raise WrongTypeError(f"{who}: the composition must be a mapping {{name: mole fraction}} or a list of "
+                             f"(name, mole fraction) pairs; got {composition!r} "
+                             f"({type(composition).__name__}).") from None
+    for item in items:
+        if isinstance(item, str) or not (hasattr(item, "__len__") and len(item) == 2):
+            raise WrongTypeError(f"{who}: each entry of a list composition must be a (name, mole fraction) "
+                                 f"pair, e.g. [('methane', 0.9), ('ethane', 0.1)]; got {item!r}.")
+    return [tuple(item) for item in items]
+
+
+@dataclass(frozen=True, init=False, eq=True)
+class Mixture:
+    """A mixture of fluids with its composition in mole fractions.
+
+    Parameters
+    ----------
+    composition : mapping, sequence of pairs, or Mixture
+        ``{"methane": 0.85, "ethane": 0.08, ...}`` or ``[("methane", 0.85), ...]``: library
+        names (as :func:`~thermo_roots.get_fluid` takes them) or :class:`Fluid` values, each
+        with its mole fraction [-]. The order given is the component order of every array.
+    normalize : bool
+        Divide the fractions by their sum. Without it the sum must be 1 within
+        :data:`SUM_TOLERANCE` (1e-9).
+
+    Attributes
+    ----------
+    fluids : tuple of Fluid
+        The components.
+    fractions : tuple of float
+        The mole fractions [-] as stored (a hashable twin of :attr:`z`).
+
+    Raises
+    ------
+    InputError
+        A fraction that is negative, NaN or infinite; all fractions zero; a sum away
+        from 1 without ``normalize=True``; the same fluid twice (e.g. "CO2" and
+        "carbon dioxide"); no components.
+    UnknownFluidError
+        A name that is not in the fluid library (with close matches).
+    WrongTypeError
+        A composition that is not a mapping or a list of pairs, or a fraction that is
+        not a number.
+
+    Examples
+    --------
+    >>> gas = Mixture({"methane": 0.9, "ethane": 0.07, "propane": 0.03})
+    >>> gas.names
+    ('methane', 'ethane', 'propane')
+    """
+
+    fluids: tuple
+    fractions: tuple
+
+    def __init__(self, composition, normalize: bool = False):
+        who = "Mixture(composition)"
+        if not isinstance(normalize, (bool, np.bool_)):
+            raise WrongTypeError(f"Mixture: normalize must be True or False, not {normalize!r}.")
+        pairs = _pairs(composition, who)
+        if not pairs:
+            raise InputError(f"{who}: no components given; give at least one, e.g. {{'methane': 1.0}}.")
+        fluids, fractions, seen = [], [], {}
+        for entry, fraction in pairs:
+            fluid = _component(entry, who)
+            label = entry if isinstance(entry, str) else fluid.name
+            if not _real(fraction):
+                raise WrongTypeError(f"{who}: the mole fraction of {label!r} must be a number, not {fraction!r} "
+                                     f"({type(fraction).__name__}).")
+            fraction = float(fraction)
+            if not math.isfinite(fraction) or fraction < 0:
+                raise InputError(f"{who}: the mole fraction of {label!r} is {fraction!r}; mole fractions must be "
+                                 "finite and >= 0.")
+            key = _identity(fluid)
+            if key in seen:
+                raise InputError(f"{who}: {label!r} and {seen[key]!r} are the same fluid ({fluid.name}); give it "
+                                 "once, with the sum of its fractions.")
+            seen[key] = label
+            fluids.append(fluid)
+            fractions.append(fraction)
+        total = math.fsum(fractions)
+        if total == 0:
+            raise InputError(f"{who}: every mole fraction is 0; at least one must be positive.")
+        if normalize:
+            fractions = [f / total for f in fractions]
+        elif abs(total - 1.0) > SUM_TOLERANCE:
+            percent = " (they look like mol %: divide by 100, or write them with a % sign in Mixture.from_text)" \
+                if abs(total - 100.0) < 1e-6 else ""
+            raise InputError(f"{who}: the mole fractions sum to {total:.12g}, not 1 (allowed: within "
+                             f"{SUM_TOLERANCE:g}){percent}. Pass normalize=True to divide them by their sum.")
+        object.__setattr__(self, "fluids", tuple(fluids))
+        object.__setattr__(self, "fractions", tuple(fractions))
+
+    @classmethod
+    def from_text(cls, text: str, normalize: bool = False) -> "Mixture":
+        """Read a pasted composition: ``"methane 0.85, ethane 0.08, propane 0.07"``.
+
+        Entries are separated by commas, semicolons or new lines; each is a fluid name
+        and a number, optionally with ``:`` or ``=`` between them. Percentages carry a %
+        sign (``"methane: 85 %"``, ``"ethane 8 mol %"``); then every entry needs one.
+
+        Parameters
+        ----------
+        text : str
+            The composition.
+        normalize : bool
+            As for :class:`Mixture`.
+
+        Raises
+        ------
+        InputError
+            Entries that could not be read, each quoted, with the form expected.
+        """
+        if not isinstance(text, str):
+            raise WrongTypeError(f"Mixture.from_text needs text, e.g. 'methane 0.9, ethane 0.1'; got {text!r}.")
+        entries = [e.strip() for e in re.split(r"[,;\n]", text) if e.strip()]
+        pattern = re.compile(r"^(?P<name>.*?\S)(?:\s*[:=]\s*|\s+)(?P<value>[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)"
+                             r"\s*(?P<percent>(?:mol\s*)?%)?$", re.IGNORECASE)
+        pairs, bad, percent = [], [], []
+        for entry in entries:
+            match = pattern.match(entry)
+            if match is None:
+                bad.append(entry)
+                continue
+            pairs.append((match["name"].strip(), float(match["value"])))
+            percent.append(match["percent"] is not None)
+        if bad or not pairs:
+            what = ", ".join(repr(b) for b in bad) if bad else "nothing"
+            raise InputError(f"Mixture.from_text: could not read {what} in {text!r}. Write each component as a "
+                             "name and a mole fraction, e.g. 'methane 0.85, ethane 0.08, propane 0.07', or with a "
+                             "% sign, e.g. 'methane: 85 %, ethane: 15 %' (decimal point, not comma).")
+        if any(percent) and not all(percent):
+            mixed = ", ".join(repr(e) for e, p in zip(entries, percent) if not p)
+            raise InputError(f"Mixture.from_text: some entries have a % sign and {mixed} not; write every "
+                             "fraction as a percentage or every one as a fraction.")
+        if all(percent):
+            pairs = [(name, value / 100.0) for name, value in pairs]
+        return cls(pairs, normalize=normalize)
+
+    # --- views -------------------------------------------------------------------------
+    @property
+    def z(self) -> np.ndarray:
+        """Mole fractions [-], in component order (a new read-only array)."""
+        out = np.array(self.fractions, dtype=float)
+        out.flags.writeable = False
+        return out
+
+    @property
+    def names(self) -> tuple:
+        """The components' names as shown in results."""
+        return tuple(f.name for f in self.fluids)
+
+    def _constant(self, label: str) -> np.ndarray:
+        out = np.array([getattr(f, label) for f in self.fluids], dtype=float)
+        out.flags.writeable = False
+        return out
+
+    @property
+    def Tc(self) -> np.ndarray:
+        """Critical temperatures of the components [K]."""
+        return self._constant("Tc")
+
+    @property
+    def Pc(self) -> np.ndarray:
+        """Critical pressures of the components [Pa]."""
+        return self._constant("Pc")
+
+    @property
+    def omega(self) -> np.ndarray:
+        """Acentric factors of the components [-]."""
+        return self._constant("omega")
+
+    @property
+    def molar_masses(self) -> np.ndarray:
+        """Molar masses of the components [kg/mol]."""
+        return self._constant("molar_mass")
+
+    @property
+    def molar_mass(self) -> float:
+        """The mixture's molar mass, Σ zᵢ Mᵢ [kg/mol]."""
+        return math.fsum(z * f.molar_mass for z, f in zip(self.fractions, self.fluids))
+
+    def with_fractions(self, z, normalize: bool = False) -> "Mixture":
+        """The same components with other mole fractions (a phase's x or y, a trial phase).
+
+        Parameters
+        ----------
+        z : array_like, shape (n_components,)
+            Mole fractions [-] in this mixture's component order.
+        normalize : bool
+            As for :class:`Mixture`.
+        """
+        values = np.asarray(z, dtype=float)
+        if values.shape != (len(self),):
+            raise InputError(f"Mixture.with_fractions: z has shape {values.shape}; this mixture has {len(self)} "
+                             f"components ({', '.join(self.names)}), so give {len(self)} mole fractions.")
+        return Mixture(list(zip(self.fluids, values.tolist())), normalize=normalize)
+
+    def index(self, component) -> int:
+        """Position of a component given by name (any library alias) or Fluid."""
+        fluid = _component(component, "Mixture.index")
+        key = _identity(fluid)
+        for i, f in enumerate(self.fluids):
+            if _identity(f) == key:
+                return i
+        raise InputError(f"Mixture.index: {component!r} is not a component of this mixture; its components are "
+                         f"{', '.join(self.names)}.")
+
+    def __len__(self) -> int:
+        return len(self.fluids)
+
+    def __repr__(self) -> str:
+        body = ", ".join(f"{n!r}: {z:.6g}" for n, z in zip(self.names, self.fractions))
+        return f"Mixture({{{body}}})"
+
+    def _repr_html_(self) -> str:
+        head = ("<tr><th>component</th><th>mole fraction</th><th>Tc [K]</th><th>Pc [MPa]</th>"
+                "<th>ω</th><th>M [g/mol]</th></tr>")
+        rows = "".join(
+            f"<tr><td style='text-align:left'>{html.escape(f.name)}</td><td>{z:.6g}</td><td>{f.Tc:.6g}</td>"
+            f"<td>{f.Pc / 1e6:.6g}</td><td>{f.omega:.4g}</td><td>{f.molar_mass * 1e3:.6g}</td></tr>"
+            for f, z in zip(self.fluids, self.fractions))
+        caption = f"Mixture of {len(self)} components, M = {self.molar_mass * 1e3:.6g} g/mol"
+        return f"<table><caption>{caption}</caption>{head}{rows}</table>"
+
+
+@dataclass(frozen=True, init=False)
+class BinaryParameters:
+    """Binary interaction parameters kᵢⱼ of a cubic's mixing rule, as a value.
+
+    Parameters
+    ----------
+    pairs : mapping of (component, component) -> float, optional
+        ``{("methane", "CO2"): 0.10, ...}``: components by library name (any alias: "CO2"
+        and "carbon dioxide" are one fluid) or :class:`Fluid`; the order inside a pair
+        does not matter. Pairs not given have kᵢⱼ = 0.
+
+    Attributes
+    ----------
+    values : tuple of (key, key, float)
+        The nonzero-or-given pairs in a canonical order (hashable).
+
+    Notes
+    -----
+    kᵢⱼ enters the van der Waals one-fluid rule a = ΣΣ xᵢxⱼ√(aᵢaⱼ)(1 − kᵢⱼ); kᵢᵢ = 0 and
+    kᵢⱼ = kⱼᵢ. Values with |k| ≥ 1 are refused: 1 − kᵢⱼ would remove or reverse the pair's
+    attraction (published kᵢⱼ of cubics are within about ±0.2, common practice).
+
+    References
+    ----------
+    Michelsen, M. L., Mollerup, J. M., *Thermodynamic Models: Fundamentals and
+    Computational Aspects*, 2nd ed., Tie-Line Publications, 2007, ch. 3 (classical mixing rules).
+    """
+
+    values: tuple
+
+    def __init__(self, pairs=None):
+        who = "BinaryParameters(pairs)"
+        pairs = {} if pairs is None else pairs
+        if not isinstance(pairs, Mapping):
+            raise WrongTypeError(f"{who}: give a mapping {{('methane', 'CO2'): 0.10, ...}}, or use "
+                                 f"BinaryParameters.from_matrix(matrix, mixture); got {pairs!r}.")
+        table, labels = {}, {}
+        for pair, k in pairs.items():
+            if isinstance(pair, str) or not (isinstance(pair, tuple) and len(pair) == 2):
+                raise WrongTypeError(f"{who}: each key must be a pair of components, e.g. ('methane', 'CO2'); "
+                                     f"got {pair!r}.")
+            a, b = (_component(p, who) for p in pair)
+            ka, kb = _identity(a), _identity(b)
+            if ka == kb:
+                raise InputError(f"{who}: the pair {pair!r} names one fluid twice; kᵢᵢ is 0 by definition.")
+            _check_k(k, f"{who}: k for {pair!r}")
+            key = frozenset((ka, kb))
+            if key in table and table[key] != float(k):
+                raise InputError(f"{who}: the pair {pair!r} is given twice with different values "
+                                 f"({labels[key]!r}: {table[key]:g}, {pair!r}: {float(k):g}).")
+            table[key], labels[key] = float(k), pair
+        entries = []
+        for key, k in table.items():
+            a, b = sorted(key, key=repr)
+            entries.append((a, b, k))
+        object.__setattr__(self, "values", tuple(sorted(entries, key=repr)))
+
+    @classmethod
+    def from_matrix(cls, matrix, components) -> "BinaryParameters":
+        """From a symmetric matrix kᵢⱼ in the order of ``components`` (a Mixture or a list of names/Fluids).
+
+        The diagonal must be 0, the matrix symmetric (within 1e-12), finite and |kᵢⱼ| < 1.
+        """
+        who = "BinaryParameters.from_matrix"
+        names = list(components.fluids) if isinstance(components, Mixture) else list(components)
+        try:
+            k = np.asarray(matrix, dtype=float)
+        except (TypeError, ValueError):
+            raise WrongTypeError(f"{who}: the matrix must be numbers, an n x n array; got {matrix!r}.") from None
+        n = len(names)
+        if k.shape != (n, n):
+            raise InputError(f"{who}: the matrix has shape {k.shape}; with {n} components it must be ({n}, {n}).")
+        if not np.isfinite(k).all():
+            i, j = np.argwhere(~np.isfinite(k))[0]
+            raise InputError(f"{who}: k[{i}, {j}] = {float(k[i, j])!r} is not finite; every kᵢⱼ must be a "
+                             "finite number.")
+        if np.any(np.diag(k) != 0):
+            i = int(np.flatnonzero(np.diag(k) != 0)[0])
+            raise InputError(f"{who}: the diagonal must be 0 (kᵢᵢ = 0 by definition); k[{i}, {i}] = {k[i, i]:g}.")
+        if not np.allclose(k, k.T, rtol=0, atol=1e-12):
+            i, j = np.argwhere(np.abs(k - k.T) > 1e-12)[0]
+            raise InputError(f"{who}: the matrix must be symmetric; k[{i}, {j}] = {k[i, j]:g} but "
+                             f"k[{j}, {i}] = {k[j, i]:g}.")
+        pairs = {(names[i], names[j]): float(k[i, j]) for i in range(n) for j in range(i + 1, n) if k[i, j] != 0}
+        return cls(pairs)
+
+    def matrix(self, mixture: Mixture) -> np.ndarray:
+        """The kᵢⱼ matrix in the mixture's component order (0 where not given) [-].
+
+        Raises
+        ------
+        InputError
+            A given pair names a fluid that is not a component of ``mixture``.
+        """
+        if not isinstance(mixture, Mixture):
+            raise WrongTypeError(f"BinaryParameters.matrix needs a Mixture, not {mixture!r}.")
+        position = {_identity(f): i for i, f in enumerate(mixture.fluids)}
+        missing = sorted({_label(key) for a, b, _ in self.values for key in (a, b) if key not in position})
+        if missing:
+            raise InputError(f"BinaryParameters.matrix: {', '.join(missing)} "
+                             f"{'is' if len(missing) == 1 else 'are'} not in the mixture (its components: "
+                             f"{', '.join(mixture.names)}); drop those pairs or add the components.")
+        out = np.zeros((len(mixture), len(mixture)))
+        for a, b, k in self.values:
+            i, j = position[a], position[b]
+            out[i, j] = out[j, i] = k
+        out.flags.writeable = False
+        return out
+
+    def __repr__(self) -> str:
+        body = ", ".join(f"({_label(a)!r}, {_label(b)!r}): {k:g}" for a, b, k in self.values)
+        return f"BinaryParameters({{{body}}})"
+
+    def _repr_html_(self) -> str:
+        rows = "".join(f"<tr><td>{html.escape(_label(a))}</td><td>{html.escape(_label(b))}</td><td>{k:.6g}</td></tr>"
+                       for a, b, k in self.values)
+        return ("<table><caption>Binary interaction parameters (0 for pairs not listed)</caption>"
+                f"<tr><th>component</th><th>component</th><th>kᵢⱼ</th></tr>{rows}</table>")
+
+
+def _check_k(k, who: str) -> None:
+    if not _real(k):
+        raise WrongTypeError(f"{who} must be a number, not {k!r} ({type(k).__name__}).")
+    if not (math.isfinite(k) and abs(k) < 1):
+        raise InputError(f"{who} is {k!r}; a binary interaction parameter must be finite with |k| < 1 "
+                         "(typical values are within ±0.2).")
+
+
+def _label(key) -> str:
+    kind, what = key
+    if kind == "library":
+        return display_name(what)
+    return what.name
