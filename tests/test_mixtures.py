@@ -227,3 +227,12 @@ def test_binary_parameters_repr():
     k = BinaryParameters({("methane", "CO2"): 0.1})
     assert repr(k) == "BinaryParameters({('carbon dioxide', 'methane'): 0.1})"
     assert "kᵢⱼ" in k._repr_html_() and "0.1" in k._repr_html_()
+
+
+def test_a_model_of_a_mixture_is_refused_with_what_exists_today():
+    # the mixture equations of state come with the flash (issue 10); until then a clear refusal
+    gas = tr.Mixture({"methane": 0.9, "ethane": 0.1})
+    with pytest.raises(tr.InputError, match="not built yet"):
+        tr.PengRobinson(gas)
+    with pytest.raises(tr.InputError, match="one pure fluid"):
+        tr.IdealGas(gas)

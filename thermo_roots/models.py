@@ -431,7 +431,7 @@ class IdealGas(Model):
     v_c = 0.0                # no liquid branch: below Tc every volume reads as vapor
 
     def __init__(self, fluid: Fluid | str):
-        self.fluid = as_fluid(fluid, f"{type(self).__name__}(fluid)")
+        self.fluid = _pure_fluid(fluid, f"{type(self).__name__}(fluid)")
 
     def pressure(self, T, v):
         """Pressure [Pa] at T [K] and v [m^3/mol]."""
@@ -510,7 +510,7 @@ class CubicModel(Model):
 
     def __init__(self, fluid: Fluid, family: CubicFamily | None = None, volume_shift=0.0,
                  reference_state: str = "reference"):
-        fluid = self.fluid = as_fluid(fluid, f"{type(self).__name__}(fluid)")
+        fluid = self.fluid = _pure_fluid(fluid, f"{type(self).__name__}(fluid)")
         self.reference_state = _reference_state(reference_state)
         if family is not None:
             self.family = family
@@ -762,6 +762,19 @@ def peneloux_shift(family: CubicFamily, fluid: Fluid) -> float:
 #: Model classes by their short name, for panels and command lines.
 MODELS = {cls.short_name: cls for cls in
           (IdealGas, VanDerWaals, RedlichKwong, SoaveRedlichKwong, PengRobinson, PengRobinson78)}
+
+
+def _pure_fluid(fluid, caller) -> Fluid:
+    """The one pure fluid a model describes; a Mixture is refused with what exists today."""
+    from .mixtures import Mixture
+
+    if isinstance(fluid, Mixture):
+        from .errors import InputError
+
+        raise InputError(f"{caller} takes one pure fluid; got a mixture of {len(fluid)} components. The equations "
+                         "of state for mixtures are not built yet (thermo_roots.equilibrium has the Rachford-Rice "
+                         "split and Wilson K-values only); give one fluid, e.g. 'methane'.")
+    return as_fluid(fluid, caller)
 
 
 def _scalar_or_array(x):
