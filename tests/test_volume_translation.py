@@ -50,3 +50,17 @@ def test_bad_shift_options():
         tr.PengRobinson(f, volume_shift="rackett")
     with pytest.raises(tr.InputError, match="SRK and PR"):
         tr.VanDerWaals(f, volume_shift="peneloux")
+    with pytest.raises(tr.InputError, match="SRK and PR"):
+        tr.RedlichKwong(f, volume_shift="peneloux")   # same deltas as SRK, but no correlation for it
+
+
+def test_the_peneloux_constants_are_the_published_ones():
+    # Peneloux, Rauzy & Freze (1982) for SRK, c = 0.40768 (R Tc/Pc)(0.29441 - Z_RA), with
+    # Z_RA = 0.29056 - 0.08775 omega (Yamada & Gunn 1973); the PR analogue 0.50033 and 0.25969
+    # (coefficients from memory, as in models.peneloux_shift)
+    f = tr.get_fluid("propane")
+    z_ra = 0.29056 - 0.08775 * f.omega
+    scale = tr.R * f.Tc / f.Pc
+    assert tr.SoaveRedlichKwong(f, volume_shift="peneloux").c == pytest.approx(0.40768 * scale * (0.29441 - z_ra), rel=1e-14)
+    for cls in (tr.PengRobinson, tr.PengRobinson78):
+        assert cls(f, volume_shift="peneloux").c == pytest.approx(0.50033 * scale * (0.25969 - z_ra), rel=1e-14)

@@ -160,6 +160,8 @@ class CubicFamily:
     ``compiled_alpha``: (code, slope(omega)) when ``alpha`` is one of the formulas the
     compiled loops know (``ALPHA_CONSTANT``, ``ALPHA_REDLICH_KWONG``, ``ALPHA_SOAVE`` with
     its slope k(omega)); None (the default) keeps a family on the numpy path.
+    ``peneloux``: (k, Z_0) of the family's Peneloux volume translation,
+    c = k (R Tc/Pc)(Z_0 - Z_RA); None where the correlation is not given for the family.
     """
 
     name: str
@@ -168,6 +170,7 @@ class CubicFamily:
     alpha: Callable = field(repr=False)
     reference: str = field(default="", repr=False)
     compiled_alpha: tuple | None = field(default=None, repr=False)
+    peneloux: tuple | None = field(default=None, repr=False)
     omega_a: float = field(init=False)
     omega_b: float = field(init=False)
     Zc: float = field(init=False)
@@ -198,13 +201,14 @@ VDW = CubicFamily("van der Waals", 0.0, 0.0, _alpha_constant,
 RK = CubicFamily("Redlich-Kwong", 1.0, 0.0, _alpha_redlich_kwong,
                  "Redlich, O. & Kwong, J. N. S. (1949), Chem. Rev. 44, 233-244.", (ALPHA_REDLICH_KWONG, None))
 SRK = CubicFamily("Soave-Redlich-Kwong", 1.0, 0.0, _soave_alpha(_m_soave),
-                  "Soave, G. (1972), Chem. Eng. Sci. 27, 1197-1203.", (ALPHA_SOAVE, _m_soave))
+                  "Soave, G. (1972), Chem. Eng. Sci. 27, 1197-1203.", (ALPHA_SOAVE, _m_soave),
+                  peneloux=(0.40768, 0.29441))
 PR76 = CubicFamily("Peng-Robinson", 1.0 + SQRT2, 1.0 - SQRT2, _soave_alpha(_kappa_pr76),
                    "Peng, D.-Y. & Robinson, D. B. (1976), Ind. Eng. Chem. Fundam. 15, 59-64.",
-                   (ALPHA_SOAVE, _kappa_pr76))
+                   (ALPHA_SOAVE, _kappa_pr76), peneloux=(0.50033, 0.25969))
 PR78 = CubicFamily("Peng-Robinson 1978", 1.0 + SQRT2, 1.0 - SQRT2, _soave_alpha(_kappa_pr78),
                    "Robinson, D. B. & Peng, D.-Y. (1978), GPA Research Report RR-28.",
-                   (ALPHA_SOAVE, _kappa_pr78))
+                   (ALPHA_SOAVE, _kappa_pr78), peneloux=(0.50033, 0.25969))
 
 
 
@@ -748,15 +752,13 @@ def peneloux_shift(family: CubicFamily, fluid: Fluid) -> float:
     Peneloux, A., Rauzy, E. & Freze, R. (1982), Fluid Phase Equilib. 8, 7-23.
     Yamada, T. & Gunn, R. D. (1973), J. Chem. Eng. Data 18, 234-236.
     """
-    z_ra = 0.29056 - 0.08775 * fluid.omega
-    scale = R * fluid.Tc / fluid.Pc
-    if family.delta1 == 1.0 and family.delta2 == 0.0 and family is not RK:
-        return 0.40768 * scale * (0.29441 - z_ra)
-    if family.delta1 == 1.0 + SQRT2:
-        return 0.50033 * scale * (0.25969 - z_ra)
-    from .errors import InputError
+    if family.peneloux is None:
+        from .errors import InputError
 
-    raise InputError(f"The Peneloux correlation is given for SRK and PR, not {family.name}.")
+        raise InputError(f"The Peneloux correlation is given for SRK and PR, not {family.name}.")
+    k, z_0 = family.peneloux
+    z_ra = 0.29056 - 0.08775 * fluid.omega
+    return k * (R * fluid.Tc / fluid.Pc) * (z_0 - z_ra)
 
 
 #: Model classes by their short name, for panels and command lines.
