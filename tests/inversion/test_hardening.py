@@ -300,3 +300,18 @@ def test_a_convergence_error_carries_the_record_in_the_callers_shape(propane_pr,
     with pytest.raises(tr.ConvergenceError) as err:
         tr.solve(propane_pr, P=3e6, v=5e-3)
     assert err.value.result.is_scalar
+
+
+def test_an_implied_pressure_far_above_critical_is_flagged(propane_pr):
+    # common practice: a cubic is no guide at thousands of bar, and an entropy of the wrong size
+    # (J instead of kJ) or a slightly small liquid volume implies such pressures silently
+    Pc = propane_pr.fluid.Pc
+    wrong_unit = tr.solve(propane_pr, T=300.0, s=1e-3)
+    assert wrong_unit.P > 10 * Pc
+    assert any("times the critical pressure" in w and "bar" in w for w in wrong_unit.warnings)
+    sat = tr.solve(propane_pr, T=300.0, quality=0.0)
+    dense = tr.solve(propane_pr, T=300.0, v=[0.8 * sat.v, sat.v, 1e-2])
+    assert any("At 1 of 3 states" in w for w in dense.warnings)
+    # a pressure the user gave is the user's own: no such sentence
+    assert not any("critical pressure" in w for w in tr.solve(propane_pr, T=300.0, P=50 * Pc).warnings)
+    assert not any("critical pressure" in w for w in tr.solve(propane_pr, T=300.0, v=1e-2).warnings)

@@ -361,6 +361,8 @@ def _make_state(model, shape, knowns, problems, *, T, P, v, phase, roots, qualit
         warnings += (_second_temperature_warning(T_other, n_other, np.size(T_other), model),)
     P_other = shaped(P_other, float)
     warnings += tuple(notes)
+    if "P" not in knowns:
+        warnings += _far_pressure_warning(model, np.asarray(P, dtype=float) if bad is None else np.asarray(P, dtype=float)[~bad])
     return State(model, shaped(T, float), shaped(P, float), shaped(v, float), phase,
                  shaped(quality, float), shaped(v_liquid, float), shaped(v_vapor, float),
                  roots.reshape(shape + (3,)),
@@ -377,6 +379,28 @@ def _two_phase_note(phase):
         return ()
     return ("In the two-phase region cp, cv, speed of sound, Joule-Thomson coefficient and kappa_T have no "
             "single value: they are NaN there (h, s, u and g follow the lever rule).",)
+
+
+#: Beyond this many times the critical pressure an implied pressure is said to be suspect.
+FAR_PRESSURE_FACTOR = 10.0
+
+
+def _far_pressure_warning(model, P):
+    """A sentence where the pressure a state implies (P not given) lies far above Pc: a cubic
+    is no guide there, and the usual cause is a known in the wrong unit (a liquid is nearly
+    incompressible, so a slightly small v or an s of the wrong size means thousands of bar)."""
+    limit = FAR_PRESSURE_FACTOR * model.fluid.Pc
+    with np.errstate(invalid="ignore"):
+        far = P > limit
+    count = int(np.count_nonzero(far))
+    if not count:
+        return ()
+    advice = "far beyond where a cubic equation is any guide; check the knowns and their units."
+    if P.size == 1:
+        return (f"The pressure this state implies, {float(P.ravel()[0]) / 1e5:.6g} bar, is "
+                f"{float(P.ravel()[0]) / model.fluid.Pc:.3g} times the critical pressure: {advice}",)
+    return (f"At {count} of {P.size} states the pressure found is above {FAR_PRESSURE_FACTOR:g} times the critical "
+            f"pressure (up to {float(np.max(P[far])) / 1e5:.6g} bar): {advice}",)
 
 
 def _solid_warning(model, T):
