@@ -150,3 +150,23 @@ def _unit(name):
     from ..quantities import quantity, unit_label
 
     return unit_label(name, quantity(name).si_unit)
+
+
+def _energy_quote(model, name):
+    """value [J/mol or J/(mol K)] -> text on both bases in the units engineers read, per
+    kilogram first: for propane h = 25000 J/mol is "566.95 kJ/kg (25 kJ/mol)".
+
+    Messages about an energy quote its value and its limits this way, so that whichever
+    basis was typed ("250 kJ/kg", "18 kJ/mol", h_mass=...) is there as given, with the
+    limits in the same unit. The factors are worked out once per message set (no unit
+    library call per element).
+    """
+    from ..quantities import convert, unit_label
+
+    M, mass = model.fluid.molar_mass, f"{name}_mass"
+    per_kg, per_mol = convert(1.0, mass) / M, convert(1.0, name)
+    kg_label, mol_label = unit_label(mass), unit_label(name)
+
+    def quote(x):
+        return f"{x * per_kg:.6g} {kg_label} ({x * per_mol:.6g} {mol_label})"
+    return quote
