@@ -7,6 +7,8 @@ every element outside the model's domain flagged (with a reason) in a :class:`Pr
 
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 
 from ..errors import DomainError, InputError
@@ -158,15 +160,21 @@ def _energy_quote(model, name):
 
     Messages about an energy quote its value and its limits this way, so that whichever
     basis was typed ("250 kJ/kg", "18 kJ/mol", h_mass=...) is there as given, with the
-    limits in the same unit. The factors are worked out once per message set (no unit
-    library call per element).
+    limits in the same unit. Nothing is worked out until a message is written, and the unit
+    factors once per quantity (no unit library call per element or per solve).
     """
-    from ..quantities import convert, unit_label
-
-    M, mass = model.fluid.molar_mass, f"{name}_mass"
-    per_kg, per_mol = convert(1.0, mass) / M, convert(1.0, name)
-    kg_label, mol_label = unit_label(mass), unit_label(name)
+    M = model.fluid.molar_mass
 
     def quote(x):
-        return f"{x * per_kg:.6g} {kg_label} ({x * per_mol:.6g} {mol_label})"
+        (per_kg, kg_label), (per_mol, mol_label) = _display_factor(f"{name}_mass"), _display_factor(name)
+        return f"{x * per_kg / M:.6g} {kg_label} ({x * per_mol:.6g} {mol_label})"
     return quote
+
+
+@functools.lru_cache(maxsize=None)
+def _display_factor(name):
+    """(display value per SI value, display unit label) of a quantity whose units are
+    proportional (an energy, not a temperature): "h_mass" -> (0.001, "kJ/kg")."""
+    from ..quantities import convert, unit_label
+
+    return convert(1.0, name), unit_label(name)
