@@ -420,14 +420,14 @@ def _shaped_convergence(convergence, problems, shape):
 
     n = problems.reason.size
     root, converged = np.full(n, np.nan), np.ones(n, bool)
-    status = np.full(n, "not iterated", dtype=object)
+    status = np.full(n, "not iterated", dtype="<U15")   # status texts are at most 15 characters
     iterations, evaluations = np.zeros(n, int), np.zeros(n, int)
     root[covered], converged[covered] = result.root, result.converged
-    status[covered] = np.asarray(result.status, dtype=object)
+    status[covered] = np.asarray(result.status, dtype=str)
     iterations[covered], evaluations[covered] = result.iterations, result.evaluations
     converged[~problems.ok & (status == "not iterated")] = False
     return dataclasses.replace(result, root=root.reshape(shape), converged=converged.reshape(shape),
-                               status=status.astype(str).reshape(shape), iterations=iterations.reshape(shape),
+                               status=status.reshape(shape), iterations=iterations.reshape(shape),
                                evaluations=evaluations.reshape(shape), trace=None)
 
 
@@ -462,7 +462,7 @@ def _record_part(result, keep, covered):
         return result, covered
     pick = lambda x: np.atleast_1d(np.asarray(x))[keep]   # noqa: E731
     return dataclasses.replace(result, root=pick(result.root), converged=pick(result.converged),
-                               status=pick(np.asarray(result.status, dtype=object)).astype(str),
+                               status=pick(np.asarray(result.status, dtype=str)),
                                iterations=pick(result.iterations), evaluations=pick(result.evaluations),
                                trace=result.trace if keep.sum() == 1 else None), covered[keep]
 
@@ -481,19 +481,23 @@ def _joined_convergence(*records):
         return records[0] if records else None
     import dataclasses
 
-    covered = np.unique(np.concatenate([np.asarray(c, dtype=int) for _, c in records]))
+    indices = [np.asarray(c, dtype=np.intp) for _, c in records]
+    hit = np.zeros(1 + max(int(c.max(initial=-1)) for c in indices), bool)   # no sort: a mask over the indices
+    for c in indices:
+        hit[c] = True
+    covered, position = np.flatnonzero(hit), np.cumsum(hit) - 1
     n = covered.size
-    root, converged, status = np.full(n, np.nan), np.zeros(n, bool), np.full(n, "", dtype=object)
+    root, converged, status = np.full(n, np.nan), np.zeros(n, bool), np.full(n, "", dtype="<U15")
     iterations, evaluations, winner = np.zeros(n, int), np.zeros(n, int), np.full(n, -1)
-    for which, (result, c) in enumerate(records):
-        at = np.searchsorted(covered, np.asarray(c, dtype=int))
+    for which, ((result, _), c) in enumerate(zip(records, indices)):
+        at = position[c]
         root[at], converged[at] = np.atleast_1d(result.root), np.atleast_1d(result.converged)
-        status[at] = np.atleast_1d(np.asarray(result.status, dtype=object))
+        status[at] = np.atleast_1d(np.asarray(result.status, dtype=str))
         iterations[at], evaluations[at] = np.atleast_1d(result.iterations), np.atleast_1d(result.evaluations)
         winner[at] = which
     won = [records[w][0] for w in np.unique(winner)]
     method = "+".join(dict.fromkeys(r.method for r in won))
-    return dataclasses.replace(won[0], root=root, converged=converged, status=status.astype(str),
+    return dataclasses.replace(won[0], root=root, converged=converged, status=status,
                                iterations=iterations, evaluations=evaluations, method=method,
                                trace=won[0].trace if n == 1 else None), covered
 
