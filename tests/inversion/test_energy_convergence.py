@@ -84,8 +84,12 @@ def test_a_scalar_energy_solve_carries_its_finders_record(pair, region):
 def test_a_scalar_single_phase_record_has_the_trace(pair):
     st = _state("vapor")
     record = tr.solve(PR, **_knowns(st, pair)).convergence
-    assert isinstance(record.trace, ScalarTrace)
-    assert len(record.trace) == record.iterations + 1 or len(record.trace) >= record.iterations
+    assert isinstance(record.trace, ScalarTrace) and len(record.trace) >= 1
+    assert record.trace[-1].x == pytest.approx(record.root, rel=1e-9, abs=1e-12)
+    # a bracketed finder never loses the root: every traced bracket holds it (to rounding)
+    slack = 1e-12 * abs(record.root) + 1e-15
+    for step in record.trace:
+        assert step.a - slack <= record.root <= step.b + slack
 
 
 @pytest.mark.parametrize("pair", _PAIRS, ids="-".join)
@@ -227,3 +231,16 @@ def test_the_state_panel_shows_the_record(pair, typed, what):
 def test_the_state_panel_message_quotes_the_typed_unit():
     panel, _, _ = _panel(("T", "h"), T="300 K", h="100 kJ/kg")   # below the isotherm's minimum of h
     assert panel.error is not None and "100 kJ/kg" in panel.error
+
+
+@pytest.mark.parametrize("pair", [("P", "h"), ("P", "s"), ("T", "s"), ("h", "s"), ("u", "v")], ids="-".join)
+def test_the_ideal_gas_solves_carry_their_record_too(pair):
+    # the ideal gas has no saturation: one segment, solved in T (or in v along an isotherm)
+    gas = tr.IdealGas(PROPANE)
+    st = tr.solve(gas, T=320.0, P=2e5)
+    back = tr.solve(gas, **_knowns(st, pair))
+    record = back.convergence
+    assert record is not None and record.status == "converged"
+    assert back.T == pytest.approx(320.0, rel=1e-9) and back.P == pytest.approx(2e5, rel=1e-9)
+    arrays = tr.solve(gas, **{k: np.full(3, v) for k, v in _knowns(st, pair).items()})
+    assert np.shape(arrays.convergence.status) == (3,) and np.all(arrays.convergence.status == "converged")
