@@ -7,6 +7,8 @@ every element outside the model's domain flagged (with a reason) in a :class:`Pr
 
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 
 from ..errors import DomainError, InputError
@@ -150,3 +152,29 @@ def _unit(name):
     from ..quantities import quantity, unit_label
 
     return unit_label(name, quantity(name).si_unit)
+
+
+def _energy_quote(model, name):
+    """value [J/mol or J/(mol K)] -> text on both bases in the units engineers read, per
+    kilogram first: for propane h = 25000 J/mol is "566.95 kJ/kg (25 kJ/mol)".
+
+    Messages about an energy quote its value and its limits this way, so that whichever
+    basis was typed ("250 kJ/kg", "18 kJ/mol", h_mass=...) is there as given, with the
+    limits in the same unit. Nothing is worked out until a message is written, and the unit
+    factors once per quantity (no unit library call per element or per solve).
+    """
+    M = model.fluid.molar_mass
+
+    def quote(x):
+        (per_kg, kg_label), (per_mol, mol_label) = _display_factor(f"{name}_mass"), _display_factor(name)
+        return f"{x * per_kg / M:.6g} {kg_label} ({x * per_mol:.6g} {mol_label})"
+    return quote
+
+
+@functools.lru_cache(maxsize=None)
+def _display_factor(name):
+    """(display value per SI value, display unit label) of a quantity whose units are
+    proportional (an energy, not a temperature): "h_mass" -> (0.001, "kJ/kg")."""
+    from ..quantities import convert, unit_label
+
+    return convert(1.0, name), unit_label(name)

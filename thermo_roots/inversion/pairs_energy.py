@@ -22,10 +22,10 @@ from ..models import R
 from ..roots import find_root
 from ._problems import Problems
 from .cubic import model_roots, model_stable_roots
-from .knowns import _unit
+from .knowns import _energy_quote, _unit
 from .pairs_volume import _from_T_v, _lowest_saturation_temperature, _no_saturation_reason
 from .phases import _single_phase
-from .results import _caloric_on_reference, mixture_caloric
+from .results import _caloric_on_reference, _joined_convergence, _record_part, mixture_caloric
 from .saturation import saturation_pressure, saturation_temperature
 
 def _coldest_temperature(model):
@@ -69,14 +69,18 @@ def _from_P_energy(model, flat, problems, branch, name):
     segment = np.full(n, "stable", dtype=object)
     lo, hi = np.full(n, T_lo), np.full(n, 4.0 * Tc)
     sub = (P < Pc) & model.has_saturation
+    quote = _energy_quote(model, name)
+    scalar = problems.shape == ()   # a scalar solve keeps its finder's trace
+    saturation_record = None   # a two-phase state's quality rests on the saturation temperature's iteration
     if np.any(sub):
         i = np.flatnonzero(sub)
-        T_sat, vl, vv, _ = saturation_temperature(model, P[i], strict=False)
+        T_sat, vl, vv, saturation = saturation_temperature(model, P[i], strict=False)
         e_l = getattr(caloric(model, T_sat, vl, P[i]), name)
         e_v = getattr(caloric(model, T_sat, vv, P[i]), name)
         edge = 1e-10 * np.abs(e_v - e_l)   # on the saturated ends within rounding: quality 0 or 1
         two = (target[i] >= e_l - edge) & (target[i] <= e_v + edge)
         k = i[two]
+        saturation_record = _record_part(saturation, two, i)
         quality[k] = np.clip((target[k] - e_l[two]) / (e_v[two] - e_l[two]), 0.0, 1.0)
         T[k], v_l[k], v_v[k] = T_sat[two], vl[two], vv[two]
         v[k] = vl[two] + quality[k] * (vv[two] - vl[two])
@@ -116,27 +120,32 @@ def _from_P_energy(model, flat, problems, branch, name):
                 g_hi[short] = gap(hi[k], P[k], target[k], segment[k])
             g_lo = gap(lo[j], P[j], target[j], segment[j])
         outside = ~((g_lo <= 0.0) & (g_hi >= 0.0))
+
+        def reach(x):   # the energies at the bracket's ends, in the same units as the value
+            e_lo, e_hi = (target[j[x]] + g[x] * scale for g in (g_lo, g_hi))
+            return f" (from {quote(e_lo)} to {quote(e_hi)})" if np.isfinite(e_lo) and np.isfinite(e_hi) else ""
+
         problems.flag_at(j[outside], [
-            f"{name} = {target[k]:.6g} {_unit(name)} at P = {P[k]:.6g} Pa lies outside what {model.name} gives "
-            f"between {lo[k]:.4g} K and {hi[k]:.4g} K; check the value, its unit and its reference state."
-            for k in j[outside]], kind=DomainError)
+            f"{name} = {quote(target[j[x]])} at P = {P[j[x]] / 1e5:.6g} bar ({P[j[x]]:.6g} Pa) lies outside "
+            f"what {model.name} gives between {lo[j[x]]:.4g} K and {hi[j[x]]:.4g} K{reach(x)}; check the value, "
+            "its unit and its reference state." for x in np.flatnonzero(outside)], kind=DomainError)
         inside = ~outside
         j, g_lo, g_hi = j[inside], g_lo[inside], g_hi[inside]
         if j.size:
             result = find_root(_known_ends(gap), bracket=(lo[j], hi[j]),
                                args=(P[j], target[j], segment[j], lo[j], g_lo, hi[j], g_hi), xtol=0.0,
-                               rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
+                               rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=scalar)
             ok = np.asarray(result.converged)
             convergence = (result, j)
             T[j[ok]] = np.asarray(result.root)[ok]
             v[j[ok]] = branch_volume(T[j[ok]], P[j[ok]], segment[j[ok]])
-            problems.flag_at(j[~ok], [f"the temperature at P = {P[k]:.6g} Pa and {name} = {target[k]:.6g} "
-                                      f"{_unit(name)} did not converge." for k in j[~ok]])
+            problems.flag_at(j[~ok], [f"the temperature at P = {P[k]:.6g} Pa and {name} = {quote(target[k])} "
+                                      "did not converge." for k in j[~ok]])
     T_safe = np.where(np.isfinite(T), T, Tc)
     phase = np.asarray(_single_phase(model, T_safe, P, np.where(np.isfinite(v), v, 1.0)), dtype=object)
     phase[np.isfinite(quality)] = "two-phase"
     return dict(T=T, P=P, v=v, phase=phase, quality=quality, v_liquid=v_l, v_vapor=v_v,
-                roots=model_roots(model, T_safe, P), convergence=convergence)
+                roots=model_roots(model, T_safe, P), convergence=_joined_convergence(saturation_record, convergence))
 
 
 def _from_u_v(model, flat, problems, branch=None):
@@ -175,20 +184,29 @@ def _from_u_v(model, flat, problems, branch=None):
         g_hi = gap(hi, v, target)
     outside = ~((g_lo <= 0.0) & (g_hi >= 0.0))
     j = np.flatnonzero(outside)
-    problems.flag_at(j, [f"u = {target[k]:.6g} J/mol at v = {v[k]:.6g} m³/mol lies outside what {model.name} gives "
-                         f"between {lo[k]:.4g} K and {hi[k]:.4g} K; check the value, its unit and its reference state."
-                         for k in j], kind=DomainError)
+    quote = _energy_quote(model, "u")
+
+    def reach(k):   # u at the bracket's ends, in the same units as the value
+        u_lo, u_hi = target[k] + g_lo[k] * scale, target[k] + g_hi[k] * scale
+        return f" (from {quote(u_lo)} to {quote(u_hi)})" if np.isfinite(u_lo) and np.isfinite(u_hi) else ""
+
+    problems.flag_at(j, [f"u = {quote(target[k])} at v = {v[k]:.6g} m³/mol "
+                         f"({model.fluid.molar_mass / v[k]:.6g} kg/m³) lies outside what {model.name} gives between {lo[k]:.4g} K and {hi[k]:.4g} K{reach(k)}; "
+                         "check the value, its unit and its reference state." for k in j], kind=DomainError)
     T = np.full(v.shape, np.nan)
     go = np.flatnonzero(~outside)
+    convergence = None
     if go.size:
         result = find_root(gap, bracket=(lo[go], hi[go]), args=(v[go], target[go]), xtol=0.0,
-                           rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
+                           rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=problems.shape == ())
+        convergence = (result, go)
         ok = np.asarray(result.converged)
         T[go[ok]] = np.asarray(result.root)[ok]
-        problems.flag_at(go[~ok], [f"the temperature at u = {target[k]:.6g} J/mol, v = {v[k]:.6g} m³/mol did not "
+        problems.flag_at(go[~ok], [f"the temperature at u = {quote(target[k])}, v = {v[k]:.6g} m³/mol did not "
                                    "converge." for k in go[~ok]])
     done = _from_T_v(model, {"T": np.where(np.isfinite(T), T, Tc), "v": v}, Problems(v.size, v.shape, strict=False))
     done["T"] = T
+    done["convergence"] = convergence
     return done
 
 
@@ -274,6 +292,9 @@ def _from_T_energy(model, flat, problems, branch, name):
         f"no saturation from {model.name} for {model.fluid.name} at T = {T[i]:.6g} K, so the phase at this "
         f"{name} cannot be placed: {_no_saturation_reason(model, T[i], np.nan)}"), kind=DomainError)
     T = np.where(problems.ok, T, Tc)   # placeholders, NaN in the result
+    scalar = problems.shape == ()   # a scalar solve keeps its finder's trace
+    options = dict(_OPTIONS, trace=scalar)
+    saturation = None
     x_floor, x_far = _isotherm_ends(model, T)
     out = dict(T=flat["T"].copy(), P=np.full(n, np.nan), v=np.full(n, np.nan), quality=np.full(n, np.nan),
                v_liquid=np.full(n, np.nan), v_vapor=np.full(n, np.nan))
@@ -284,7 +305,7 @@ def _from_T_energy(model, flat, problems, branch, name):
     sub = (T < Tc) & model.has_saturation & problems.ok
     if np.any(sub):
         i = np.flatnonzero(sub)
-        Ps, vl, vv, _ = saturation_pressure(model, T[i], strict=False)
+        Ps, vl, vv, saturation = saturation_pressure(model, T[i], strict=False)
         P_sat[i], out["v_liquid"][i], out["v_vapor"][i] = Ps, vl, vv
         with np.errstate(all="ignore"):
             x_l[i], x_v[i] = np.log(vl - model.v_min), np.log(vv - model.v_min)
@@ -323,13 +344,16 @@ def _from_T_energy(model, flat, problems, branch, name):
     q = np.clip((target[k] - e_l[k]) / (e_v[k] - e_l[k]), 0.0, 1.0)
     out["quality"][k], out["P"][k] = q, P_sat[k]
     out["v"][k] = out["v_liquid"][k] + q * (out["v_vapor"][k] - out["v_liquid"][k])
-    convergence = None
+    # each element's record: the saturation pressure's where two-phase, the dense side's where
+    # that is the only answer, the dilute side's (the reported one) where both sides have one
+    dense_record = dilute_record = None
+    saturation_record = _record_part(saturation, two[sub], np.flatnonzero(sub)) if np.any(sub) else None
     j = np.flatnonzero(dilute)
     if j.size:
         result = find_root(_known_ends(_energy_gap), bracket=(lo[j], hi[j]),   # the ends' gaps are known
                            args=(T[j], target[j], scale, model, name, lo[j], g_lo[j] / scale, hi[j], g_hi[j] / scale),
-                           **_OPTIONS)
-        convergence = (result, j)
+                           **options)
+        dilute_record = (result, j)
         _take_root(model, T, result, j, out, problems, name, target)
     # the dense side (x_floor, x_min], falling: h only (s has no dense side of its own)
     dense = np.zeros(n, bool)
@@ -340,13 +364,12 @@ def _from_T_energy(model, flat, problems, branch, name):
         if d.size:
             result = find_root(_known_ends(_energy_gap), bracket=(x_floor[d], x_min[d]),
                                args=(T[d], target[d], scale, model, name, x_floor[d], g_floor[d] / scale, x_min[d],
-                                     (e_min[d] - target[d]) / scale), **_OPTIONS)
+                                     (e_min[d] - target[d]) / scale), **options)
             second = dict(P=np.full(n, np.nan), v=np.full(n, np.nan))
             _take_root(model, T, result, d, second, problems, name, target)
             alone = np.flatnonzero(dense & ~(two | dilute))   # the only solution: it is the state
             out["P"][alone], out["v"][alone] = second["P"][alone], second["v"][alone]
-            if convergence is None:
-                convergence = (result, d)
+            dense_record = (result, d)
             both = dense & (two | dilute)
             P_other[both] = second["P"][both]
             same = both & (np.abs(P_other / out["P"] - 1.0) < 1e-9)   # on the minimum itself: one answer
@@ -363,6 +386,7 @@ def _from_T_energy(model, flat, problems, branch, name):
     n_other = int(np.count_nonzero(np.isfinite(P_other) & problems.ok))
     if n_other:
         notes = (_second_pressure_warning(model, P_other, out["P"], n_other, n),)
+    convergence = _joined_convergence(dense_record, saturation_record, dilute_record)
     return dict(out, phase=phase, roots=model_roots(model, T_safe, P_safe), convergence=convergence,
                 P_other=P_other, notes=notes)
 
@@ -397,22 +421,23 @@ def _take_root(model, T, result, j, out, problems, name, target):
     with np.errstate(all="ignore"):
         P = model.pressure(T[j], v)
     out["v"][j[ok]], out["P"][j[ok]] = v[ok], P[ok]
-    problems.flag_at(j[~ok], [f"the state at T = {T[k]:.6g} K and {name} = {target[k]:.6g} {_unit(name)} did "
+    quote = _energy_quote(model, name)
+    problems.flag_at(j[~ok], [f"the state at T = {T[k]:.6g} K and {name} = {quote(target[k])} did "
                               "not converge." for k in j[~ok]])
 
 
 def _no_solution_reason(model, name, T, target, e_min, e_far, has_minimum):
-    unit = _unit(name)
+    quote = _energy_quote(model, name)   # the value and its limit on both bases: as typed, in one unit
     if name == "h" and has_minimum:
-        return (f"no pressure gives h = {target:.6g} {unit} at T = {T:.6g} K in {model.name} for {model.fluid.name}: "
-                f"along this isotherm h is at least {e_min:.6g} {unit} (its minimum, where the Joule-Thomson "
+        return (f"no pressure gives h = {quote(target)} at T = {T:.6g} K in {model.name} for {model.fluid.name}: "
+                f"along this isotherm h is at least {quote(e_min)} (its minimum, where the Joule-Thomson "
                 "coefficient changes sign). Check the value, its unit and its reference state.")
     if name == "h":
-        return (f"no pressure gives h = {target:.6g} {unit} at T = {T:.6g} K in {model.name} for {model.fluid.name}: "
-                f"above the inversion temperature h falls with volume to {e_far:.6g} {unit} (the ideal gas's) and "
+        return (f"no pressure gives h = {quote(target)} at T = {T:.6g} K in {model.name} for {model.fluid.name}: "
+                f"above the inversion temperature h falls with volume to {quote(e_far)} (the ideal gas's) and "
                 "is higher at every finite pressure. Check the value, its unit and its reference state.")
-    return (f"s = {target:.6g} {unit} at T = {T:.6g} K lies outside what {model.name} gives along this isotherm "
-            f"(up to {e_far:.6g} {unit} at 1 mPa and below); check the value, its unit and its reference state.")
+    return (f"s = {quote(target)} at T = {T:.6g} K lies outside what {model.name} gives along this isotherm "
+            f"(up to {quote(e_far)} at 1 mPa and below); check the value, its unit and its reference state.")
 
 
 def _second_pressure_warning(model, P_other, P, count, total):
@@ -514,10 +539,11 @@ def _from_h_s(model, flat, problems, branch=None):
     exact = np.isnan(lo) & (g_hi == 0.0)   # the coldest temperature itself
     bracketed |= exact
     lo = np.where(exact, hi, lo)
+    quote_h, quote_s = _energy_quote(model, "h"), _energy_quote(model, "s")
     problems.flag(~bracketed, lambda i: (
-        f"no temperature from {T_cold:.4g} K to {256 * Tc:.4g} K gives h = {h[i]:.6g} J/mol on the isentrope "
-        f"s = {s[i]:.6g} J/(mol K) of {model.name} for {model.fluid.name} "
-        + (f"(h there is at least {h[i] + g_hi[i] * scale:.6g} J/mol)" if np.isnan(lo[i]) and np.isfinite(g_hi[i])
+        f"no temperature from {T_cold:.4g} K to {256 * Tc:.4g} K gives h = {quote_h(h[i])} on the isentrope "
+        f"s = {quote_s(s[i])} of {model.name} for {model.fluid.name} "
+        + (f"(h there is at least {quote_h(h[i] + g_hi[i] * scale)})" if np.isnan(lo[i]) and np.isfinite(g_hi[i])
            else "(the isentrope leaves the model's range of states first)")
         + ". Check the values, their units and their reference state."), kind=DomainError)
     T = np.full(n, np.nan)
@@ -525,11 +551,11 @@ def _from_h_s(model, flat, problems, branch=None):
     j = np.flatnonzero(bracketed & problems.ok)
     if j.size:
         result = find_root(_known_ends(gap), bracket=(lo[j], hi[j]), args=(s[j], h[j], lo[j], g_lo[j], hi[j], g_hi[j]),
-                           xtol=0.0, rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=False)
+                           xtol=0.0, rtol=4.0 * np.finfo(float).eps, maxiter=200, trace=problems.shape == ())
         convergence = (result, j)
         ok = np.asarray(result.converged)
         T[j[ok]] = np.asarray(result.root)[ok]
-        problems.flag_at(j[~ok], [f"the temperature at h = {h[k]:.6g} J/mol, s = {s[k]:.6g} J/(mol K) did not "
+        problems.flag_at(j[~ok], [f"the temperature at h = {quote_h(h[k])}, s = {quote_s(s[k])} did not "
                                   "converge." for k in j[~ok]])
     _, parts, sub = state_on_isentrope(np.where(np.isfinite(T), T, Tc), s)
     problems.flag(~sub.ok, lambda i: str(sub.reason[i]), kind=DomainError)

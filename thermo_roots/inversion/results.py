@@ -50,8 +50,14 @@ class State:
         (asked for with ``branch=``): between binodal and spinodal.
     knowns : the two quantities given, as SI values
     convergence : result of the root finder that inverted the knowns, in the knowns' shape
-        (None when the state followed in closed form). Elements it did not iterate (bad
-        input, or settled another way) have status "not iterated".
+        (None when the state followed in closed form, as from (T, P) or (T, v)); a scalar
+        solve's record carries the finder's trace where it keeps one. Elements it did not
+        iterate (bad input) have status "not iterated". Where the answer of an energy pair
+        is two-phase, the quality is in closed form, and the record is that of the
+        saturation solve it rests on (the saturation temperature at P for (P, h) and
+        (P, s), the saturation pressure at T for (T, h) and (T, s)); an array mixing regions
+        gives each element its own finder's record and ``method`` names them all ("a+b").
+        ``root`` is in the finder's own variable (T, ln(v - b), Tc/T, ...).
     reason : why an element is not solved ("" where it is), str or array of str; such
         elements are NaN with phase "not solved"
     T_other : (P, v) knowns only: a second temperature [K] that gives the same P and v in
@@ -438,28 +444,85 @@ def _shaped_convergence(convergence, problems, shape):
 
     n = problems.reason.size
     root, converged = np.full(n, np.nan), np.ones(n, bool)
-    status = np.full(n, "not iterated", dtype=object)
+    status = np.full(n, "not iterated", dtype="<U15")   # status texts are at most 15 characters
     iterations, evaluations = np.zeros(n, int), np.zeros(n, int)
     root[covered], converged[covered] = result.root, result.converged
-    status[covered] = np.asarray(result.status, dtype=object)
+    status[covered] = np.asarray(result.status, dtype=str)
     iterations[covered], evaluations[covered] = result.iterations, result.evaluations
     converged[~problems.ok & (status == "not iterated")] = False
     return dataclasses.replace(result, root=root.reshape(shape), converged=converged.reshape(shape),
-                               status=status.astype(str).reshape(shape), iterations=iterations.reshape(shape),
+                               status=status.reshape(shape), iterations=iterations.reshape(shape),
                                evaluations=evaluations.reshape(shape), trace=None)
 
 
 def _scalar_view(result):
-    """A one-element array result as a scalar one (its status a Status where it is one)."""
+    """A one-element array result as a scalar one (its status a Status where it is one, an
+    array trace of that one element as the scalar trace of its iterates)."""
     import dataclasses
 
     from ..roots import Status
+    from ..roots._result import ArrayTrace, ScalarTrace
 
     text = str(np.asarray(result.status).reshape(-1)[0])
     status = Status(text) if text in {s.value for s in Status} else text
+    trace = ScalarTrace.from_records(result.trace.records) if isinstance(result.trace, ArrayTrace) else result.trace
     return dataclasses.replace(result, root=float(np.asarray(result.root).reshape(-1)[0]),
                                converged=bool(np.asarray(result.converged).reshape(-1)[0]), status=status,
                                iterations=int(np.asarray(result.iterations).reshape(-1)[0]),
-                               evaluations=int(np.asarray(result.evaluations).reshape(-1)[0]))
+                               evaluations=int(np.asarray(result.evaluations).reshape(-1)[0]), trace=trace)
+
+
+def _record_part(result, keep, covered):
+    """(the root finder's record of the elements ``keep`` of its problem, their flat indices
+    ``covered[keep]``): e.g. a saturation solve's record of the states that came out two-phase.
+    None when nothing is kept, or when there is no record, or it does not match ``keep``
+    (the solve covered a part of the elements only)."""
+    keep = np.asarray(keep, dtype=bool)
+    if result is None or not keep.any() or np.size(result.root) != keep.size:
+        return None
+    import dataclasses
+
+    if keep.all():
+        return result, covered
+    pick = lambda x: np.atleast_1d(np.asarray(x))[keep]   # noqa: E731
+    return dataclasses.replace(result, root=pick(result.root), converged=pick(result.converged),
+                               status=pick(np.asarray(result.status, dtype=str)),
+                               iterations=pick(result.iterations), evaluations=pick(result.evaluations),
+                               trace=result.trace if keep.sum() == 1 else None), covered[keep]
+
+
+def _joined_convergence(*records):
+    """One (result, flat indices) record from several root finders' (result, indices) records.
+
+    A pair solver may reach its elements by different iterations (two-phase states by the
+    saturation solve, the others by the solve for T or v); each element keeps the record of
+    the finder that found its reported answer: where two records cover one element, the
+    later one. ``method`` names every finder that won an element ("a+b"); a one-element
+    record keeps that finder's trace. None for no record.
+    """
+    records = [r for r in records if r is not None]
+    if len(records) <= 1:
+        return records[0] if records else None
+    import dataclasses
+
+    indices = [np.asarray(c, dtype=np.intp) for _, c in records]
+    hit = np.zeros(1 + max(int(c.max(initial=-1)) for c in indices), bool)   # no sort: a mask over the indices
+    for c in indices:
+        hit[c] = True
+    covered, position = np.flatnonzero(hit), np.cumsum(hit) - 1
+    n = covered.size
+    root, converged, status = np.full(n, np.nan), np.zeros(n, bool), np.full(n, "", dtype="<U15")
+    iterations, evaluations, winner = np.zeros(n, int), np.zeros(n, int), np.full(n, -1)
+    for which, ((result, _), c) in enumerate(zip(records, indices)):
+        at = position[c]
+        root[at], converged[at] = np.atleast_1d(result.root), np.atleast_1d(result.converged)
+        status[at] = np.atleast_1d(np.asarray(result.status, dtype=str))
+        iterations[at], evaluations[at] = np.atleast_1d(result.iterations), np.atleast_1d(result.evaluations)
+        winner[at] = which
+    won = [records[w][0] for w in np.unique(winner)]
+    method = "+".join(dict.fromkeys(r.method for r in won))
+    return dataclasses.replace(won[0], root=root, converged=converged, status=status,
+                               iterations=iterations, evaluations=evaluations, method=method,
+                               trace=won[0].trace if n == 1 else None), covered
 
 

@@ -128,7 +128,7 @@ def convergence_text(state) -> str:
             return "Closed form: the pressure follows from the equation of state at this temperature and volume."
         lever = " The quality follows from the lever rule." if state.phase == "two-phase" else ""
         return f"Solved from {' and '.join(names)}; the solver kept no iteration record for this state.{lever}"
-    if "quality" in knowns or (state.phase == "two-phase" and not energy):
+    if "quality" in knowns or (state.phase == "two-phase" and (not energy or bool(knowns & {"T", "P"}))):
         what = "saturation"
     elif knowns == {"P", "v"}:
         what = "temperature at this P and v"
