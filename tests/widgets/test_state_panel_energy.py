@@ -169,3 +169,14 @@ def test_model_menu_names_each_model_as_the_model_names_itself():
         label = model_label(short)
         assert label == f"{cls(PROPANE).name} ({short})"
     assert model_label("IG") == "ideal gas (IG)" and model_label("PR") == "Peng-Robinson (PR)"
+
+
+def test_a_negative_enthalpy_is_a_state_not_an_error():
+    # an energy's zero is a convention (common practice: IIR puts h = 200 kJ/kg on saturated
+    # liquid at 0 °C, so cold liquid propane has h < 0); the panel must pass it to solve()
+    panel = StatePanel(P="10 bar", h="-10 kJ/kg")
+    state = panel.solve()
+    assert panel.error is None
+    direct = tr.solve(PR, P=1e6, h_mass=-1e4)
+    assert state.T == pytest.approx(direct.T, rel=1e-12) and state.phase == "liquid"
+    assert StatePanel(T="-90 degC", s="-0.05 kJ/(kg K)").solve().s_mass == pytest.approx(-50.0, rel=1e-12)

@@ -26,6 +26,9 @@ FIELDS = ("T", "P", "v", "rho", "quality", "h", "s", "u")
 #: Unit choices per field: (label shown, unit text the units layer reads), from the table of
 #: quantities (``QUANTITIES[name].input_units``, which a field of any other quantity uses).
 UNITS = {name: QUANTITIES[name].input_units for name in FIELDS}
+#: Quantities a field takes at or below zero: quality, and the energies (their zero is a convention).
+_MAY_BE_ZERO_OR_BELOW = frozenset({"quality", "h", "s", "u", "h_mass", "s_mass", "u_mass"})
+
 #: What each field is called on screen, from the table of quantities.
 LABELS = {name: q.label for name, q in QUANTITIES.items()}
 #: Short names of the fluid chooser's "my own constants" entry.
@@ -176,7 +179,9 @@ class QuantityField:
             si = to_si(self.entered(), self.quantity, molar_mass=molar_mass, **kwargs)
         except ThermoRootsError as err:
             raise self.fail(str(err)) from None
-        if si <= 0.0 and self.quantity != "quality":
+        # quality may be 0; an energy's zero is a convention (ASHRAE, IIR and NBP states give
+        # negative h, s and u routinely), so only the others must be above zero
+        if si <= 0.0 and self.quantity not in _MAY_BE_ZERO_OR_BELOW:
             raise self.fail(self._not_positive())
         return si
 
