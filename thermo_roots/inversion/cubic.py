@@ -51,8 +51,12 @@ def _sorted_roots(c2, c1, c0):
 
     Most states of a cubic have one real root: the deflated quadratic's discriminant is
     computed for all, its roots, their polish and the sorting only where it is >= 0.
+    Coefficients so large that the closed form overflows (|c0| beyond about 1e150) are
+    solved for Y = Z / 2^k with a power of two 2^k of the roots' size, exactly rescaled.
     """
-    z1 = _one_real_root(c2, c1, c0)
+    z1, overflow = _one_real_root(c2, c1, c0)
+    if overflow.size:
+        return _rescaled_roots(c2, c1, c0, overflow, z1)
     z1, f = _newton_step(z1, _cubic_at(z1, c2, c1, c0), c2, c1, c0)
     z1, _ = _newton_step(z1, f, c2, c1, c0)   # the second step starts from the first's residual
     g1, g0 = _deflate(z1, c2, c1, c0)
@@ -75,12 +79,35 @@ def _sorted_roots(c2, c1, c0):
     return s0, s1, s2
 
 
+def _rescaled_roots(c2, c1, c0, overflow, z1):
+    """:func:`_sorted_roots` where the closed form overflowed at the indices ``overflow``:
+    the cubic in Y = Z / 2^k, 2^k about max(|c2|, |c1|^(1/2), |c0|^(1/3)), scaled exactly."""
+    k2, k1, k0 = c2[overflow], c1[overflow], c0[overflow]
+    size = np.maximum(np.maximum(np.abs(k2), np.sqrt(np.abs(k1))), np.cbrt(np.abs(k0)))
+    k = np.frexp(size)[1]
+    scaled = _sorted_roots(np.ldexp(k2, -k), np.ldexp(k1, -2 * k), np.ldexp(k0, -3 * k))
+    rest = np.ones(z1.shape, bool)
+    rest[overflow] = False
+    keep = np.flatnonzero(rest)
+    columns = [np.full(z1.shape, np.nan) for _ in range(3)]
+    for column, part, y in zip(columns, _sorted_roots(c2[keep], c1[keep], c0[keep]), scaled):
+        column[keep] = part
+        column[overflow] = np.ldexp(y, k)
+    return tuple(columns)
+
+
 def _one_real_root(c2, c1, c0):
-    """One real root: Cardano's where the discriminant is > 0, else the largest trigonometric one."""
-    shift = c2 / 3.0
-    p = c1 - c2 * shift                       # depressed cubic t^3 + p t + q, Z = t - c2/3
-    q = (2.0 * shift * shift - c1) * shift + c0
-    disc = (q * q) / 4.0 + (p * p * p) / 27.0
+    """One real root (Cardano's where the discriminant is > 0, else the largest trigonometric
+    one) and the indices where finite coefficients overflowed the discriminant."""
+    with np.errstate(invalid="ignore", over="ignore"):
+        shift = c2 / 3.0
+        p = c1 - c2 * shift                       # depressed cubic t^3 + p t + q, Z = t - c2/3
+        q = (2.0 * shift * shift - c1) * shift + c0
+        disc = (q * q) / 4.0 + (p * p * p) / 27.0
+        overflow = np.flatnonzero(~np.isfinite(disc))   # NaN coefficients, or too large ones
+        if overflow.size:
+            finite = np.isfinite(c2[overflow]) & np.isfinite(c1[overflow]) & np.isfinite(c0[overflow])
+            overflow = overflow[finite]
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         # Cardano without cancellation. Where disc > 0 the cube root's argument is at least
         # sqrt(disc) in size, so u != 0 there; elsewhere the trigonometric root replaces it.
@@ -95,7 +122,7 @@ def _one_real_root(c2, c1, c0):
             cos_arg = np.where(m > 0.0, 3.0 * q[three] / (pt * m), 0.0)
             z[three] = m * np.cos(np.arccos(np.clip(cos_arg, -1.0, 1.0)) / 3.0)   # the largest
     z -= shift
-    return z
+    return z, overflow
 
 
 def _deflate(z1, c2, c1, c0):
