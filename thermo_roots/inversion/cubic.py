@@ -58,7 +58,7 @@ def _sorted_roots(c2, c1, c0):
     if overflow.size:
         return _rescaled_roots(c2, c1, c0, overflow, z1)
     z1, f = _newton_step(z1, _cubic_at(z1, c2, c1, c0), c2, c1, c0)
-    z1, _ = _newton_step(z1, f, c2, c1, c0)   # the second step starts from the first's residual
+    z1 = _newton_step(z1, f, c2, c1, c0, residual=False)   # starts from the first's residual
     g1, g0 = _deflate(z1, c2, c1, c0)
     disc = g1 * g1
     disc -= 4.0 * g0
@@ -155,8 +155,9 @@ def _cubic_at(z, c2, c1, c0):
     return f
 
 
-def _newton_step(z, f, c2, c1, c0):
-    """One Newton step on the polynomial, kept only where it lowers |residual|: (z, f) after it.
+def _newton_step(z, f, c2, c1, c0, residual=True):
+    """One Newton step on the polynomial, kept only where it lowers |residual|: (z, f) after it
+    (z alone with ``residual=False``).
 
     ``f`` is the residual at ``z``; the residual returned is the one at the z returned, so a
     second step needs no new evaluation at its start. A step to a non-finite z has a
@@ -171,12 +172,13 @@ def _newton_step(z, f, c2, c1, c0):
         z_new = z - df
         f_new = _cubic_at(z_new, c2, c1, c0)
         better = np.abs(f_new, out=df) < np.abs(f)
-    return np.where(better, z_new, z), np.where(better, f_new, f)
+    z = np.where(better, z_new, z)
+    return (z, np.where(better, f_new, f)) if residual else z
 
 
 def _polish(z, c2, c1, c0):
     """One Newton step on the polynomial, kept only where it lowers |residual| (a new array)."""
-    return _newton_step(z, _cubic_at(z, c2, c1, c0), c2, c1, c0)[0]
+    return _newton_step(z, _cubic_at(z, c2, c1, c0), c2, c1, c0, residual=False)
 
 
 def volume_roots(model, T, P):
