@@ -178,3 +178,21 @@ def test_phase_codes_of_a_scalar_state(co2):
     model = tr.PengRobinson(co2)
     code = phase_codes(model, 1.1 * co2.Tc, 2.0 * co2.Pc, 0.5 * model.v_c)
     assert np.ndim(code) == 0 and int(code) == SUPERCRITICAL
+
+
+def test_numpy_path_with_nan_states_keeps_the_others(co2):
+    # NaN temperatures and pressures give NaN roots and the phase code of a NaN volume
+    # (vapor), and leave the neighbouring states as they are solved alone
+    model = tr.PengRobinson(co2)
+    rng = np.random.default_rng(5)
+    n = cubic.CHUNK + 50
+    T, P = rng.uniform(220.0, 500.0, n), rng.uniform(1e5, 2e7, n)
+    T[::7], P[3::11] = np.nan, np.nan
+    roots, stable, v, phase = cubic.stable_roots_numpy(model, T, P)
+    bad = np.isnan(T) | np.isnan(P)
+    assert np.all(np.isnan(roots[bad])) and np.all(np.isnan(v[bad]))
+    np.testing.assert_array_equal(phase, [_phase_rule(model, *x) for x in zip(T, P, v)])
+    good = np.flatnonzero(~bad)[::50]
+    alone = cubic.stable_roots_numpy(model, T[good], P[good])
+    np.testing.assert_allclose(alone[0], roots[good], rtol=1e-10)   # vector math may differ in the last bit
+    np.testing.assert_array_equal(alone[3], phase[good])
