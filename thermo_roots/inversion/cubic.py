@@ -229,9 +229,10 @@ def _volume_columns(model, T, P, out=None):
         s = [np.where(drop, s[1], s[0]), np.where(drop, s[2], s[1]), np.where(drop, np.nan, s[2])]
     scale = R * T / P
     c = model.c
-    if out is None:
-        out = np.empty((T.size, 3))
-    columns = tuple(out[:, k] for k in range(3))
+    if out is None:   # three contiguous columns of their own
+        columns = tuple(np.empty(T.shape) for _ in range(3))
+    else:
+        columns = tuple(out[:, k] for k in range(3))
     for z, column in zip(s, columns):
         np.multiply(z, scale, out=column)
         if c != 0.0:
