@@ -1,8 +1,10 @@
 """All real volume roots of a cubic equation of state at given (T, P), vectorized.
 
 The cubic in Z is solved in closed form (Cardano's formula for one real root, the
-trigonometric form for three) and each root is polished by a guarded Newton step on the
-polynomial, then the roots with v > b are kept and sorted.
+trigonometric form for three) for one root, polished by guarded Newton steps on the
+polynomial; the other two come from the deflated quadratic, polished too; then the roots
+with v > b are kept, sorted. Most states have one real root, so the trigonometric form,
+the quadratic's roots and the sorting are computed only for the states that need them.
 
 Speed. Large inputs are cut into chunks of :data:`CHUNK` states, so that the two dozen
 temporary arrays of the closed form stay in the processor's cache and the memory a call
@@ -20,8 +22,9 @@ import numpy as np
 from ..models import R
 from .phases import LIQUID, SUPERCRITICAL, TWO_PHASE, VAPOR, phase_codes  # noqa: F401 (old import path)
 
-#: States per chunk of the numpy path: about 2^13 keeps its temporaries in a 512 kB cache.
-CHUNK = 8192
+#: States per chunk of the numpy path: 2^14 keeps its temporaries within a 2 MB cache
+#: and halves the per-call overhead of 2^13 (6 % less time for 10^6 CO2 states, measured).
+CHUNK = 16384
 #: Below this many states the compiled accelerator is not worth its first-call import.
 ACCEL_MIN_SIZE = 2048
 
@@ -41,36 +44,88 @@ def cubic_real_roots(c2, c1, c0):
     (cubic and quadratic roots without cancellation) and 9.5 (deflation).
     """
     c2, c1, c0 = np.broadcast_arrays(*(np.asarray(c, dtype=float) for c in (c2, c1, c0)))
-    return np.stack(_sorted_roots(c2, c1, c0), axis=-1)
+    shape = c2.shape
+    columns = _sorted_roots(c2.ravel(), c1.ravel(), c0.ravel())
+    return np.stack(columns, axis=-1).reshape(shape + (3,))
 
 
 def _sorted_roots(c2, c1, c0):
-    """The three columns of :func:`cubic_real_roots`: (smallest, middle, largest), NaN-padded."""
-    z1 = _polish(_polish(_one_real_root(c2, c1, c0), c2, c1, c0), c2, c1, c0)
+    """The three columns of :func:`cubic_real_roots`: (smallest, middle, largest), NaN-padded.
+
+    Most states of a cubic have one real root: the deflated quadratic's discriminant is
+    computed for all, its roots, their polish and the sorting only where it is >= 0.
+    Coefficients so large that the closed form overflows (|c0| beyond about 1e150) are
+    solved for Y = Z / 2^k with a power of two 2^k of the roots' size, exactly rescaled.
+    """
+    z1, overflow = _one_real_root(c2, c1, c0)
+    if overflow.size:
+        return _rescaled_roots(c2, c1, c0, overflow, z1)
+    z1, f = _newton_step(z1, _cubic_at(z1, c2, c1, c0), c2, c1, c0)
+    z1 = _newton_step(z1, f, c2, c1, c0, residual=False)   # starts from the first's residual
     g1, g0 = _deflate(z1, c2, c1, c0)
-    disc = g1 * g1 - 4.0 * g0
-    with np.errstate(invalid="ignore", divide="ignore"):
-        q = -0.5 * (g1 + np.copysign(np.sqrt(disc), g1))   # NaN where disc < 0: no more real roots
-        z2, z3 = q, np.where(q != 0.0, g0 / q, 0.0)
-    z2, z3 = _polish(z2, c2, c1, c0), _polish(z3, c2, c1, c0)
-    # Sorting network; z2 and z3 are NaN together, and then z1 is the only root.
-    lo, hi = np.minimum(z2, z3), np.maximum(z2, z3)
-    return np.fmin(lo, z1), np.maximum(lo, np.minimum(hi, z1)), np.maximum(hi, z1)
+    disc = g1 * g1
+    disc -= 4.0 * g0
+    more = np.flatnonzero(disc >= 0.0)   # NaN where disc < 0 (or NaN): no more real roots
+    nan = np.full(z1.shape, np.nan)
+    s0, s1, s2 = z1, nan, nan.copy()
+    if more.size:
+        k2, k1, k0, g1, g0, zk = c2[more], c1[more], c0[more], g1[more], g0[more], z1[more]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            q = -0.5 * (g1 + np.copysign(np.sqrt(disc[more]), g1))
+            z3 = np.where(q != 0.0, g0 / q, 0.0)
+        z2, z3 = _polish(q, k2, k1, k0), _polish(z3, k2, k1, k0)
+        # Sorting network of the three roots.
+        lo, hi = np.minimum(z2, z3), np.maximum(z2, z3)
+        s0[more] = np.fmin(lo, zk)   # zk is a copy, so z1 (= s0) may be overwritten
+        s1[more] = np.maximum(lo, np.minimum(hi, zk))
+        s2[more] = np.maximum(hi, zk)
+    return s0, s1, s2
+
+
+def _rescaled_roots(c2, c1, c0, overflow, z1):
+    """:func:`_sorted_roots` where the closed form overflowed at the indices ``overflow``:
+    the cubic in Y = Z / 2^k, 2^k about max(|c2|, |c1|^(1/2), |c0|^(1/3)), scaled exactly."""
+    k2, k1, k0 = c2[overflow], c1[overflow], c0[overflow]
+    size = np.maximum(np.maximum(np.abs(k2), np.sqrt(np.abs(k1))), np.cbrt(np.abs(k0)))
+    k = np.frexp(size)[1]
+    scaled = _sorted_roots(np.ldexp(k2, -k), np.ldexp(k1, -2 * k), np.ldexp(k0, -3 * k))
+    rest = np.ones(z1.shape, bool)
+    rest[overflow] = False
+    keep = np.flatnonzero(rest)
+    columns = [np.full(z1.shape, np.nan) for _ in range(3)]
+    for column, part, y in zip(columns, _sorted_roots(c2[keep], c1[keep], c0[keep]), scaled):
+        column[keep] = part
+        column[overflow] = np.ldexp(y, k)
+    return tuple(columns)
 
 
 def _one_real_root(c2, c1, c0):
-    shift = c2 / 3.0
-    p = c1 - c2 * shift                       # depressed cubic t^3 + p t + q, Z = t - c2/3
-    q = (2.0 * shift * shift - c1) * shift + c0
-    disc = (q * q) / 4.0 + (p * p * p) / 27.0
-    with np.errstate(invalid="ignore", divide="ignore"):
-        u = np.cbrt(-q / 2.0 - np.copysign(np.sqrt(np.maximum(disc, 0.0)), q))   # no cancellation
-        cardano = np.where(u != 0.0, u - p / (3.0 * u), 0.0)
-        pt = np.minimum(p, 0.0)
-        m = 2.0 * np.sqrt(-pt / 3.0)
-        cos_arg = np.where(m > 0.0, 3.0 * q / (pt * m), 0.0)
-        trig = m * np.cos(np.arccos(np.clip(cos_arg, -1.0, 1.0)) / 3.0)   # the largest of three
-    return np.where(disc > 0.0, cardano, trig) - shift
+    """One real root (Cardano's where the discriminant is > 0, else the largest trigonometric
+    one) and the indices where finite coefficients overflowed the discriminant."""
+    with np.errstate(invalid="ignore", over="ignore"):
+        shift = c2 / 3.0
+        p = c1 - c2 * shift                       # depressed cubic t^3 + p t + q, Z = t - c2/3
+        q = (2.0 * shift * shift - c1) * shift + c0
+        disc = (q * q) / 4.0 + (p * p * p) / 27.0
+        overflow = np.flatnonzero(~np.isfinite(disc))   # NaN coefficients, or too large ones
+        if overflow.size:
+            finite = np.isfinite(c2[overflow]) & np.isfinite(c1[overflow]) & np.isfinite(c0[overflow])
+            overflow = overflow[finite]
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        # Cardano without cancellation. Where disc > 0 the cube root's argument is at least
+        # sqrt(disc) in size, so u != 0 there; elsewhere the trigonometric root replaces it.
+        u = -0.5 * q
+        u -= np.copysign(np.sqrt(np.maximum(disc, 0.0)), q)
+        np.cbrt(u, out=u)
+        z = u - p / (3.0 * u)
+        three = np.flatnonzero(~(disc > 0.0))   # three real roots (or a NaN discriminant)
+        if three.size:
+            pt = np.minimum(p[three], 0.0)
+            m = 2.0 * np.sqrt(-pt / 3.0)
+            cos_arg = np.where(m > 0.0, 3.0 * q[three] / (pt * m), 0.0)
+            z[three] = m * np.cos(np.arccos(np.clip(cos_arg, -1.0, 1.0)) / 3.0)   # the largest
+    z -= shift
+    return z, overflow
 
 
 def _deflate(z1, c2, c1, c0):
@@ -79,26 +134,54 @@ def _deflate(z1, c2, c1, c0):
     Backward deflation (from the constant term) when z1 is the larger root, forward
     deflation otherwise: each is the stable direction for that case.
     """
-    with np.errstate(invalid="ignore", divide="ignore"):
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        g1 = c2 + z1                       # forward
+        g0 = z1 * g1
+        g0 += c1
         size = np.abs(z1)
         large = size * size * size >= np.abs(c0)
         safe = np.where(z1 != 0.0, z1, 1.0)
-        g0_back = -c0 / safe
+        g0_back = -c0 / safe               # backward
         g1_back = (g0_back - c1) / safe
-        g1_fwd = c2 + z1
-        g0_fwd = c1 + z1 * g1_fwd
-    return np.where(large, g1_back, g1_fwd), np.where(large, g0_back, g0_fwd)
+    # np.where, not a masked copy: branch-free, it costs the same for any mix of the two
+    return np.where(large, g1_back, g1), np.where(large, g0_back, g0)
+
+
+def _cubic_at(z, c2, c1, c0):
+    """Z^3 + c2 Z^2 + c1 Z + c0 by Horner's rule (a new array)."""
+    with np.errstate(invalid="ignore", over="ignore"):
+        f = z + c2
+        f *= z
+        f += c1
+        f *= z
+        f += c0
+    return f
+
+
+def _newton_step(z, f, c2, c1, c0, residual=True):
+    """One Newton step on the polynomial, kept only where it lowers |residual|: (z, f) after it
+    (z alone with ``residual=False``).
+
+    ``f`` is the residual at ``z``; the residual returned is the one at the z returned, so a
+    second step needs no new evaluation at its start. A step to a non-finite z has a
+    non-finite residual and is never kept.
+    """
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        df = 3.0 * z
+        df += 2.0 * c2
+        df *= z
+        df += c1
+        np.divide(f, df, out=df)
+        z_new = z - df
+        f_new = _cubic_at(z_new, c2, c1, c0)
+        better = np.abs(f_new, out=df) < np.abs(f)
+    z = np.where(better, z_new, z)
+    return (z, np.where(better, f_new, f)) if residual else z
 
 
 def _polish(z, c2, c1, c0):
-    """One Newton step on the polynomial, kept only where it lowers |residual|."""
-    with np.errstate(invalid="ignore", divide="ignore"):
-        f = ((z + c2) * z + c1) * z + c0
-        df = (3.0 * z + 2.0 * c2) * z + c1
-        z_new = z - f / df
-        f_new = ((z_new + c2) * z_new + c1) * z_new + c0
-        better = np.isfinite(z_new) & (np.abs(f_new) < np.abs(f))
-    return np.where(better, z_new, z)
+    """One Newton step on the polynomial, kept only where it lowers |residual| (a new array)."""
+    return _newton_step(z, _cubic_at(z, c2, c1, c0), c2, c1, c0, residual=False)
 
 
 def volume_roots(model, T, P):
@@ -122,7 +205,7 @@ def volume_roots(model, T, P):
     T, P = T.ravel(), P.ravel()
     out = np.empty((T.size, 3))
     for s in _chunks(T.size):
-        out[s] = np.stack(_volume_columns(model, T[s], P[s]), axis=-1)
+        _volume_columns(model, T[s], P[s], out=out[s])
     return out.reshape(shape + (3,))
 
 
@@ -130,20 +213,31 @@ def _chunks(n):
     return [slice(i, min(i + CHUNK, n)) for i in range(0, max(n, 1), CHUNK)] if n else []
 
 
-def _volume_columns(model, T, P):
-    """(v0, v1, v2): the roots v > b of 1-D (T, P), ascending, NaN-padded [m^3/mol]."""
+def _volume_columns(model, T, P, out=None):
+    """(v0, v1, v2): the roots v > b of 1-D (T, P), ascending, NaN-padded [m^3/mol].
+
+    With ``out`` (an (n, 3) array) the columns are written into it and its columns returned.
+    """
     c2, c1, c0, B = model.cubic_coefficients(T, P)
-    s0, s1, s2 = _sorted_roots(c2, c1, c0)
+    s = list(_sorted_roots(c2, c1, c0))
     # Keep Z > B. The columns are sorted, so the roots left out are the first few:
-    # shift the rest to the front by the number left out.
-    out = (s0 <= B).view(np.int8) + (s1 <= B).view(np.int8) + (s2 <= B).view(np.int8)
-    nan = np.nan
-    z0 = np.where(out == 0, s0, np.where(out == 1, s1, np.where(out == 2, s2, nan)))
-    z1 = np.where(out == 0, s1, np.where(out == 1, s2, nan))
-    z2 = np.where(out == 0, s2, nan)
+    # shift the rest to the front, one place per root left out.
+    for _ in range(3):
+        drop = s[0] <= B
+        if not drop.any():
+            break
+        s = [np.where(drop, s[1], s[0]), np.where(drop, s[2], s[1]), np.where(drop, np.nan, s[2])]
     scale = R * T / P
     c = model.c
-    return z0 * scale - c, z1 * scale - c, z2 * scale - c
+    if out is None:   # three contiguous columns of their own
+        columns = tuple(np.empty(T.shape) for _ in range(3))
+    else:
+        columns = tuple(out[:, k] for k in range(3))
+    for z, column in zip(s, columns):
+        np.multiply(z, scale, out=column)
+        if c != 0.0:
+            column -= c
+    return columns
 
 
 def stable_roots(model, T, P):
@@ -192,7 +286,7 @@ def stable_roots_numpy(model, T, P):
     n = T.size
     roots = np.empty((n, 3))
     for s in _chunks(n):
-        roots[s] = np.stack(_volume_columns(model, T[s], P[s]), axis=-1)
+        _volume_columns(model, T[s], P[s], out=roots[s])
     stable = np.zeros(n, np.int8)
     v = roots[:, 0].copy()
     several = np.flatnonzero(np.isfinite(roots[:, 1]))   # usually a small share of the states

@@ -111,11 +111,24 @@ def _single_phase(model, T, P, v):
 
 
 def phase_codes(model, T, P, v):
-    """Phase code of single-phase states: above Tc by pressure, below Tc by v against v_c."""
+    """Phase code of single-phase states: above Tc by pressure, below Tc by v against v_c.
+
+    A NaN v reads as vapor; a NaN T counts as below Tc (its code comes from v), and so does
+    a NaN P above Tc. Built by adding boolean arrays (masked writes into random positions
+    cost several times more): with L = v < v_c, S = above Tc and P >= Pc, K = above Tc and
+    P not NaN, the code is (not L) + (K and L) + S, which is LIQUID (0), VAPOR (1) or
+    SUPERCRITICAL (2).
+    """
     Tc, Pc = model.fluid.Tc, model.fluid.Pc
-    v_c = model.v_c
-    code = np.where(v < v_c, LIQUID, VAPOR).astype(np.int8)   # NaN reads as vapor
-    above = T >= Tc
-    code[above & (P >= Pc)] = SUPERCRITICAL
-    code[above & (P < Pc)] = VAPOR
-    return code
+    v, T, P = np.asarray(v), np.asarray(T), np.asarray(P)
+    liquid = np.asarray(v < model.v_c)
+    above = T >= Tc                                   # False for NaN
+    critical = np.asarray(above & (P >= Pc))          # S
+    by_pressure = np.asarray((critical | (above & (P < Pc))) & liquid)   # K and L
+    code = np.asarray(~liquid).view(np.int8) + by_pressure.view(np.int8)
+    code += critical.view(np.int8)
+    return np.asarray(code)
+
+
+if (LIQUID, VAPOR, SUPERCRITICAL) != (0, 1, 2):   # phase_codes adds booleans into these codes
+    raise ImportError("phase_codes needs LIQUID, VAPOR, SUPERCRITICAL = 0, 1, 2")
