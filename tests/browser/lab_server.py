@@ -6,6 +6,7 @@ from __future__ import annotations
 import contextlib
 import json
 import os
+import re
 import secrets
 import shutil
 import socket
@@ -100,3 +101,29 @@ def _shutdown(proc, base, token):
         except subprocess.TimeoutExpired:
             proc.kill()
             proc.wait(timeout=10)
+
+
+def run_all_cells(page, *, attempts: int = 3, started_ms: int = 30_000) -> None:
+    """Run > Run All Cells, as a person would, and make sure it took.
+
+    Right after a notebook opens, JupyterLab may not yet count it as the current widget; the
+    menu item is then disabled and a click on it does nothing (seen once in CI: every prompt
+    stayed "[ ]:" until the wait for the last output ran out). So wait for the item to be
+    enabled, click it, and check that some cell's prompt shows it queued or run; else retry."""
+    from playwright.sync_api import Error as PlaywrightError
+
+    notebook = page.locator(".jp-NotebookPanel:not(.lm-mod-hidden) .jp-Notebook")
+    started = notebook.locator(".jp-InputPrompt", has_text=re.compile(r"\[(\*|\d+)\]"))
+    for attempt in range(1, attempts + 1):
+        notebook.locator(".jp-Cell .jp-InputPrompt").first.click()   # focus the notebook: it becomes current
+        page.locator(".lm-MenuBar-item", has_text=re.compile(r"^Run$")).click()
+        item = page.locator(".lm-Menu-item[data-command='runmenu:run-all']:not(.lm-mod-disabled)")
+        item.wait_for(state="visible")
+        item.click()
+        try:
+            started.first.wait_for(state="attached", timeout=started_ms)
+            return
+        except PlaywrightError:
+            page.keyboard.press("Escape")                 # close the menu should it still be open
+            if attempt == attempts:
+                raise AssertionError(f"Run All Cells did not start the notebook in {attempts} tries")

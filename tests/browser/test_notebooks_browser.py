@@ -9,7 +9,7 @@ import re
 
 import pytest
 
-from .lab_server import lab_server
+from .lab_server import lab_server, run_all_cells
 from .test_state_point_browser import ARGS, CHROMIUM, OUTPUT, REPO, TIMEOUT_MS, _need_chromium
 
 NOTEBOOKS = sorted(p.name for p in (REPO / "notebooks").glob("*.ipynb"))
@@ -59,8 +59,7 @@ def test_every_notebook_runs_in_chromium_and_fits_its_column(tmp_path):
                 file_list = page.locator(".jp-SideBar.jp-mod-left .lm-TabBar-tab.lm-mod-current")
                 if file_list.count():             # fold the file list (the workspace remembers it folded)
                     file_list.click()
-                page.locator(".lm-MenuBar-item", has_text=re.compile(r"^Run$")).click()
-                page.locator(".lm-Menu-item[data-command='runmenu:run-all']").click()
+                run_all_cells(page)
                 notebook = page.locator(".jp-NotebookPanel:not(.lm-mod-hidden)")
                 # the last cell is the caution: its output appears once every cell before it has run
                 expect(notebook.locator(".jp-OutputArea-output", has_text="Caution.").last).to_be_visible()

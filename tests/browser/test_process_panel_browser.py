@@ -10,7 +10,7 @@ import thermo_roots as tr
 from thermo_roots import steps
 from thermo_roots.demo import EQUIPMENT
 
-from .lab_server import lab_server
+from .lab_server import lab_server, run_all_cells
 from .test_state_point_browser import ARGS, CHROMIUM, OUTPUT, REPO, TIMEOUT_MS, _need_chromium
 
 
@@ -41,8 +41,7 @@ def test_process_panel_renders_its_step_and_diagram_in_chromium(tmp_path):
             file_list = page.locator(".jp-SideBar.jp-mod-left .lm-TabBar-tab.lm-mod-current")
             if file_list.count():
                 file_list.click()
-            page.locator(".lm-MenuBar-item", has_text=re.compile(r"^Run$")).click()
-            page.locator(".lm-Menu-item[data-command='runmenu:run-all']").click()
+            run_all_cells(page)
 
             panel = page.locator(".thermo-roots-process-panel")
             expect(panel).to_have_count(1)

@@ -13,7 +13,7 @@ import pytest
 import thermo_roots as tr
 from thermo_roots.reference import cross_check
 
-from .lab_server import lab_server
+from .lab_server import lab_server, run_all_cells
 
 CHROMIUM = Path("/usr/bin/chromium")
 ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
@@ -60,8 +60,7 @@ def test_state_point_notebook_in_chromium(tmp_path):
             page.locator(".jp-SideBar.jp-mod-left .lm-TabBar-tab.lm-mod-current").click()   # fold the file list
             expect(page.locator("#jp-left-stack")).to_be_hidden()
 
-            page.locator(".lm-MenuBar-item", has_text=re.compile(r"^Run$")).click()
-            page.locator(".lm-Menu-item[data-command='runmenu:run-all']").click()
+            run_all_cells(page)
 
             panels = page.locator(".thermo-roots-state-panel")
             expect(panels).to_have_count(2)        # V-212's panel, and the shift log's
