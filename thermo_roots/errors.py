@@ -38,3 +38,7 @@ class ConvergenceError(ThermoRootsError):
     def __init__(self, message: str, result=None):
         super().__init__(message)
         self.result = result
+
+
+class MixtureNotSupportedError(InputError):
+    """A pure-fluid calculation (saturation line, sweep, one fluid's cross-check) asked of a mixture model."""

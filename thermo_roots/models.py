@@ -16,6 +16,7 @@ numpy arrays and broadcast like numpy.
 
 from __future__ import annotations
 
+import copy
 import math
 import numbers
 from dataclasses import dataclass, field
@@ -360,6 +361,50 @@ def cubic_attraction_gap(zl, zv, B, d1, d2):
     return np.log((zl + d1 * B) * (zv + d2 * B) / ((zl + d2 * B) * (zv + d1 * B))) / (d1 - d2)
 
 
+# --------------------------------------------------------------------------- mixing rules
+# The van der Waals one-fluid rule, a = sum_i sum_j x_i x_j a_ij with a_ij = sqrt(a_i a_j)(1 - k_ij),
+# b = sum_i x_i b_i, c = sum_i x_i c_i, written with q_i = sqrt(a_i(T)) so that a_ij = M_ij q_i q_j
+# (M = 1 - k) and the T derivatives follow from those of q. Plain arithmetic on arrays whose
+# last axis is the component: one formula for every composition, a pure fluid's included.
+
+def mixing_attraction(q, dq, d2q, M, x):
+    """(a, da/dT, d2a/dT2, psi) of the van der Waals one-fluid rule at compositions x.
+
+    q, dq, d2q : sqrt(a_i(T)) and its two T-derivatives, shape (..., n) [sqrt(Pa) m^3/mol ...];
+    M : 1 - k_ij, shape (n, n), symmetric; x : mole fractions, shape (..., n).
+    psi_i = sum_j x_j a_ij [Pa m^6/mol^2], the term ln phi_i needs (d(n^2 a)/dn_i = 2 psi_i).
+    a = sum_i x_i psi_i; da = 2 sum_i x_i dq_i (M w)_i with w = q x;
+    d2a = 2 sum_i x_i (d2q_i (M w)_i + dq_i (M dw)_i) with dw = dq x
+    (Michelsen & Mollerup 2007, ch. 3, classical mixing rules).
+    """
+    Mw = (q * x) @ M
+    Mdw = (dq * x) @ M
+    psi = q * Mw
+    a = np.sum(x * psi, axis=-1)
+    da = 2.0 * np.sum(x * dq * Mw, axis=-1)
+    d2a = 2.0 * np.sum(x * (d2q * Mw + dq * Mdw), axis=-1)
+    return a, da, d2a, psi
+
+
+def cubic_component_ln_phi(Z, A, B, b_ratio, psi_ratio, d1, d2):
+    """ln phi_i [-] of every component in one phase of the untranslated cubic, from its root Z.
+
+    A = a P/(R T)^2, B = b P/(R T) of the phase (shape (...)); b_ratio = b_i/b and
+    psi_ratio = psi_i/a (shape (..., n)); d1, d2 the family's constants.
+    ln phi_i = (b_i/b)(Z - 1) - ln(Z - B) - (A/B)(2 psi_i/a - b_i/b) J,
+    J = ln((Z + d1 B)/(Z + d2 B))/(d1 - d2), or B/(Z + d B) when d1 = d2 = d (van der Waals):
+    for one component it is the pure fluid's Z - 1 - ln(Z - B) - (A/B) J. A volume
+    translation c_i subtracts c_i P/(R T) from each (Peneloux, Rauzy & Freze 1982).
+    (Michelsen & Mollerup 2007, ch. 4.)
+    """
+    Z, A, B = Z[..., None], A[..., None], B[..., None]
+    if d1 == d2:
+        J = B / (Z + d1 * B)
+    else:
+        J = np.log((Z + d1 * B) / (Z + d2 * B)) / (d1 - d2)
+    return b_ratio * (Z - 1.0) - np.log(Z - B) - (A / B) * (2.0 * psi_ratio - b_ratio) * J
+
+
 class CubicParameters(NamedTuple):
     """What the compiled loops need of a model (``Model.formula_parameters``); SI units."""
 
@@ -382,6 +427,9 @@ FORMULAS = ("redlich_kwong_alpha_parts", "soave_alpha_parts", "alpha_parts", "cu
             "cubic_pressure", "cubic_dP_dv", "cubic_dP_dT", "cubic_residual_helmholtz", "cubic_residual_entropy",
             "cubic_residual", "cubic_ln_phi", "cubic_dP_dv_at", "cubic_z_coefficients", "cubic_z_root_rate",
             "cubic_fugacity_gap_z", "cubic_attraction_gap")
+
+#: The mixing-rule formulas (numpy only for now: the compiled loops take one component).
+MIXING_FORMULAS = ("mixing_attraction", "cubic_component_ln_phi")
 
 
 # --------------------------------------------------------------------------- models
@@ -512,43 +560,158 @@ class CubicModel(Model):
 
     family: CubicFamily
 
-    def __init__(self, fluid: Fluid, family: CubicFamily | None = None, volume_shift=0.0,
-                 reference_state: str = "reference"):
-        fluid = self.fluid = _pure_fluid(fluid, f"{type(self).__name__}(fluid)")
+    def __init__(self, fluid, family: CubicFamily | None = None, volume_shift=0.0,
+                 reference_state: str = "reference", kij=None):
+        who = f"{type(self).__name__}(fluid)"
+        components = _components(fluid, who)
         self.reference_state = _reference_state(reference_state)
         if family is not None:
             self.family = family
         f = self.family
         self.name = f.name
         self.delta1, self.delta2 = f.delta1, f.delta2
-        self.a_c = f.omega_a * (R * fluid.Tc) ** 2 / fluid.Pc
-        self.b = f.omega_b * R * fluid.Tc / fluid.Pc
-        self.c = _volume_shift(volume_shift, f, fluid, self.b)
-        self.v_min = self.b - self.c
-        self.v_c = f.Zc * R * fluid.Tc / fluid.Pc - self.c
-        self.Zc = f.Zc - self.c * fluid.Pc / (R * fluid.Tc)
-        if self.c:
+        self.components = components
+        self.n_components = len(components)
+        self._fluid = components.fluids[0] if self.n_components == 1 else None
+        Tc, Pc = components.Tc, components.Pc
+        self._Tc_i, self._omega_i = Tc, components.omega
+        self._a_c_i = f.omega_a * (R * Tc) ** 2 / Pc
+        self._b_i = f.omega_b * R * Tc / Pc
+        self._c_i = _component_shifts(volume_shift, f, components, self._b_i)
+        self.kij = _kij_matrix(kij, components, type(self).__name__)
+        self._one_minus_k = 1.0 - self.kij
+        self._set_composition(components.z)
+        if self._fluid is not None:     # one component: the pure fluid's own numbers
+            self.a_c = float(self._a_c_i[0])
+            self.v_c = f.Zc * R * Tc[0] / Pc[0] - self.c
+            self.Zc = f.Zc - self.c * Pc[0] / (R * Tc[0])
+        else:                           # Kay's rule: a label boundary for single-phase roots only
+            self.v_c = float(components.z @ (f.Zc * R * Tc / Pc)) - self.c
+        if np.any(self._c_i):
             self.name = f"{f.name} (translated)"
 
+    def _set_composition(self, z):
+        """The feed composition z and what follows from it: b, c, v_min [m^3/mol]."""
+        self.z = np.asarray(z, dtype=float)
+        self.b = float(self.z @ self._b_i)
+        self.c = float(self.z @ self._c_i)
+        self.v_min = self.b - self.c
+
+    @property
+    def fluid(self) -> Fluid:
+        """The pure fluid this model describes; a mixture model has none (refused, with what to use)."""
+        if self._fluid is None:
+            from .errors import MixtureNotSupportedError
+
+            raise MixtureNotSupportedError(
+                f"{self!r} describes a mixture of {self.n_components} components; this is a pure-fluid "
+                "calculation (saturation line, sweeps, cross-checks of one fluid). For a mixture use "
+                "thermo_roots.solve(model, T=..., P=...) or the bubble and dew points.")
+        return self._fluid
+
+    @property
+    def is_mixture(self) -> bool:
+        """True when the model has more than one component."""
+        return self.n_components > 1
+
+    def at_composition(self, x) -> "CubicModel":
+        """The same model (constants, k_ij) at another composition x [-]: one phase of a split."""
+        x = np.asarray(x, dtype=float)
+        if x.shape != (self.n_components,) or not np.all(np.isfinite(x)) or np.any(x < 0):
+            from .errors import InputError
+
+            raise InputError(f"at_composition: x must be {self.n_components} finite mole fractions >= 0; got {x!r}.")
+        twin = copy.copy(self)
+        twin.components = self.components.with_fractions(x, normalize=True)
+        twin._set_composition(twin.components.z)
+        if twin._fluid is None:
+            f = self.family
+            twin.v_c = float(twin.z @ (f.Zc * R * self._Tc_i / self.components.Pc)) - twin.c
+        return twin
+
     # -- the pieces of the equation
+    def component_attraction(self, T):
+        """sqrt(a_i(T)) of every component and its two T-derivatives, each shape T.shape + (n,).
+
+        q = sqrt(a_c alpha), dq = a'/(2 q), d2q = a''/(2 q) - a'^2/(4 q^3): what the mixing rule
+        (:func:`mixing_attraction`) takes.
+        """
+        T = np.asarray(T, dtype=float)
+        parts = [self.family.alpha(T, Tc, omega) for Tc, omega in zip(self._Tc_i, self._omega_i)]
+        alpha, dalpha, d2alpha = (np.stack(np.broadcast_arrays(*(p[k] for p in parts), T)[:-1], axis=-1)
+                                  for k in range(3))
+        a, da, d2a = self._a_c_i * alpha, self._a_c_i * dalpha, self._a_c_i * d2alpha
+        q = np.sqrt(a)
+        return q, 0.5 * da / q, 0.5 * d2a / q - 0.25 * da * da / (q * a)
+
+    def mixture_attraction(self, T, x):
+        """(a, da/dT, d2a/dT2, psi) at T [K] and compositions x (..., n): :func:`mixing_attraction`."""
+        q, dq, d2q = self.component_attraction(T)
+        return mixing_attraction(q, dq, d2q, self._one_minus_k, np.asarray(x, dtype=float))
+
+    def _attraction_parts(self, T):
+        """a(T), da/dT, d2a/dT2 at the feed composition [Pa m^6/mol^2 ...].
+
+        One component: a_c alpha, the mixing rule's value for x = (1,) written without the
+        square root and its square (so a pure fluid keeps every digit).
+        """
+        if self._fluid is not None:
+            alpha, dalpha, d2alpha = self.family.alpha(T, self._fluid.Tc, self._fluid.omega)
+            return self.a_c * alpha, self.a_c * dalpha, self.a_c * d2alpha
+        a, da, d2a, _ = self.mixture_attraction(T, self.z)
+        return a, da, d2a
+
     def attraction(self, T):
         """a(T) [Pa m^6/mol^2] and da/dT [Pa m^6/(mol^2 K)]."""
-        alpha, dalpha, _ = self.family.alpha(T, self.fluid.Tc, self.fluid.omega)
-        return self.a_c * alpha, self.a_c * dalpha
+        a, da, _ = self._attraction_parts(T)
+        return a, da
 
     def attraction_curvature(self, T):
         """d2a/dT2 [Pa m^6/(mol^2 K^2)] at T [K]."""
-        return self.a_c * self.family.alpha(T, self.fluid.Tc, self.fluid.omega)[2]
+        return self._attraction_parts(T)[2]
+
+    def phase_coefficients(self, T, P, x):
+        """The cubic in Z of a phase of composition x (..., n) at (T, P): (c2, c1, c0, A, B, psi/a).
+
+        Z is the untranslated cubic's; A = a P/(R T)^2, B = b P/(R T) of the phase.
+        """
+        T, P, x = np.asarray(T, dtype=float), np.asarray(P, dtype=float), np.asarray(x, dtype=float)
+        a, _, _, psi = self.mixture_attraction(T, x)
+        RT = R * T
+        A, B = a * P / (RT * RT), (x @ self._b_i) * P / RT
+        c2, c1, c0, _ = cubic_z_coefficients(A, B, self.delta1 + self.delta2, self.delta1 * self.delta2)
+        return c2, c1, c0, A, B, psi / a[..., None]
+
+    def component_ln_phi(self, T, P, x, Z):
+        """ln phi_i [-] of every component in a phase of composition x (..., n) whose root is Z.
+
+        Z is a root of :meth:`phase_coefficients`' cubic (untranslated); the translation of
+        each component enters as - c_i P/(R T). See :func:`cubic_component_ln_phi`.
+        """
+        T, P, x = np.asarray(T, dtype=float), np.asarray(P, dtype=float), np.asarray(x, dtype=float)
+        _, _, _, A, B, psi_ratio = self.phase_coefficients(T, P, x)
+        b = x @ self._b_i
+        ln_phi = cubic_component_ln_phi(np.asarray(Z, dtype=float), A, B, self._b_i / b[..., None], psi_ratio,
+                                        self.delta1, self.delta2)
+        return ln_phi - self._c_i * (P / (R * T))[..., None]
 
     def formula_parameters(self):
-        """This model as a :class:`CubicParameters`, or None if its alpha is not a built-in formula."""
+        """This model as a :class:`CubicParameters`, or None if its alpha is not a built-in formula.
+
+        A mixture is None too: the compiled loops take one component.
+        """
         known = self.family.compiled_alpha
-        if known is None:
+        if known is None or self._fluid is None:
             return None
         kind, slope = known
         return CubicParameters(int(kind), float(self.fluid.Tc), 0.0 if slope is None else float(slope(self.fluid.omega)),
                                float(self.a_c), float(self.b), float(self.c), float(self.v_min),
                                float(self.delta1), float(self.delta2), float(self.fluid.Pc), float(self.v_c))
+
+    def __repr__(self):
+        if self._fluid is None:
+            return f"{type(self).__name__}({self.components!r})"
+        return super().__repr__()
 
     def _factors(self, v):
         """(e1, e2, D) = (v_cubic + d1 b, v_cubic + d2 b, their product) at the model volume v."""
@@ -615,11 +778,11 @@ class CubicModel(Model):
         (Michelsen & Mollerup 2007, ch. 3). Returns a :class:`Helmholtz`.
         """
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
-        alpha, dalpha, d2alpha = self.family.alpha(T, self.fluid.Tc, self.fluid.omega)
-        a_c, d1, d2 = self.a_c, self.delta1, self.delta2
+        a, da, d2a = self._attraction_parts(T)
+        d1, d2 = self.delta1, self.delta2
         with np.errstate(invalid="ignore", divide="ignore"):
             e1, e2, _ = self._factors(v)
-            parts = cubic_residual(T, v, R, a_c * alpha, a_c * dalpha, a_c * d2alpha, self.b, self.c, self.v_min,
+            parts = cubic_residual(T, v, R, a, da, d2a, self.b, self.c, self.v_min,
                                    d1, d2, cubic_repulsion(v, self.v_min), cubic_log_ratio(e1, e2, d1, d2))
         return Helmholtz(*(_scalar_or_array(x) for x in parts))
 
@@ -767,16 +930,68 @@ MODELS = {cls.short_name: cls for cls in
 
 
 def _pure_fluid(fluid, caller) -> Fluid:
-    """The one pure fluid a model describes; a Mixture is refused with what exists today."""
+    """The one pure fluid a model describes (the ideal gas here takes no mixture)."""
     from .mixtures import Mixture
 
     if isinstance(fluid, Mixture):
+        if len(fluid) == 1:
+            return fluid.fluids[0]
         from .errors import InputError
 
-        raise InputError(f"{caller} takes one pure fluid; got a mixture of {len(fluid)} components. The equations "
-                         "of state for mixtures are not built yet (thermo_roots.equilibrium has the Rachford-Rice "
-                         "split and Wilson K-values only); give one fluid, e.g. 'methane'.")
+        raise InputError(f"{caller} takes one pure fluid; got a mixture of {len(fluid)} components. For a "
+                         "mixture use a cubic, e.g. PengRobinson(mixture, kij=...).")
     return as_fluid(fluid, caller)
+
+
+def _components(fluid, caller):
+    """The model's components as a Mixture: the one given, or a pure fluid as one component."""
+    from .mixtures import Mixture
+
+    if isinstance(fluid, Mixture):
+        return fluid
+    return Mixture([(as_fluid(fluid, caller), 1.0)])
+
+
+def _component_shifts(option, family: CubicFamily, components, b_i) -> np.ndarray:
+    """The translation c_i [m^3/mol] of every component, each checked below its b_i.
+
+    One component: a number or "peneloux" (:func:`_volume_shift`). A mixture: "peneloux"
+    (each component's own), 0, or one number per component in the mixture's order.
+    """
+    fluids = components.fluids
+    if len(fluids) == 1:
+        return np.array([_volume_shift(option, family, fluids[0], float(b_i[0]))])
+    if isinstance(option, str):
+        return np.array([_volume_shift(option, family, f, float(b)) for f, b in zip(fluids, b_i)])
+    if isinstance(option, numbers.Real) and not isinstance(option, (bool, np.bool_)) and option == 0:
+        return np.zeros(len(fluids))
+    try:
+        values = list(option)
+    except TypeError:
+        values = None
+    if values is None or len(values) != len(fluids):
+        from .errors import InputError
+
+        raise InputError(f"volume_shift={option!r}: for a mixture of {len(fluids)} components give 'peneloux', 0, "
+                         f"or {len(fluids)} shifts [m^3/mol] in the order {', '.join(components.names)}.")
+    return np.array([_volume_shift(c, family, f, float(b)) for c, f, b in zip(values, fluids, b_i)])
+
+
+def _kij_matrix(kij, components, caller) -> np.ndarray:
+    """The k_ij matrix in component order from None, a mapping of pairs, BinaryParameters or a matrix."""
+    from .mixtures import BinaryParameters
+
+    if kij is None:
+        matrix = np.zeros((len(components), len(components)))
+    elif isinstance(kij, BinaryParameters):
+        matrix = kij.matrix(components)
+    elif isinstance(kij, dict):
+        matrix = BinaryParameters(kij).matrix(components)
+    else:
+        matrix = BinaryParameters.from_matrix(kij, components).matrix(components)
+    matrix = np.array(matrix, dtype=float)
+    matrix.flags.writeable = False
+    return matrix
 
 
 def _scalar_or_array(x):
