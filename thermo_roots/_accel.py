@@ -165,9 +165,10 @@ def caloric_kernel(model):
     kernels = None if _switched_off else _compiled()
     if kernels is None:
         return None
-    cubic, ideal = model.formula_parameters(), model.fluid.ideal_gas
-    if cubic is None or ideal is None:
+    cubic = model.formula_parameters()          # None for a mixture: the loop takes one component
+    if cubic is None or model.fluid.ideal_gas is None:
         return None
+    ideal = model.fluid.ideal_gas
     terms, dR, M = ideal.terms, R - ideal.R, float(model.fluid.molar_mass)
 
     def run(T, v, P, shape):

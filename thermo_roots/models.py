@@ -447,7 +447,14 @@ class Model:
     short_name = ""
     reference_state = "reference"   # the ideal gas has no saturation to fix another zero on
     has_saturation = True
+    n_components = 1
+    is_mixture = False
     fluid: Fluid
+
+    @property
+    def molar_mass(self) -> float:
+        """Molar mass [kg/mol]: the fluid's, or a mixture's Σ zᵢ Mᵢ."""
+        return self.fluid.molar_mass
 
     def formula_parameters(self):
         """The model as a :class:`CubicParameters` for the compiled loops, or None (numpy only)."""
@@ -613,6 +620,11 @@ class CubicModel(Model):
     def is_mixture(self) -> bool:
         """True when the model has more than one component."""
         return self.n_components > 1
+
+    @property
+    def molar_mass(self) -> float:
+        """Molar mass [kg/mol]: the fluid's, or the mixture's Σ zᵢ Mᵢ at the model's composition."""
+        return self._fluid.molar_mass if self._fluid is not None else self.components.molar_mass
 
     def at_composition(self, x) -> "CubicModel":
         """The same model (constants, k_ij) at another composition x [-]: one phase of a split."""

@@ -49,27 +49,49 @@ ACCEL_MIN_SIZE = 2048
 
 
 def helmholtz(model, T, v) -> Helmholtz:
-    """a(T, v) = a0 (the fluid's ideal-gas part) + a_res (the model's), with derivatives.
+    """a(T, v) = a0 (the ideal-gas part) + a_res (the model's), with derivatives.
+
+    A mixture's ideal gas is the mole-weighted sum of its components' ideal parts at the
+    same (T, v) plus the ideal mixing term R T Σ zᵢ ln zᵢ (whose only derivative is the
+    entropy of mixing, -R Σ zᵢ ln zᵢ); a pure fluid is its one component.
 
     Raises
     ------
     DomainError
-        The fluid has no ideal-gas heat capacity (a user-defined Fluid without cp0).
+        A component has no ideal-gas heat capacity (a user-defined Fluid without cp0).
     """
-    ideal = _ideal_part(model)
-    parts = (ideal.helmholtz(T, v), _gas_constant_shift(ideal, T, v), model.residual_bundle(T, v))
-    return Helmholtz(*(x + y + z for x, y, z in zip(*parts)))
+    T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
+    total = model.residual_bundle(T, v)
+    for ideal, fraction in _ideal_parts(model):
+        if fraction == 0.0:
+            continue
+        parts = zip(ideal.helmholtz(T, v), _gas_constant_shift(ideal, T, v))
+        total = Helmholtz(*(t + fraction * (x + y) for t, (x, y) in zip(total, parts)))
+    mixing = ideal_mixing_term(model.z) if model.is_mixture else 0.0
+    if mixing:
+        total = total._replace(a=total.a + R * T * mixing, a_T=total.a_T + R * mixing)
+    return total
 
 
-def _ideal_part(model):
-    ideal = model.fluid.ideal_gas
-    if ideal is None:
-        from .errors import DomainError
+def ideal_mixing_term(z) -> float:
+    """Σ zᵢ ln zᵢ [-] (0 ln 0 = 0): the ideal mixing Gibbs energy over R T (common practice)."""
+    z = np.asarray(z, dtype=float)
+    present = z > 0
+    return float(np.sum(z[present] * np.log(z[present])))
 
-        raise DomainError(f"{model.fluid.name} has no ideal-gas heat capacity, so enthalpy, entropy and heat "
-                          "capacities are unknown; give Fluid(..., cp0=...) (a constant or polynomial in "
-                          "J/(mol K)), or use a library fluid.")
-    return ideal
+
+def _ideal_parts(model):
+    """(ideal-gas part, mole fraction) of every component; a pure fluid: ((its part, 1.0),)."""
+    fluids = model.components.fluids if model.is_mixture else (model.fluid,)
+    fractions = model.z if model.is_mixture else (1.0,)
+    for fluid in fluids:
+        if fluid.ideal_gas is None:
+            from .errors import DomainError
+
+            raise DomainError(f"{fluid.name} has no ideal-gas heat capacity, so enthalpy, entropy and heat "
+                              "capacities are unknown; give Fluid(..., cp0=...) (a constant or polynomial in "
+                              "J/(mol K)), or use a library fluid.")
+    return tuple((fluid.ideal_gas, float(x)) for fluid, x in zip(fluids, fractions))
 
 
 # --------------------------------------------------------------------------- the formulas
@@ -141,10 +163,10 @@ def caloric(model, T, v, P=None) -> Caloric:
 
         kernel = _accel.caloric_kernel(model)
         if kernel is not None:
-            _ideal_part(model)   # the same error as the numpy path's for a fluid without cp0
+            _ideal_parts(model)   # the same error as the numpy path's for a fluid without cp0
             return Caloric(*kernel(T, v, P, shape))
-    _ideal_part(model)
+    _ideal_parts(model)
     with np.errstate(invalid="ignore", divide="ignore"):   # unphysical elements (T <= 0, v <= b) give NaN quietly
         A = helmholtz(model, T, v)
         P = -A.a_v if P is None else np.asarray(P, dtype=float)
-        return Caloric(*caloric_from_helmholtz(T, v, P, model.fluid.molar_mass, *A))
+        return Caloric(*caloric_from_helmholtz(T, v, P, model.molar_mass, *A))
