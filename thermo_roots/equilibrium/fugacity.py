@@ -64,7 +64,7 @@ def phase_fugacity(model, T, P, x, root: str = "stable") -> PhaseFugacity:
     T, P = np.broadcast_to(T, shape), np.broadcast_to(P, shape)
     x = np.broadcast_to(x, shape + x.shape[-1:])
     x = x / np.sum(x, axis=-1, keepdims=True)
-    with np.errstate(invalid="ignore", divide="ignore"):
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):   # a bad state gives NaN quietly
         c2, c1, c0, A, B, _ = model.phase_coefficients(T, P, x)
         roots = cubic_real_roots(c2, c1, c0)
         roots = np.where(roots > B[..., None], roots, np.nan)
