@@ -239,3 +239,27 @@ def test_text_knowns_and_the_notebook_view():
     assert "mol/m³" in page and "vapor y" in page and "licensed engineer" in page and "methane" in page
     many = ref.reference_mixture_state(binary, np.array([300.0, np.nan]), 1e5)
     assert "2 states, 1 available" in many._repr_html_() and "not a finite number" in many._repr_html_()
+
+
+def test_a_split_with_a_negative_mole_fraction_is_unavailable(monkeypatch):
+    # CoolProp's saturation solvers can return a negative mole fraction (its PR backend did
+    # for a natural gas's dew point, tests/equilibrium/coolprop_cubic.py); mole fractions are
+    # never negative (common practice), so such an answer must not pass as a reference value.
+    binary = tr.Mixture(BINARY)
+    good = ref.reference_dew_point(binary, T=200.0)
+    assert good.available
+
+    class Negative:
+        def __init__(self, state):
+            self._state = state
+
+        def __getattr__(self, name):
+            return getattr(self._state, name)
+
+        def mole_fractions_liquid(self):
+            return [1.1, -0.1]
+
+    real = refmix._mixture_abstract_state
+    monkeypatch.setattr(refmix, "_mixture_abstract_state", lambda names: Negative(real(names)))
+    bad = ref.reference_dew_point(binary, T=200.0)
+    assert not bad.available and "negative mole fraction" in bad.reason and np.isnan(bad.P)

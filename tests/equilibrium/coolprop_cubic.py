@@ -50,9 +50,14 @@ Where it fails or mislabels:
 - its (T, P) flash decides one phase or two by its own stability test; near a phase
   boundary it can differ from another code's (SRK says two-phase with vapor fraction 0.9993
   for the six-component gas at 250 K, 5 MPa, where its HEOS says one phase);
-- its bubble and dew points at T fail for the six-component gas at 200-250 K (QT with Q = 0:
-  "The molar density of ... mol/m3 is below the minimum"; HEOS alike), returned here as
-  ``CubicSaturation.failure`` instead of raising.
+- its bubble point at T fails for the six-component gas at 230 and 250 K ("df very small
+  ... in successive_substitution but f is not converged"; at 150 and 200 K it gives 1.13 and
+  4.25 MPa); the multiparameter backend's fails at 200 K ("The molar density of ... mol/m3 is
+  below the minimum") and 250 K. Failures come back as ``CubicSaturation.failure`` instead of
+  raising. Its dew point of the same gas at 250 K comes back at 11.8 MPa with a negative
+  n-butane fraction in the "liquid" (-0.11) and that liquid lighter than the vapor, while its
+  own flash finds one phase from 3 to 11.9 MPa there: nonphysical, so the oracle returns it
+  as a failure (any negative mole fraction is one).
 """
 
 from __future__ import annotations
@@ -183,8 +188,14 @@ class CoolPropCubic:
             s.update(CoolProp.QT_INPUTS, Q, float(T))
         except ValueError as error:
             return CubicSaturation(nan, z * nan, z * nan, nan, nan, str(error))
-        return CubicSaturation(s.p(), np.array(s.mole_fractions_liquid()), np.array(s.mole_fractions_vapor()),
-                               s.saturated_liquid_keyed_output(CoolProp.iDmolar),
+        x, y = np.array(s.mole_fractions_liquid()), np.array(s.mole_fractions_vapor())
+        if not (np.all(x >= 0) and np.all(y >= 0)):
+            # measured: the six-component gas's dew point at 250 K (PR) came back at 11.8 MPa
+            # with x(n-butane) = -0.11 and the "liquid" lighter than the vapor
+            return CubicSaturation(nan, z * nan, z * nan, nan, nan,
+                                   f"nonphysical answer: a negative mole fraction (x = {x.round(4).tolist()}, "
+                                   f"y = {y.round(4).tolist()}) at P = {s.p():.6g} Pa")
+        return CubicSaturation(s.p(), x, y, s.saturated_liquid_keyed_output(CoolProp.iDmolar),
                                s.saturated_vapor_keyed_output(CoolProp.iDmolar), "")
 
     def bubble_pressure(self, z, T: float) -> CubicSaturation:

@@ -117,3 +117,15 @@ def test_failures_come_back_as_text():
     if not point.failure:
         pytest.skip("this CoolProp finds the six-component bubble point at 250 K")
     assert np.isnan(point.P) and np.isnan(point.y).all()
+
+
+def test_a_nonphysical_saturation_answer_is_a_failure():
+    # CoolProp's PR dew point of this gas at 250 K came back with a negative mole fraction
+    # (measured, CoolProp 8.0.0); mole fractions are never negative (common practice), so the
+    # oracle must either fail there or give a physical answer
+    gas6 = ["methane", "ethane", "propane", "n-butane", "nitrogen", "CO2"]
+    point = CoolPropCubic(gas6).dew_pressure([0.85, 0.06, 0.03, 0.01, 0.03, 0.02], 250.0)
+    if point.failure:
+        assert np.isnan(point.P)
+    else:
+        assert np.all(point.x >= 0) and point.rho_liquid > point.rho_vapor

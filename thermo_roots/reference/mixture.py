@@ -218,9 +218,14 @@ def _read(out, i, state, CoolProp, phases, z, T_pc, P_pc):
     code = state.phase()
     out["library_phase"][i] = phases.get(code, "")
     if code == CoolProp.iphase_twophase:
+        x, y = np.asarray(state.mole_fractions_liquid()), np.asarray(state.mole_fractions_vapor())
+        if not (np.all(x >= 0.0) and np.all(y >= 0.0)):
+            # CoolProp's cubic backend returned such a split for a natural gas's dew point
+            # (tests/equilibrium/coolprop_cubic.py); a mole fraction is never negative
+            raise ValueError(f"nonphysical answer: a negative mole fraction (x = {np.round(x, 4).tolist()}, "
+                             f"y = {np.round(y, 4).tolist()}) at T = {T:.6g} K, P = {P:.6g} Pa")
         out["vapor_fraction"][i] = state.Q()
-        out["x"][i] = state.mole_fractions_liquid()
-        out["y"][i] = state.mole_fractions_vapor()
+        out["x"][i], out["y"][i] = x, y
         out["rho_liquid"][i] = state.saturated_liquid_keyed_output(CoolProp.iDmolar)
         out["rho_vapor"][i] = state.saturated_vapor_keyed_output(CoolProp.iDmolar)
         out["phase"][i] = "two-phase"
