@@ -263,3 +263,19 @@ def test_a_split_with_a_negative_mole_fraction_is_unavailable(monkeypatch):
     monkeypatch.setattr(refmix, "_mixture_abstract_state", lambda names: Negative(real(names)))
     bad = ref.reference_dew_point(binary, T=200.0)
     assert not bad.available and "negative mole fraction" in bad.reason and np.isnan(bad.P)
+
+
+def test_one_component_mixture_is_the_pure_reference_with_its_phase_words():
+    # With one component, Kay's pseudo-critical point is the critical point, so the mixture
+    # rule must give the project's pure-fluid phase words (supercritical: T >= Tc and P >= Pc;
+    # vapor above Tc below Pc), and CoolProp's mixture call its pure-fluid equation.
+    co2 = tr.Mixture({"CO2": 1.0})
+    T = np.array([250.0, 250.0, 320.0, 320.0])        # CO2: Tc 304.13 K, Pc 7.377 MPa
+    P = np.array([5e6, 1e6, 10e6, 5e6])
+    mix = ref.reference_mixture_state(co2, T, P)
+    pure = ref.reference_state("CO2", T=T, P=P, with_saturation=False)
+    assert list(mix.phase) == list(pure.phase) == ["liquid", "vapor", "supercritical", "vapor"]
+    np.testing.assert_allclose(mix.rho, 1.0 / pure.v, rtol=1e-9)
+    frame = mix.to_frame()
+    assert list(frame["phase"]) == list(mix.phase) and frame["x carbon dioxide"].tolist() == [1.0] * 4
+    np.testing.assert_allclose(frame["Z"], mix.Z, rtol=0)

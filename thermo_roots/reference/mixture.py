@@ -450,6 +450,22 @@ class ReferenceMixtureState:
             return self.x
         return np.full_like(np.asarray(self.x, dtype=float), np.nan)
 
+    def to_frame(self):
+        """The states as a pandas DataFrame, one row per state: T [K], P [Pa], rho [mol/m³], Z,
+        phase, library_phase, vapor_fraction, rho_liquid and rho_vapor [mol/m³], then the
+        liquid and vapor mole fractions as "x <component>" and "y <component>", and reason."""
+        import pandas as pd
+
+        n = int(np.size(self.available))
+        columns = {k: np.ravel(np.asarray(getattr(self, k))) for k in
+                   ("T", "P", "rho", "Z", "phase", "library_phase", "vapor_fraction", "rho_liquid", "rho_vapor")}
+        for label, comp in (("x", self.x), ("y", self.y)):
+            comp = np.asarray(comp, dtype=float).reshape(n, len(self.mixture))
+            for j, name in enumerate(self.mixture.names):
+                columns[f"{label} {name}"] = comp[:, j]
+        columns["reason"] = np.ravel(np.asarray(self.reason))
+        return pd.DataFrame({k: np.broadcast_to(v, (n,)) for k, v in columns.items()})
+
     def __repr__(self):
         name = _mixture_label(self.mixture)
         what = {"T,P": "", "bubble,T": "bubble point, ", "bubble,P": "bubble point, ",
