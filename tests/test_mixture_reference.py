@@ -7,6 +7,7 @@ petroleum gas. Each CoolProp mixture call takes 30-500 ms, so the tests use a ha
 states, each fixture once per module.
 """
 
+import sys
 from concurrent.futures import ThreadPoolExecutor
 
 import numpy as np
@@ -178,20 +179,32 @@ def test_user_fluid_without_reference_is_unavailable():
 
 
 def test_threads_and_map_executors_give_the_serial_result():
+    # one CoolProp state object per thread and mixture: with four threads, one state per
+    # chunk and a 10 µs switch interval, a shared object would hand one thread another's
+    # answer between update and read (as test_reference_threads.py does for pure fluids)
     binary = tr.Mixture(BINARY)
-    T = np.array([300.0, 250.0, 200.0, 180.0])
-    P = np.array([5e6, 1e6, 3e6, 1e5])
+    T = np.concatenate([[300.0, 250.0, 200.0, 180.0], np.linspace(250.0, 350.0, 12)])
+    P = np.concatenate([[5e6, 1e6, 3e6, 1e5], np.linspace(1e5, 2e6, 12)])
     serial = ref.reference_mixture_state(binary, T, P)
+    assert serial.available.all() and len(set(np.round(serial.rho, 6))) == T.size
 
     class MapOnly:   # anything with map(function, *iterables)
         def map(self, function, *iterables):
             return map(function, *iterables)
 
-    for executor in (ThreadPoolExecutor(2), MapOnly()):
-        got = ref.reference_mixture_state(binary, T, P, executor=executor, chunk_size=1)
+    old = sys.getswitchinterval()
+    sys.setswitchinterval(1e-5)
+    try:
+        with ThreadPoolExecutor(4) as pool:
+            runs = [ref.reference_mixture_state(binary, T, P, executor=pool, chunk_size=1),
+                    ref.reference_mixture_state(binary, T[:4], P[:4], executor=MapOnly(), chunk_size=1)]
+    finally:
+        sys.setswitchinterval(old)
+    for got in runs:
+        n = np.size(got.T)
         for name in ("rho", "Z", "vapor_fraction", "x", "y"):
-            np.testing.assert_allclose(getattr(got, name), getattr(serial, name), rtol=1e-12, equal_nan=True)
-        assert list(got.phase) == list(serial.phase)
+            np.testing.assert_allclose(getattr(got, name), getattr(serial, name)[:n], rtol=1e-12, equal_nan=True)
+        assert list(got.phase) == list(serial.phase[:n])
 
 
 def test_interrupted_run_keeps_the_finished_chunks(monkeypatch):
