@@ -205,3 +205,32 @@ class CoolPropCubic:
     def dew_pressure(self, z, T: float) -> CubicSaturation:
         """Dew point of feed ``z`` at T [K] (QT inputs, Q = 1): y = z, x the first drop."""
         return self._saturation(z, T, 1.0)
+
+    def ln_phi(self, comp, T: float, rho: float) -> np.ndarray:
+        """ln of the fugacity coefficients [-] of a phase of composition ``comp`` at T [K] and
+        molar density rho [mol/m³] (the backend's (rho, T) evaluation, no flash)."""
+        CoolProp, s = self._CoolProp, self.state
+        s.set_mole_fractions(list(np.asarray(comp, dtype=float)))
+        # an imposed phase: otherwise the backend keeps the two-phase flag of its last flash
+        # and refuses ("not well-defined in the two-phase region")
+        s.specify_phase(CoolProp.iphase_gas)
+        try:
+            s.update(CoolProp.DmolarT_INPUTS, float(rho), float(T))
+            return np.log([s.fugacity_coefficient(i) for i in range(len(self.fluids))])
+        finally:
+            s.unspecify_phase()
+
+    def reduced_gibbs(self, T: float, phases) -> float:
+        """G / (n R T) of a set of phases at T [K], less the pure components' ideal gas at the
+        same T and P: sum over phases of beta_p sum_i c_i (ln c_i + ln phi_i) [-].
+
+        ``phases`` is a sequence of (beta, composition, rho [mol/m³]); the phases must be at
+        one pressure. The lower value is the stabler answer (for comparing a one-phase and a
+        two-phase answer of a flash at the same T, P and feed)."""
+        total = 0.0
+        for beta, comp, rho in phases:
+            c = np.asarray(comp, dtype=float)
+            keep = c > 0
+            total += beta * float(np.sum(c[keep] * (np.log(c[keep]) + self.ln_phi(c, T, rho)[keep])))
+        return total
+

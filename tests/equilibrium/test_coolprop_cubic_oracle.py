@@ -129,3 +129,27 @@ def test_a_nonphysical_saturation_answer_is_a_failure():
         assert np.isnan(point.P)
     else:
         assert np.all(point.x >= 0) and point.rho_liquid > point.rho_vapor
+
+
+def test_ln_phi_and_the_gibbs_energy_of_a_split(oracle):
+    z, T, P = np.array([0.2, 0.4, 0.4]), 300.0, 5e6
+    f = oracle.flash(z, T, P)
+    # the oracle's ln phi is the Peng–Robinson formula's
+    np.testing.assert_allclose(oracle.ln_phi(f.x, T, f.rho_liquid), pr_ln_phi(NAMES, KIJ, T, P, f.rho_liquid, f.x),
+                               atol=1e-7)
+    # the split has a lower Gibbs energy than the feed as one phase at either cubic root
+    # (second law; the feed's roots from Peng & Robinson (1976) eq. 5)
+    split = oracle.reduced_gibbs(T, [(1 - f.vapor_fraction, f.x, f.rho_liquid), (f.vapor_fraction, f.y, f.rho_vapor)])
+    fl = [tr.get_fluid(n) for n in NAMES]
+    Tc, Pc, w = (np.array([getattr(q, k) for q in fl]) for k in ("Tc", "Pc", "omega"))
+    kappa = 0.37464 + 1.54226 * w - 0.26992 * w**2
+    ai = OMEGA_A * R**2 * Tc**2 / Pc * (1 + kappa * (1 - np.sqrt(T / Tc)))**2
+    A = z @ (np.sqrt(np.outer(ai, ai)) * (1 - KIJ)) @ z * P / (R * T)**2
+    B = z @ (OMEGA_B * R * Tc / Pc) * P / (R * T)
+    roots = np.roots([1.0, -(1 - B), A - 3 * B**2 - 2 * B, -(A * B - B**2 - B**3)])
+    real = roots[(np.abs(roots.imag) < 1e-10) & (roots.real > B)].real
+    assert real.size >= 1
+    for Z in real:
+        assert split < oracle.reduced_gibbs(T, [(1.0, z, P / (Z * R * T))])
+    # and the backend flashes as before after these (rho, T) evaluations
+    assert oracle.flash(z, T, P).vapor_fraction == pytest.approx(f.vapor_fraction, rel=1e-9)
