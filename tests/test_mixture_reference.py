@@ -236,6 +236,12 @@ def test_bad_arguments_are_named():
         ref.reference_bubble_point(binary, T=200.0, P=1e6)
     with pytest.raises(tr.InputError, match="exactly one of T"):
         ref.reference_dew_point(binary)
+    with pytest.raises(tr.InputError, match="give both T .* P is missing"):
+        ref.reference_mixture_state(binary, 300.0, None)
+    with pytest.raises(tr.InputError, match=r"T has shape \(2,\) and P has shape \(3,\)"):
+        ref.reference_mixture_state(binary, [300.0, 310.0], [1e5, 2e5, 3e5])
+    with pytest.raises(tr.InputError, match="reference_mixture_state: T: Cannot read the unit"):
+        ref.reference_mixture_state(binary, "5 apples", 1e5)
     with pytest.raises(TypeError, match="executor must be"):
         ref.reference_mixture_state(binary, 300.0, 1e5, executor=4)
     with pytest.raises(tr.InputError, match="chunk_size"):
@@ -248,6 +254,8 @@ def test_text_knowns_and_the_notebook_view():
     binary = tr.Mixture(BINARY)
     r = ref.reference_mixture_state(binary, "26.85 °C", "1 bar")
     assert r.T == pytest.approx(300.0) and r.P == pytest.approx(1e5)
+    shown = ref.reference_mixture_state(binary, 300.0, 1e5, progress=True)   # with a progress bar
+    assert shown.rho == pytest.approx(r.rho, rel=1e-12)
     page = r._repr_html_()
     assert "mol/m³" in page and "vapor y" in page and "licensed engineer" in page and "methane" in page
     many = ref.reference_mixture_state(binary, np.array([300.0, np.nan]), 1e5)

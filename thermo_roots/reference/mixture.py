@@ -606,7 +606,15 @@ def reference_mixture_state(mixture, T, P, *, progress=False, executor=None, chu
     where = "reference_mixture_state"
     mixture = _as_mixture(mixture, where)
     _check_options(progress, executor, chunk_size, on_interrupt)
+    if T is None or P is None:
+        raise InputError(f"{where}: give both T [K] and P [Pa], e.g. {where}(mixture, T=300.0, P=5e6); "
+                         f"{'T' if T is None else 'P'} is missing.")
     T, P = _known(T, "T", where), _known(P, "P", where)
+    try:
+        np.broadcast(T, P)
+    except ValueError:
+        raise InputError(f"{where}: T has shape {T.shape} and P has shape {P.shape}, which do not broadcast "
+                         "together; give arrays of one shape, or one of them as a single number.") from None
     return _result(mixture, "T,P", T, P, dict(progress=progress, executor=executor, chunk_size=chunk_size,
                                               on_interrupt=on_interrupt))
 
