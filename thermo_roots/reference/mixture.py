@@ -83,6 +83,7 @@ AUTO_MIXTURE_PROGRESS_ABOVE = 32
 #: The reason given to states a run did not reach because it was interrupted.
 MIXTURE_INTERRUPTED = "not evaluated: the run was interrupted before this state"
 #: A short caution shown with reference mixture values (they feed metering and filling decisions).
+#: (GERG-2008's stated uncertainty in gas-phase density: 0.1 % at 250-450 K up to 35 MPa, Kunz & Wagner 2012.)
 REFERENCE_MIXTURE_CAUTION = (
     "Reference mixture model (GERG-2008 type in CoolProp): its own uncertainty is about 0.1 % in gas density "
     "at pipeline conditions and larger in liquids, near the critical point and for pairs fitted to few data; "
@@ -492,7 +493,7 @@ class ReferenceMixtureState:
                     f"{caution}</div>")
         rows = [("T", f"{self.T:.6g} K"), ("P", f"{self.P / 1e6:.6g} MPa"), ("ρ", f"{self.rho:.6g} mol/m³"),
                 ("ρ (mass)", f"{self.rho_mass:.6g} kg/m³"), ("Z", f"{self.Z:.6g}"), ("phase", self.phase),
-                ("the library's label", self.library_phase), ("vapor fraction (molar)", f"{self.vapor_fraction:.6g}")]
+                ("the library's label", self.library_phase), ("vapor fraction (molar)", _cell(self.vapor_fraction))]
         if self.phase == "two-phase":
             rows += [("ρ liquid", f"{self.rho_liquid:.6g} mol/m³"), ("ρ vapor", f"{self.rho_vapor:.6g} mol/m³")]
         table = "".join(f"<tr><th style='text-align:left'>{html.escape(k)}</th><td>{html.escape(str(v))}</td></tr>"
@@ -512,13 +513,18 @@ class ReferenceMixtureState:
         head = ("<tr><th>T [K]</th><th>P [MPa]</th><th>ρ [mol/m³]</th><th>Z</th><th>phase</th>"
                 "<th>vapor fraction</th><th>note</th></tr>")
         body = "".join(
-            f"<tr><td>{flat['T'][i]:.6g}</td><td>{flat['P'][i] / 1e6:.6g}</td><td>{flat['rho'][i]:.6g}</td>"
-            f"<td>{flat['Z'][i]:.6g}</td><td>{html.escape(str(flat['phase'][i]))}</td>"
-            f"<td>{flat['vapor_fraction'][i]:.6g}</td><td>{html.escape(str(flat['reason'][i]))}</td></tr>"
+            f"<tr><td>{_cell(flat['T'][i])}</td><td>{_cell(flat['P'][i] / 1e6)}</td><td>{_cell(flat['rho'][i])}</td>"
+            f"<td>{_cell(flat['Z'][i])}</td><td>{html.escape(str(flat['phase'][i]))}</td>"
+            f"<td>{_cell(flat['vapor_fraction'][i])}</td><td>{html.escape(str(flat['reason'][i]))}</td></tr>"
             for i in range(min(n, limit)))
         more = f"<p>… {n - limit} more states</p>" if n > limit else ""
         return (f"<p>{n} states, {int(np.sum(self.available))} available</p><table>{head}{body}</table>"
                 f"{more}")
+
+
+def _cell(value) -> str:
+    """A number for a table cell: 6 digits, or a dash where there is none (NaN)."""
+    return "–" if value != value else f"{value:.6g}"
 
 
 def _scalar(x):
