@@ -178,8 +178,10 @@ def _knowns_reason(kind: str, a: float, b: float) -> str:
     values = (a, b) if kind == "T,P" else (a,)
     for name, value in zip(names, values):
         unit = "K" if name == "T" else "Pa"
+        if value != value:
+            return f"{name} is missing (NaN), not a finite number"
         if not math.isfinite(value):
-            return f"{name} = {value!r} is not a finite number"
+            return f"{name} is infinite, not a finite number"
         if value <= 0.0:
             return f"{name} = {value:.6g} {unit} is not positive"
     return ""
