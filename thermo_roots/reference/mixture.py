@@ -657,7 +657,8 @@ def reference_bubble_point(mixture, *, T=None, P=None, progress=False, executor=
         ``kind`` "bubble,T" or "bubble,P"; x is the feed, y (``incipient``) the first bubble's
         composition; ``rho_liquid`` and ``rho_vapor`` both phases' densities. CoolProp's
         saturation solver fails for some mixtures and states (a six-component natural gas at
-        200-250 K: "molar density ... below the minimum"); those come back unavailable.
+        200 K: "The molar density of ... is below the minimum"; at 250 K: "df very small ... but
+        f is not converged"); those come back unavailable.
 
     References
     ----------
