@@ -43,3 +43,14 @@ __all__ = ["AT_OPTIONS", "AUTO_PROGRESS_ABOVE", "CONSTANT_TOLERANCE", "CrossChec
            "constant_warnings", "convention_offset", "cross_check", "evaluate_reference", "fit_volume_shift",
            "knowns_pair", "library_reason", "reference_flow_step", "reference_inlet", "reference_limits",
            "reference_saturation", "reference_state", "reference_vessel_step", "state_pair", "whole_number"]
+
+# Mixtures (issue 10): CoolProp's multiparameter mixture model at (T, P), bubble and dew points.
+from .mixture import (AUTO_MIXTURE_PROGRESS_ABOVE, DEFAULT_MIXTURE_CHUNK, MIXTURE_INTERRUPTED, MIXTURE_KINDS,
+                      REFERENCE_MIXTURE_CAUTION, ReferenceMixtureState, evaluate_mixture_reference,
+                      mixture_phase_word, mixture_reference_reason, pseudo_critical, reference_bubble_point,
+                      reference_dew_point, reference_mixture_state)
+
+__all__ += ["AUTO_MIXTURE_PROGRESS_ABOVE", "DEFAULT_MIXTURE_CHUNK", "MIXTURE_INTERRUPTED", "MIXTURE_KINDS",
+            "REFERENCE_MIXTURE_CAUTION", "ReferenceMixtureState", "evaluate_mixture_reference", "mixture_phase_word",
+            "mixture_reference_reason", "pseudo_critical", "reference_bubble_point", "reference_dew_point",
+            "reference_mixture_state"]
