@@ -19,6 +19,7 @@ from __future__ import annotations
 import copy
 import math
 import numbers
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Callable, NamedTuple
 
@@ -587,22 +588,25 @@ class CubicModel(Model):
         self._c_i = _component_shifts(volume_shift, f, components, self._b_i)
         self.kij = _kij_matrix(kij, components, type(self).__name__)
         self._one_minus_k = 1.0 - self.kij
+        self._v_c_i = f.Zc * R * Tc / Pc
         self._set_composition(components.z)
         if self._fluid is not None:     # one component: the pure fluid's own numbers
             self.a_c = float(self._a_c_i[0])
-            self.v_c = f.Zc * R * Tc[0] / Pc[0] - self.c
             self.Zc = f.Zc - self.c * Pc[0] / (R * Tc[0])
-        else:                           # Kay's rule: a label boundary for single-phase roots only
-            self.v_c = float(components.z @ (f.Zc * R * Tc / Pc)) - self.c
         if np.any(self._c_i):
             self.name = f"{f.name} (translated)"
 
     def _set_composition(self, z):
-        """The feed composition z and what follows from it: b, c, v_min [m^3/mol]."""
+        """The feed composition z and what follows from it: b, c, v_min, v_c [m^3/mol].
+
+        v_c of a mixture is Kay's rule, sum z_i v_c_i - c: a label boundary for single-phase
+        roots only; for one component it is the model's critical volume.
+        """
         self.z = np.asarray(z, dtype=float)
         self.b = float(self.z @ self._b_i)
         self.c = float(self.z @ self._c_i)
         self.v_min = self.b - self.c
+        self.v_c = float(self.z @ self._v_c_i) - self.c
 
     @property
     def fluid(self) -> Fluid:
@@ -636,9 +640,6 @@ class CubicModel(Model):
         twin = copy.copy(self)
         twin.components = self.components.with_fractions(x, normalize=True)
         twin._set_composition(twin.components.z)
-        if twin._fluid is None:
-            f = self.family
-            twin.v_c = float(twin.z @ (f.Zc * R * self._Tc_i / self.components.Pc)) - twin.c
         return twin
 
     # -- the pieces of the equation
@@ -694,14 +695,15 @@ class CubicModel(Model):
         c2, c1, c0, _ = cubic_z_coefficients(A, B, self.delta1 + self.delta2, self.delta1 * self.delta2)
         return c2, c1, c0, A, B, psi / a[..., None]
 
-    def component_ln_phi(self, T, P, x, Z):
+    def component_ln_phi(self, T, P, x, Z, coefficients=None):
         """ln phi_i [-] of every component in a phase of composition x (..., n) whose root is Z.
 
-        Z is a root of :meth:`phase_coefficients`' cubic (untranslated); the translation of
-        each component enters as - c_i P/(R T). See :func:`cubic_component_ln_phi`.
+        Z is a root of :meth:`phase_coefficients`' cubic (untranslated); pass that method's
+        result as ``coefficients`` when it is at hand (one evaluation for every root). The
+        translation of each component enters as - c_i P/(R T). See :func:`cubic_component_ln_phi`.
         """
         T, P, x = np.asarray(T, dtype=float), np.asarray(P, dtype=float), np.asarray(x, dtype=float)
-        _, _, _, A, B, psi_ratio = self.phase_coefficients(T, P, x)
+        _, _, _, A, B, psi_ratio = self.phase_coefficients(T, P, x) if coefficients is None else coefficients
         b = x @ self._b_i
         ln_phi = cubic_component_ln_phi(np.asarray(Z, dtype=float), A, B, self._b_i / b[..., None], psi_ratio,
                                         self.delta1, self.delta2)
@@ -997,7 +999,7 @@ def _kij_matrix(kij, components, caller) -> np.ndarray:
         matrix = np.zeros((len(components), len(components)))
     elif isinstance(kij, BinaryParameters):
         matrix = kij.matrix(components)
-    elif isinstance(kij, dict):
+    elif isinstance(kij, Mapping):
         matrix = BinaryParameters(kij).matrix(components)
     else:
         matrix = BinaryParameters.from_matrix(kij, components).matrix(components)

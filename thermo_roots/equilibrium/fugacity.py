@@ -65,7 +65,8 @@ def phase_fugacity(model, T, P, x, root: str = "stable") -> PhaseFugacity:
     x = np.broadcast_to(x, shape + x.shape[-1:])
     x = x / np.sum(x, axis=-1, keepdims=True)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):   # a bad state gives NaN quietly
-        c2, c1, c0, A, B, _ = model.phase_coefficients(T, P, x)
+        coefficients = model.phase_coefficients(T, P, x)
+        c2, c1, c0, A, B, _ = coefficients
         roots = cubic_real_roots(c2, c1, c0)
         roots = np.where(roots > B[..., None], roots, np.nan)
         n_roots = np.sum(np.isfinite(roots), axis=-1)
@@ -74,8 +75,8 @@ def phase_fugacity(model, T, P, x, root: str = "stable") -> PhaseFugacity:
         elif root == "vapor":
             Z = _finite_or_nan(np.where(np.isfinite(roots), roots, -np.inf).max(axis=-1))
         else:
-            Z = _lowest_gibbs_root(model, T, P, x, roots)
-        ln_phi = model.component_ln_phi(T, P, x, Z)
+            Z = _lowest_gibbs_root(model, T, P, x, roots, coefficients)
+        ln_phi = model.component_ln_phi(T, P, x, Z, coefficients)
         shift = x @ model._c_i
         v = Z * R * T / P - shift
     g_res = np.sum(x * ln_phi, axis=-1)
@@ -87,13 +88,13 @@ def _finite_or_nan(Z):
     return np.where(np.isfinite(Z), Z, np.nan)
 
 
-def _lowest_gibbs_root(model, T, P, x, roots):
+def _lowest_gibbs_root(model, T, P, x, roots, coefficients):
     """The root of each state whose phase has the lowest Σ xᵢ ln φᵢ (one root: that one)."""
     best_Z = np.full(roots.shape[:-1], np.nan)
     best_g = np.full(roots.shape[:-1], np.inf)
     for k in range(roots.shape[-1]):
         Zk = roots[..., k]
-        g = np.sum(x * model.component_ln_phi(T, P, x, Zk), axis=-1)
+        g = np.sum(x * model.component_ln_phi(T, P, x, Zk, coefficients), axis=-1)
         better = np.isfinite(g) & (g < best_g)
         best_Z = np.where(better, Zk, best_Z)
         best_g = np.where(better, g, best_g)
