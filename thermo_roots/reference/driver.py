@@ -78,13 +78,22 @@ def _abstract_state(library_name: str):
     an update and the reads that follow it can never interleave with another thread's.
     """
     limits = _library_limits(library_name)
-    states = getattr(_THREAD_STATES, "by_fluid", None)
+    return thread_state(_THREAD_STATES, library_name, _new_abstract_state), limits
+
+
+def thread_state(local: threading.local, key, make):
+    """The state object ``make(key)`` of this thread, made on its first use in the thread.
+
+    ``local`` holds one dictionary per thread; the reference's state objects are updated and
+    read in separate calls, so each thread must have its own.
+    """
+    states = getattr(local, "states", None)
     if states is None:
-        states = _THREAD_STATES.by_fluid = {}
-    state = states.get(library_name)
+        states = local.states = {}
+    state = states.get(key)
     if state is None:
-        state = states[library_name] = _new_abstract_state(library_name)
-    return state, limits
+        state = states[key] = make(key)
+    return state
 
 
 @functools.lru_cache(maxsize=1)

@@ -70,7 +70,7 @@ from ..errors import InputError, WrongTypeError
 from ..mixtures import Mixture
 from ..units import to_si
 from .batch import _given, _resolve_progress, whole_number
-from .driver import _coolprop, library_reason
+from .driver import _coolprop, library_reason, thread_state
 from .states import constant_warnings
 
 #: What a mixture reference call evaluates: a (T, P) state, or a bubble or dew point at T or at P.
@@ -153,13 +153,7 @@ def _mixture_abstract_state(names: tuple):
 
     Raises CoolProp's ValueError when it has no parameters for a pair (the caller turns it
     into a reason)."""
-    states = getattr(_THREAD_MIXTURES, "by_names", None)
-    if states is None:
-        states = _THREAD_MIXTURES.by_names = {}
-    state = states.get(names)
-    if state is None:
-        state = states[names] = _new_mixture_state(names)
-    return state
+    return thread_state(_THREAD_MIXTURES, names, _new_mixture_state)
 
 
 def _empty_values(n: int, nc: int, reason: str = "") -> dict:
