@@ -616,8 +616,10 @@ class CubicModel(Model):
 
             raise MixtureNotSupportedError(
                 f"{self!r} describes a mixture of {self.n_components} components; this is a pure-fluid "
-                "calculation (saturation line, sweeps, cross-checks of one fluid). For a mixture use "
-                "thermo_roots.solve(model, T=..., P=...) or the bubble and dew points.")
+                "calculation (solve, saturation line, sweeps, cross-checks of one fluid). The flash of "
+                "mixtures is not built yet: today a mixture model gives its volume roots at (T, P) "
+                "(thermo_roots.volume_roots) and each component's fugacity coefficient "
+                "(thermo_roots.equilibrium.fugacity.phase_fugacity).")
         return self._fluid
 
     @property
