@@ -209,3 +209,23 @@ def test_a_mixture_at_low_pressure_has_the_reference_mixture_models_ideal_gas():
         assert ours.w == pytest.approx(state.speed_sound(), rel=1e-5)
     # the entropy of mixing is in it: without it s would be off by R Σ z ln z = -4.4 J/(mol K)
     assert abs(model.molar_mass - state.molar_mass()) < 1e-9
+
+
+def test_caloric_properties_of_phases_with_their_own_compositions():
+    """caloric(model, T, v, x=...) of one state equals the model moved to that composition
+    (at_composition) and solved alone; x = z for every state is the feed's own caloric.
+    An identity of the mixing rule (a consistency check, common practice)."""
+    from thermo_roots.properties import caloric
+
+    gas = tr.Mixture({"methane": 0.85, "ethane": 0.08, "propane": 0.04, "nitrogen": 0.03})
+    model = tr.PengRobinson(gas, kij={("methane", "nitrogen"): 0.03}, volume_shift="peneloux")
+    T, v = np.array([200.0, 250.0, 300.0]), np.array([8e-5, 1e-3, 2e-2])
+    x = np.array([[0.7, 0.1, 0.15, 0.05], [0.85, 0.08, 0.04, 0.03], [0.2, 0.3, 0.5, 0.0]])
+    phases = caloric(model, T, v, x=x)
+    for k in range(3):
+        alone = caloric(model.at_composition(x[k]), T[k], v[k])
+        for name in phases._fields:
+            assert getattr(phases, name)[k] == pytest.approx(float(getattr(alone, name)), rel=1e-12, abs=1e-9), name
+    feed, as_x = caloric(model, T, v), caloric(model, T, v, x=np.broadcast_to(model.z, (3, 4)))
+    for name in feed._fields:
+        np.testing.assert_allclose(getattr(as_x, name), getattr(feed, name), rtol=1e-12, atol=1e-9, err_msg=name)

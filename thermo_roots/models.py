@@ -517,7 +517,7 @@ class IdealGas(Model):
         return CubicParameters(ALPHA_CONSTANT, float(self.fluid.Tc), 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0,
                                float(self.fluid.Pc), self.v_c)
 
-    def residual_bundle(self, T, v):
+    def residual_bundle(self, T, v, x=None):
         """The residual Helmholtz energy and its derivatives: all zero for the ideal gas."""
         zero = np.zeros(np.broadcast(np.asarray(T, dtype=float), np.asarray(v, dtype=float)).shape)
         return Helmholtz(zero, zero, zero, zero, zero, zero)
@@ -544,6 +544,11 @@ class CubicModel(Model):
         at 0 °C; "ASHRAE" h = s = 0 for saturated liquid at -40 °C; "NBP" h = s = 0 for
         saturated liquid at the normal boiling point (101.325 kPa). Differences of h and s
         never depend on the choice.
+    kij : None, mapping, BinaryParameters, matrix or "fitted", optional
+        A mixture's binary interaction parameters: pairs ``{("methane", "CO2"): 0.10}``, a
+        symmetric matrix in component order, or "fitted" for the shipped table's values
+        for this cubic (fitted to the reference mixture model's bubble points; pairs it
+        lacks get 0, named in ``kij_missing``). Default None: every kᵢⱼ = 0.
 
     Attributes
     ----------
@@ -586,6 +591,9 @@ class CubicModel(Model):
         self._a_c_i = f.omega_a * (R * Tc) ** 2 / Pc
         self._b_i = f.omega_b * R * Tc / Pc
         self._c_i = _component_shifts(volume_shift, f, components, self._b_i)
+        self.kij_missing = ()
+        if isinstance(kij, str):
+            kij, self.kij_missing = _fitted_kij(kij, type(self).short_name, components)
         self.kij = _kij_matrix(kij, components, type(self).__name__)
         self._one_minus_k = 1.0 - self.kij
         self._v_c_i = f.Zc * R * Tc / Pc
@@ -729,10 +737,12 @@ class CubicModel(Model):
             return f"{type(self).__name__}({self.components!r})"
         return super().__repr__()
 
-    def _factors(self, v):
-        """(e1, e2, D) = (v_cubic + d1 b, v_cubic + d2 b, their product) at the model volume v."""
-        w = v + self.c
-        e1, e2 = w + self.delta1 * self.b, w + self.delta2 * self.b
+    def _factors(self, v, b=None, c=None):
+        """(e1, e2, D) = (v_cubic + d1 b, v_cubic + d2 b, their product) at the model volume v
+        (b, c: the feed's unless a phase's are given)."""
+        b = self.b if b is None else b
+        w = v + (self.c if c is None else c)
+        e1, e2 = w + self.delta1 * b, w + self.delta2 * b
         return e1, e2, e1 * e2
 
     def _denominator(self, v):
@@ -784,7 +794,7 @@ class CubicModel(Model):
         u_res = (T * da - a) * self._attraction_integral(v)
         return _scalar_or_array(u_res + self.pressure(T, v) * v - R * T)
 
-    def residual_bundle(self, T, v):
+    def residual_bundle(self, T, v, x=None):
         """a_res(T, v) [J/mol] against the ideal gas at the same T and v, with its derivatives.
 
         One call of :func:`cubic_residual` (the formula the compiled loops use too) with
@@ -792,15 +802,23 @@ class CubicModel(Model):
         derivatives from the pressure and its slopes (a_v = R T/v - P, a_vv = -dP/dv - R T/v^2,
         a_Tv = R/v - dP/dT), and a_TT = -a''(T) I(v), the only term no other property needs
         (Michelsen & Mollerup 2007, ch. 3). Returns a :class:`Helmholtz`.
+
+        x : compositions (..., n_components) [-], one per state, broadcasting with T and v
+            (the phases of a flash); default the model's feed z.
         """
         T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
-        a, da, d2a = self._attraction_parts(T)
+        if x is None:
+            (a, da, d2a), b, c = self._attraction_parts(T), self.b, self.c
+        else:
+            x = np.asarray(x, dtype=float)
+            a, da, d2a, _ = self.mixture_attraction(T, x)
+            b, c = x @ self._b_i, x @ self._c_i
         d1, d2 = self.delta1, self.delta2
         with np.errstate(invalid="ignore", divide="ignore"):
-            e1, e2, _ = self._factors(v)
-            parts = cubic_residual(T, v, R, a, da, d2a, self.b, self.c, self.v_min,
-                                   d1, d2, cubic_repulsion(v, self.v_min), cubic_log_ratio(e1, e2, d1, d2))
-        return Helmholtz(*(_scalar_or_array(x) for x in parts))
+            e1, e2, _ = self._factors(v, b, c)
+            parts = cubic_residual(T, v, R, a, da, d2a, b, c, b - c,
+                                   d1, d2, cubic_repulsion(v, b - c), cubic_log_ratio(e1, e2, d1, d2))
+        return Helmholtz(*(_scalar_or_array(part) for part in parts))
 
     def ln_phi(self, T, v, P=None):
         """Natural log of the fugacity coefficient ln(f/P) [-] at T [K], v [m^3/mol].
@@ -991,6 +1009,18 @@ def _component_shifts(option, family: CubicFamily, components, b_i) -> np.ndarra
         raise InputError(f"volume_shift={option!r}: for a mixture of {len(fluids)} components give 'peneloux', 0, "
                          f"or {len(fluids)} shifts [m^3/mol] in the order {', '.join(components.names)}.")
     return np.array([_volume_shift(c, family, f, float(b)) for c, f, b in zip(values, fluids, b_i)])
+
+
+def _fitted_kij(option: str, short_name: str, components):
+    """kij="fitted": the shipped table's BinaryParameters for this cubic, and the pairs it lacks."""
+    from .errors import InputError
+    from .mixtures import fitted_binary_parameters, missing_fitted_pairs
+
+    if option != "fitted":
+        raise InputError(f"kij={option!r}: the one text kij takes is 'fitted' (the shipped table's values); "
+                         "otherwise give pairs, e.g. {('methane', 'CO2'): 0.10}, or a symmetric matrix.")
+    return (fitted_binary_parameters(short_name, components),
+            tuple(missing_fitted_pairs(short_name, components)))
 
 
 def _kij_matrix(kij, components, caller) -> np.ndarray:

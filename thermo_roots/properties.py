@@ -48,12 +48,14 @@ class Caloric(NamedTuple):
 ACCEL_MIN_SIZE = 2048
 
 
-def helmholtz(model, T, v) -> Helmholtz:
+def helmholtz(model, T, v, x=None) -> Helmholtz:
     """a(T, v) = a0 (the ideal-gas part) + a_res (the model's), with derivatives.
 
     A mixture's ideal gas is the mole-weighted sum of its components' ideal parts at the
     same (T, v) plus the ideal mixing term R T Σ zᵢ ln zᵢ (whose only derivative is the
-    entropy of mixing, -R Σ zᵢ ln zᵢ); a pure fluid is its one component.
+    entropy of mixing, -R Σ zᵢ ln zᵢ); a pure fluid is its one component. ``x``
+    (..., n_components) gives each state its own composition (a flash's phases); default
+    the model's feed.
 
     Raises
     ------
@@ -61,23 +63,29 @@ def helmholtz(model, T, v) -> Helmholtz:
         A component has no ideal-gas heat capacity (a user-defined Fluid without cp0).
     """
     T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
-    total = model.residual_bundle(T, v)
-    for ideal, fraction in _ideal_parts(model):
-        if fraction == 0.0:
+    total = model.residual_bundle(T, v, x)
+    fractions = None if x is None else np.moveaxis(np.asarray(x, dtype=float), -1, 0)
+    for i, (ideal, fraction) in enumerate(_ideal_parts(model)):
+        if fractions is not None:
+            fraction = fractions[i]
+        elif fraction == 0.0:
             continue
         parts = zip(ideal.helmholtz(T, v), _gas_constant_shift(ideal, T, v))
-        total = Helmholtz(*(t + fraction * (x + y) for t, (x, y) in zip(total, parts)))
-    mixing = ideal_mixing_term(model.z) if model.is_mixture else 0.0
-    if mixing:
+        total = Helmholtz(*(t + fraction * (x_ + y) for t, (x_, y) in zip(total, parts)))
+    if model.is_mixture:
+        mixing = ideal_mixing_term(model.z if x is None else x)
         total = total._replace(a=total.a + R * T * mixing, a_T=total.a_T + R * mixing)
     return total
 
 
-def ideal_mixing_term(z) -> float:
-    """Σ zᵢ ln zᵢ [-] (0 ln 0 = 0): the ideal mixing Gibbs energy over R T (common practice)."""
+def ideal_mixing_term(z):
+    """Σ zᵢ ln zᵢ [-] over the last axis (0 ln 0 = 0): the ideal mixing Gibbs energy over R T
+    (common practice); a float for one composition."""
     z = np.asarray(z, dtype=float)
-    present = z > 0
-    return float(np.sum(z[present] * np.log(z[present])))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        terms = np.where(z > 0, z * np.log(np.where(z > 0, z, 1.0)), np.where(np.isnan(z), np.nan, 0.0))
+    total = np.sum(terms, axis=-1)
+    return float(total) if total.ndim == 0 else total
 
 
 def _ideal_parts(model):
@@ -146,11 +154,13 @@ def _gas_constant_shift(ideal, T, v) -> Helmholtz:
         return Helmholtz(*gas_constant_shift(dR, T, v, *ideal_logs(T, v, ideal.rho_r)))
 
 
-def caloric(model, T, v, P=None) -> Caloric:
+def caloric(model, T, v, P=None, x=None) -> Caloric:
     """Every caloric property of one phase at T [K] and v [m^3/mol] (numpy broadcasting).
 
     P : the pressure [Pa] where v is a root at a known P (a dense liquid at low pressure
         loses digits in -a_v); default the model's P(T, v).
+    x : a mixture phase's composition per state (..., n_components) [-]; default the
+        model's feed (molar properties per mole of that phase; w with its molar mass).
 
     Arrays of ``ACCEL_MIN_SIZE`` states or more take the compiled loop of
     thermo_roots._accel when numba is present (same formulas, agreeing to rounding);
@@ -158,6 +168,8 @@ def caloric(model, T, v, P=None) -> Caloric:
     """
     T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
     shape = np.broadcast_shapes(T.shape, v.shape, () if P is None else np.shape(P))
+    if x is not None:
+        return _phase_caloric(model, T, v, P, np.asarray(x, dtype=float))
     if math.prod(shape) >= ACCEL_MIN_SIZE:
         from . import _accel
 
@@ -170,3 +182,13 @@ def caloric(model, T, v, P=None) -> Caloric:
         A = helmholtz(model, T, v)
         P = -A.a_v if P is None else np.asarray(P, dtype=float)
         return Caloric(*caloric_from_helmholtz(T, v, P, model.molar_mass, *A))
+
+
+def _phase_caloric(model, T, v, P, x) -> Caloric:
+    """:func:`caloric` of phases with their own compositions x (numpy path only)."""
+    _ideal_parts(model)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        A = helmholtz(model, T, v, x)
+        P = -A.a_v if P is None else np.asarray(P, dtype=float)
+        M = x @ np.array([f.molar_mass for f in model.components.fluids])
+        return Caloric(*caloric_from_helmholtz(T, v, P, M, *A))
