@@ -234,3 +234,19 @@ def test_the_ideal_gas_takes_one_pure_fluid_and_says_to_use_a_cubic_for_a_mixtur
     assert tr.PengRobinson(gas).n_components == 2        # the cubics take a mixture
     with pytest.raises(tr.InputError, match="one pure fluid.*PengRobinson"):
         tr.IdealGas(gas)
+
+
+def test_a_blend_by_mass_fractions_has_the_mole_fractions_of_its_molar_masses():
+    """R-407C is R32/R125/R134a 23/25/52 % by mass (ANSI/ASHRAE Standard 34); its mole
+    fractions 0.381/0.180/0.439 are zᵢ = (wᵢ/Mᵢ)/Σ(wⱼ/Mⱼ) with CoolProp's molar masses
+    (the mole fractions recalled from memory as a check)."""
+    import CoolProp.CoolProp as CP
+
+    blend = Mixture.from_mass_fractions({"R32": 0.23, "R125": 0.25, "R134a": 0.52})
+    M = np.array([CP.PropsSI("M", name) for name in ("R32", "R125", "R134a")])
+    w = np.array([0.23, 0.25, 0.52])
+    np.testing.assert_allclose(blend.z, (w / M) / np.sum(w / M), rtol=1e-12)
+    np.testing.assert_allclose(blend.z, [0.381, 0.180, 0.439], atol=1e-3)
+    np.testing.assert_allclose(blend.mass_fractions, w, rtol=1e-12)
+    with pytest.raises(InputError):
+        Mixture.from_mass_fractions({"R32": 0.23, "R125": 0.25, "R134a": 0.50})

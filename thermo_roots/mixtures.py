@@ -8,10 +8,13 @@ model, and the phase equilibrium, live in the layers below (``models``, ``equili
 from __future__ import annotations
 
 import html
+import json
 import math
 import re
 from collections.abc import Mapping
 from dataclasses import dataclass
+from functools import lru_cache
+from pathlib import Path
 
 import numpy as np
 
@@ -246,6 +249,26 @@ class Mixture:
                              f"components ({', '.join(self.names)}), so give {len(self)} mole fractions.")
         return Mixture(list(zip(self.fluids, values.tolist())), normalize=normalize)
 
+    @classmethod
+    def from_mass_fractions(cls, composition, normalize: bool = False) -> "Mixture":
+        """A mixture from mass fractions (how refrigerant blends are specified, e.g. R-407C as
+        R32/R125/R134a 23/25/52 % by mass in ANSI/ASHRAE Standard 34).
+
+        Parameters are as for :class:`Mixture`, with mass fractions [-] instead of mole
+        fractions; zᵢ = (wᵢ/Mᵢ) / Σ (wⱼ/Mⱼ).
+        """
+        weighed = cls(composition, normalize=normalize)
+        moles = [w / f.molar_mass for w, f in zip(weighed.fractions, weighed.fluids)]
+        total = math.fsum(moles)
+        return cls([(f, n / total) for f, n in zip(weighed.fluids, moles)], normalize=True)
+
+    @property
+    def mass_fractions(self) -> np.ndarray:
+        """Mass fractions wᵢ = zᵢ Mᵢ / Σ zⱼ Mⱼ [-], in component order."""
+        out = self.z * self.molar_masses / self.molar_mass
+        out.flags.writeable = False
+        return out
+
     def index(self, component) -> int:
         """Position of a component given by name (any library alias) or Fluid."""
         fluid = _component(component, "Mixture.index")
@@ -407,3 +430,58 @@ def _label(key) -> str:
     if kind == "library":
         return display_name(what)
     return what.name
+
+
+#: The shipped table of fitted kᵢⱼ (made by ``python -m thermo_roots.reference.binary_fit``).
+BINARY_TABLE_PATH = Path(__file__).with_name("binary_parameters.json")
+
+
+@lru_cache(maxsize=1)
+def binary_table() -> dict:
+    """The shipped table of fitted kᵢⱼ as read from :data:`BINARY_TABLE_PATH` (see its "about")."""
+    with open(BINARY_TABLE_PATH, encoding="utf-8") as f:
+        return json.load(f)
+
+
+def fitted_binary_parameters(model: str, mixture: Mixture) -> BinaryParameters:
+    """The shipped table's kᵢⱼ of one cubic for every pair of ``mixture`` it holds (0 for the rest).
+
+    Parameters
+    ----------
+    model : str
+        The cubic's short name ("PR", "SRK", "PR78", "RK", "vdW").
+    mixture : Mixture
+
+    Returns
+    -------
+    BinaryParameters
+        Pairs not in the table (and custom fluids) are not given, so their kᵢⱼ is 0;
+        :func:`missing_fitted_pairs` names them.
+    """
+    if not isinstance(mixture, Mixture):
+        raise WrongTypeError(f"fitted_binary_parameters needs a Mixture, not {mixture!r}.")
+    fitted = _fitted_pairs(model)
+    names = {f.library_name: f for f in mixture.fluids if f.library_name is not None}
+    pairs = {}
+    for key, k in fitted.items():
+        a, b = tuple(key)
+        if a in names and b in names:
+            pairs[(names[a], names[b])] = k
+    return BinaryParameters(pairs)
+
+
+def missing_fitted_pairs(model: str, mixture: Mixture) -> list[tuple[str, str]]:
+    """The pairs of ``mixture`` (display names) that the shipped table has no kᵢⱼ for with ``model``."""
+    fitted = _fitted_pairs(model)
+    fluids = mixture.fluids
+    return [(fluids[i].name, fluids[j].name) for i in range(len(fluids)) for j in range(i + 1, len(fluids))
+            if frozenset((fluids[i].library_name, fluids[j].library_name)) not in fitted]
+
+
+def _fitted_pairs(model: str) -> dict:
+    table = binary_table()
+    known = sorted({name for row in table["pairs"] for name in row["fits"]})
+    if model not in known:
+        raise InputError(f"The fitted kᵢⱼ table has no cubic {model!r}; it holds {', '.join(known)}.")
+    return {frozenset(row["pair"]): row["fits"][model]["k"] for row in table["pairs"]
+            if "k" in row["fits"].get(model, {})}
