@@ -127,12 +127,12 @@ def test_from_text_names_with_spaces_digits_and_brackets():
 
 
 def test_from_text_says_what_it_could_not_read():
-    with pytest.raises(InputError, match=r"could not read 'ethane' in") as err:
+    with pytest.raises(InputError, match=r"could not read line 1 'methane 0.9, ethane': 'ethane' has no mole "
+                                         r"fraction"):
         Mixture.from_text("methane 0.9, ethane")
-    assert "decimal point" in str(err.value)
-    with pytest.raises(InputError, match=r"could not read nothing|could not read"):
+    with pytest.raises(InputError, match=r"the text is empty"):
         Mixture.from_text("   ")
-    with pytest.raises(InputError, match=r"% sign and 'ethane 0.1' not"):
+    with pytest.raises(InputError, match=r"% sign and line 1 'ethane 0.1' not"):
         Mixture.from_text("methane 90 %, ethane 0.1")
     with pytest.raises(InputError, match=r"sum to 0\.95"):
         Mixture.from_text("methane 90 %, ethane 5 %")
