@@ -124,7 +124,8 @@ def test_normalise_refuses_what_it_cannot_scale():
 
 def test_the_same_fluid_twice_and_a_plus_fraction():
     field = CompositionField("methane 0.5\nCH4 0.5")
-    assert field.value is None and "same fluid" in field.error
+    assert field.value is None and "Row 2: the same fluid as row 1 (methane)" in field.error
+    assert "same fluid as row 1" in field.rows[1].message.value
     field.set("methane 0.9, C7+ 0.1")
     assert "lumped plus fraction" in field.rows[1].message.value
 
@@ -141,3 +142,14 @@ def test_wrong_type_is_refused():
 
     with pytest.raises(WrongTypeError):
         CompositionField(3.0)
+
+
+def test_a_fluid_of_ones_own_keeps_its_name_in_the_table():
+    from thermo_roots import Fluid
+
+    solvent = Fluid("my solvent", Tc=600.0, Pc=3.0e6, omega=0.3, molar_mass=0.1)
+    field = CompositionField([("methane", 0.4), (solvent, 0.6)])
+    assert field.value.fluids[1] is solvent and field.entries[1] == ("my solvent", "0.6")
+    field.rows[0].fraction.value = "0.5"
+    field.rows[1].fraction.value = "0.5"
+    assert field.value.fluids[1] is solvent and field.value.fractions == (0.5, 0.5)

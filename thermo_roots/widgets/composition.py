@@ -19,7 +19,7 @@ import ipywidgets as w
 import traitlets
 
 from ..errors import ThermoRootsError, UnknownFluidError, WrongTypeError
-from ..fluids import display_name, fluid_names
+from ..fluids import Fluid, display_name, fluid_names
 from ..mixtures import Mixture, component_from_text, fraction_from_text, read_composition_text
 from ._inputs import _label, message_html
 
@@ -88,7 +88,9 @@ class CompositionField(w.VBox):
     composition : str, mapping, sequence of pairs, Mixture or None
         The starting composition: text as :meth:`Mixture.from_text` reads it
         (``"methane 0.85, ethane 0.08, propane 0.07"``), or what :class:`Mixture` takes
-        (``{"methane": 0.85, ...}``) with mole fractions [-]. None: an empty table.
+        (``{"methane": 0.85, ...}``) with mole fractions [-]. None: an empty table. A
+        :class:`~thermo_roots.Fluid` of one's own is shown by its name, and that name then
+        stands for it in the table and the text box.
     label : str
         The field's name on screen.
 
@@ -124,6 +126,7 @@ class CompositionField(w.VBox):
         self.error = None
         self.note = ""
         self._syncing = False
+        self._custom = {}         # the user's own Fluids given to set(), by name
         self._options = sorted({display_name(n) for n in fluid_names()}, key=str.lower)
         self.text = w.Textarea(placeholder=_PLACEHOLDER, continuous_update=False,
                                layout=w.Layout(width="374px", height="76px"))
@@ -145,13 +148,18 @@ class CompositionField(w.VBox):
         self.text.observe(self._text_edited, "value")
         self.add_button.on_click(lambda _: self.add_row())
         self.normalise_button.on_click(lambda _: self.normalise())
+        hint = w.HTML(f"<span style='{_NOTE_STYLE}'>Paste names with mole fractions or mol % (a list, or two "
+                      "columns from a spreadsheet), or edit the table; the two stay in step.</span>")
         body = w.VBox([
+            hint,
             w.HBox([self.text, self.text_message], layout=w.Layout(align_items="flex-start")),
             self.grid,
             w.HBox([self.add_button, self.normalise_button]),
             self.summary, self.notes,
         ])
-        super().__init__([w.HBox([_label(label), body], layout=w.Layout(align_items="flex-start"))])
+        title = _label(label)
+        title.layout.flex = "0 0 auto"          # the label column keeps its width beside a long message
+        super().__init__([w.HBox([title, body], layout=w.Layout(align_items="flex-start"))])
         self.add_class("tr-composition")
         self._fill([])
         self.set(composition)
@@ -165,7 +173,9 @@ class CompositionField(w.VBox):
             else:
                 self.text.value = composition       # read by the observer, as a paste is
             return
-        self._fill([] if composition is None else _pairs_of(composition))
+        pairs = [] if composition is None else _pairs_of(composition)
+        self._custom.update({f.name: f for f, _ in pairs if isinstance(f, Fluid) and f.library_name is None})
+        self._fill([(getattr(f, "name", f), z) for f, z in pairs])
         self._write_text()
         self._show_note("")
         self._judge()
@@ -286,7 +296,7 @@ class CompositionField(w.VBox):
     # -- judging the table
     def _judge(self) -> None:
         """The table into a Mixture through the library, or the reason it is none."""
-        pairs, problems, fractions = [], [], []
+        pairs, problems, fractions, named = [], [], [], []      # named: the row number of each pair
         rows = [(i, r) for i, r in enumerate(self.rows, start=1) if not r.is_blank()]
         for i, row in rows:
             row.message.value = ""
@@ -294,7 +304,7 @@ class CompositionField(w.VBox):
             try:
                 if not name:
                     raise _RowProblem("give the component's name")
-                fluid = component_from_text(name, f"row {i}")
+                fluid = self._custom.get(name) or component_from_text(name, f"row {i}")
             except UnknownFluidError as err:
                 fluid = None
                 self._row_problem(row, problems, i, _unknown_in_words(name, err))
@@ -307,8 +317,15 @@ class CompositionField(w.VBox):
             except ThermoRootsError as err:
                 self._row_problem(row, problems, i, str(err).removeprefix(f"row {i}: "))
                 continue
-            if fluid is not None:
-                pairs.append((fluid, fraction))
+            if fluid is None:
+                continue
+            earlier = next((j for j, (f, _) in zip(named, pairs) if _same_fluid(f, fluid)), None)
+            if earlier is not None:
+                self._row_problem(row, problems, i, f"the same fluid as row {earlier} ({fluid.name}): give it "
+                                                    "once, with the sum of its fractions")
+                continue
+            named.append(i)
+            pairs.append((fluid, fraction))
         for row in self.rows:
             if row.is_blank():
                 row.message.value = ""
@@ -358,9 +375,9 @@ class _NothingToScale(Exception):
 
 
 def _pairs_of(composition) -> list:
-    """(name, fraction) pairs of a mapping, a list of pairs or a Mixture, for the table."""
+    """(name or Fluid, fraction) pairs of a mapping, a list of pairs or a Mixture."""
     if isinstance(composition, Mixture):
-        return list(zip(composition.names, composition.fractions))
+        return list(zip(composition.fluids, composition.fractions))
     if isinstance(composition, Mapping):
         items = list(composition.items())
     else:
@@ -369,7 +386,11 @@ def _pairs_of(composition) -> list:
         except TypeError:
             raise WrongTypeError(f"CompositionField: give text, a mapping {{name: mole fraction}}, a list of "
                                  f"(name, mole fraction) pairs or a Mixture; got {composition!r}.") from None
-    return [(getattr(name, "name", name), fraction) for name, fraction in items]
+    return items
+
+
+def _same_fluid(a: Fluid, b: Fluid) -> bool:
+    return a is b or (a.library_name is not None and a.library_name == b.library_name)
 
 
 def _fraction_text(row: _Row) -> str:
