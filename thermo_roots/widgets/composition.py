@@ -204,9 +204,10 @@ class CompositionField(w.VBox):
     # -- Normalise
     def normalise(self) -> None:
         """Divide every mole fraction by their sum; say how much that changed them."""
-        rows = [r for r in self.rows if not r.is_blank()]
+        numbered = [(i, r) for i, r in enumerate(self.rows, start=1) if not r.is_blank()]
+        rows = [r for _, r in numbered]
         try:
-            fractions = [r.read_fraction(f"row {i + 1}") for i, r in enumerate(rows)]
+            fractions = [r.read_fraction(f"row {i}") for i, r in numbered]
             total = math.fsum(fractions)
             if not rows or not (math.isfinite(total) and total > 0) or min(fractions) < 0:
                 raise _NothingToScale()
@@ -221,7 +222,7 @@ class CompositionField(w.VBox):
         scaled = [f / total for f in fractions]
         change = [s - f for s, f in zip(scaled, fractions)]
         largest = max(range(len(rows)), key=lambda i: abs(change[i]))
-        who = rows[largest].name.value.strip() or f"row {largest + 1}"
+        who = rows[largest].name.value.strip() or f"row {numbered[largest][0]}"
         self._syncing = True
         try:
             for row, value in zip(rows, scaled):
