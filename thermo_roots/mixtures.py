@@ -11,10 +11,12 @@ import html
 import json
 import math
 import re
+import warnings
 from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
+from typing import NamedTuple
 
 import numpy as np
 
@@ -148,9 +150,12 @@ class Mixture:
     def from_text(cls, text: str, normalize: bool = False) -> "Mixture":
         """Read a pasted composition: ``"methane 0.85, ethane 0.08, propane 0.07"``.
 
-        Entries are separated by commas, semicolons or new lines; each is a fluid name
-        and a number, optionally with ``:`` or ``=`` between them. Percentages carry a %
-        sign (``"methane: 85 %"``, ``"ethane 8 mol %"``); then every entry needs one.
+        Takes what engineers paste (see :func:`read_composition_text` for every form): entries
+        separated by commas, semicolons or new lines; two columns copied from a spreadsheet
+        (tab-separated, a header line allowed); ``"methane: 85 %"``; plain numbers summing to
+        100 (read as mole percent, with a warning saying so); a decimal comma where commas do
+        not separate the entries (``"methane 0,85; ethane 0,15"``); everyday names, CoolProp's
+        names and gas-analysis shorthand (C1, iC4, nC5).
 
         Parameters
         ----------
@@ -159,36 +164,25 @@ class Mixture:
         normalize : bool
             As for :class:`Mixture`.
 
+        Warns
+        -----
+        UserWarning
+            Where the reading rests on a guess: numbers without a % sign taken as mole percent
+            because they sum to about 100, a header line skipped, names and numbers read from
+            two rows instead of two columns.
+
         Raises
         ------
         InputError
-            Entries that could not be read, each quoted, with the form expected.
+            Lines that could not be read, each named by its number and quoted, with the form
+            expected; the same fluid on two lines.
+        UnknownFluidError
+            A name that is not in the fluid library: its line, and the closest names.
         """
-        if not isinstance(text, str):
-            raise WrongTypeError(f"Mixture.from_text needs text, e.g. 'methane 0.9, ethane 0.1'; got {text!r}.")
-        entries = [e.strip() for e in re.split(r"[,;\n]", text) if e.strip()]
-        pattern = re.compile(r"^(?P<name>.*?\S)(?:\s*[:=]\s*|\s+)(?P<value>[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)"
-                             r"\s*(?P<percent>(?:mol\s*)?%)?$", re.IGNORECASE)
-        pairs, bad, percent = [], [], []
-        for entry in entries:
-            match = pattern.match(entry)
-            if match is None:
-                bad.append(entry)
-                continue
-            pairs.append((match["name"].strip(), float(match["value"])))
-            percent.append(match["percent"] is not None)
-        if bad or not pairs:
-            what = ", ".join(repr(b) for b in bad) if bad else "nothing"
-            raise InputError(f"Mixture.from_text: could not read {what} in {text!r}. Write each component as a "
-                             "name and a mole fraction, e.g. 'methane 0.85, ethane 0.08, propane 0.07', or with a "
-                             "% sign, e.g. 'methane: 85 %, ethane: 15 %' (decimal point, not comma).")
-        if any(percent) and not all(percent):
-            mixed = ", ".join(repr(e) for e, p in zip(entries, percent) if not p)
-            raise InputError(f"Mixture.from_text: some entries have a % sign and {mixed} not; write every "
-                             "fraction as a percentage or every one as a fraction.")
-        if all(percent):
-            pairs = [(name, value / 100.0) for name, value in pairs]
-        return cls(pairs, normalize=normalize)
+        reading = read_composition_text(text)
+        for note in reading.notes:
+            warnings.warn(f"Mixture.from_text: {note}", UserWarning, stacklevel=2)
+        return cls(_resolved_pairs(reading), normalize=normalize)
 
     # --- views -------------------------------------------------------------------------
     @property
@@ -295,6 +289,275 @@ class Mixture:
             for f, z in zip(self.fluids, self.fractions))
         caption = f"Mixture of {len(self)} components, M = {self.molar_mass * 1e3:.6g} g/mol"
         return f"<table><caption>{caption}</caption>{head}{rows}</table>"
+
+
+# --- reading a pasted composition ---------------------------------------------------------
+
+#: Gas-analysis shorthand (carbon number, i- and n- for the branched and straight isomers) and
+#: formulas that CoolProp's alias lists do not carry, for pasted compositions (common practice
+#: in natural-gas analyses). Lumped fractions such as "C6+" are not fluids and are refused.
+SHORTHAND = {
+    "C1": "Methane", "C2": "Ethane", "C3": "n-Propane", "iC4": "IsoButane", "nC4": "n-Butane",
+    "iC5": "Isopentane", "nC5": "n-Pentane", "neoC5": "Neopentane", "nC6": "n-Hexane", "nC7": "n-Heptane",
+    "nC8": "n-Octane", "nC9": "n-Nonane", "nC10": "n-Decane", "C2H6": "Ethane", "C2H4": "Ethylene",
+    "C3H6": "Propylene", "C4H10": "n-Butane",
+}
+_SHORTHAND_KEYS = {re.sub(r"[\s\-_]", "", k).lower(): v for k, v in SHORTHAND.items()}
+
+#: Numbers without a % sign whose sum lies in this range are read as mole percent: a gas
+#: analysis in percent that does not quite close (99.7, 100.2), never fractions.
+PERCENT_SUM_RANGE = (95.0, 105.0)
+
+_NUMBER = r"[-+\u2212]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?"
+_PERCENT = r"(?:mol(?:e)?\.?\s*-?\s*)?%"
+_ENTRY = re.compile(rf"^(?P<name>.*?\S)(?:\s*[:=]\s*|\s+)(?P<value>{_NUMBER})\s*(?P<percent>{_PERCENT})?$",
+                    re.IGNORECASE)
+_VALUE = re.compile(rf"^(?P<value>{_NUMBER})\s*(?P<percent>{_PERCENT})?$", re.IGNORECASE)
+#: A word that is a number (with any decimal mark), so not part of a name ("1-butene" is a name).
+_NUMBER_TOKEN = re.compile(r"(?:^|\s)[-+\u2212]?[\d.,]*\d(?:[eE][-+]?\d+)?(?=\s|%|$)")
+_FORM = ("Write each component as a name and a mole fraction, e.g. 'methane 0.85, ethane 0.08, propane 0.07', "
+         "one per line, 'methane: 85 %', or two columns (name, fraction) pasted from a spreadsheet.")
+
+
+class PastedComposition(NamedTuple):
+    """What :func:`read_composition_text` found in a pasted composition.
+
+    Attributes
+    ----------
+    pairs : tuple of (str, float)
+        Each component's name as written and its mole fraction [-] (percentages divided by
+        100), in the order given; the names are not yet looked up.
+    lines : tuple of int
+        The line (1-based) each pair came from.
+    notes : tuple of str
+        Sentences saying where the reading rests on a guess (percent without a % sign, a
+        header line skipped, rows read as columns); empty when nothing was guessed.
+    """
+
+    pairs: tuple
+    lines: tuple
+    notes: tuple
+
+
+class _Cell(NamedTuple):
+    kind: str            # "entry" (name and number), "name", "value" or "bad"
+    text: str
+    name: str | None
+    value: float | None
+    percent: bool
+
+
+def read_composition_text(text: str) -> PastedComposition:
+    """Split a pasted composition into (name, mole fraction) pairs, without looking names up.
+
+    The forms read:
+
+    - entries separated by commas, semicolons, tabs or new lines, each a name and a number with
+      a space, ``:`` or ``=`` between them: ``"methane 0.85, ethane 0.08"``, ``"methane = 0.85"``;
+    - two columns pasted from a spreadsheet (name, then fraction, tab- or comma-separated),
+      with or without a header line (a first line without numbers, e.g. "component  mol %");
+      or two rows, names above and numbers below;
+    - percentages with a % sign (``"methane: 85 %"``, ``"8 mol%"``); numbers without one whose
+      sum lies in :data:`PERCENT_SUM_RANGE` (95 to 105) are read as mole percent too, and a
+      note says so;
+    - a decimal comma (``"0,85"``) where no comma separates entries, i.e. every comma of the
+      text stands between two digits (``"methane 0,85; ethane 0,15"``, one per line, tabs).
+
+    Parameters
+    ----------
+    text : str
+        The pasted text.
+
+    Returns
+    -------
+    PastedComposition
+
+    Raises
+    ------
+    InputError
+        Lines that could not be read, each named by its number and quoted; a % sign on some
+        numbers but not on others; nothing to read.
+    WrongTypeError
+        ``text`` is not a string.
+
+    References
+    ----------
+    Common practice: gas analyses are reported in mol %, spreadsheets in many locales write
+    a decimal comma, and tab-separated columns are what a spreadsheet puts on the clipboard.
+    """
+    who = "Mixture.from_text"
+    if not isinstance(text, str):
+        raise WrongTypeError(f"{who} needs text, e.g. 'methane 0.9, ethane 0.1'; got {text!r} "
+                             f"({type(text).__name__}).")
+    decimal_comma = "," in text and re.search(r"(?<!\d),|,(?!\d)", text) is None
+    lines = [(n, line.replace("\u00a0", " ").strip()) for n, line in enumerate(text.splitlines(), start=1)]
+    lines = [(n, line) for n, line in lines if line]
+    if not lines:
+        raise InputError(f"{who}: the text is empty. {_FORM}")
+    cells = {n: [_read_cell(c, decimal_comma) for c in _split_line(line, decimal_comma)] for n, line in lines}
+    notes = []
+    header_percent = False
+    first, first_cells = lines[0][0], cells[lines[0][0]]
+    if len(lines) > 1 and all(c.kind == "name" for c in first_cells):
+        second = cells[lines[1][0]]
+        if len(lines) == 2 and len(first_cells) > 1 and len(second) == len(first_cells) \
+                and all(c.kind == "value" for c in second):
+            rows = [_Cell("entry", f"{a.text} {b.text}", a.name, b.value, b.percent)
+                    for a, b in zip(first_cells, second)]
+            notes.append("read the names in line 1 and their numbers in line 2 (two rows).")
+            cells = {first: rows}
+            lines = lines[:1]
+        else:
+            header_percent = bool(re.search(r"%|percent", lines[0][1], re.IGNORECASE))
+            shown = re.sub(r"\s*\t\s*", " | ", lines[0][1])
+            notes.append(f"line 1 {shown!r} has no numbers; it was taken as a header and skipped.")
+            del cells[first]
+            lines = lines[1:]
+    found, bad = [], []
+    for n, line in lines:
+        pairs, unread = _pair_cells(cells[n])
+        found += [(n, cell) for cell in pairs]
+        bad += [_bad_line(n, line, unread, decimal_comma)] if unread else []
+    if bad:
+        raise InputError(f"{who}: could not read " + "; ".join(bad) + f". {_FORM}")
+    return _as_fractions(found, header_percent, notes, who)
+
+
+def _split_line(line: str, decimal_comma: bool) -> list[str]:
+    """The cells of one line: split at semicolons and tabs, and at commas unless they are decimal."""
+    parts = re.split(r"[;\t]" if decimal_comma else r"[;\t,]", line)
+    return [p.strip() for p in parts if p.strip()]
+
+
+def _number(text: str) -> float:
+    return float(text.replace(",", ".").replace("\u2212", "-"))
+
+
+def _read_cell(text: str, decimal_comma: bool) -> _Cell:
+    """What one cell holds: a name and a number, a name alone, a number alone, or neither."""
+    for pattern, kind in ((_VALUE, "value"), (_ENTRY, "entry")):
+        match = pattern.match(text)
+        if match is None or ("," in match["value"] and not decimal_comma) or \
+                ("," in match["value"] and "." in match["value"]):
+            continue
+        name = match["name"].strip() if kind == "entry" else None
+        if name is not None and re.search(rf"(?:^|\s){_NUMBER}\s*(?:{_PERCENT})?(?:\s|$)", name):
+            return _Cell("run-on", text, None, None, False)      # "methane 85 ethane 15": no separator
+        return _Cell(kind, text, name, _number(match["value"]), match["percent"] is not None)
+    if re.search(r"[A-Za-z]", text) and not _NUMBER_TOKEN.search(text):
+        return _Cell("name", text, text, None, False)
+    return _Cell("bad", text, None, None, False)
+
+
+def _pair_cells(cells: list) -> tuple[list, list]:
+    """Entries of one line, a name cell followed by a number cell taken as one; the rest unread."""
+    pairs, unread, i = [], [], 0
+    while i < len(cells):
+        cell = cells[i]
+        if cell.kind == "entry":
+            pairs.append(cell)
+            i += 1
+        elif cell.kind == "name" and i + 1 < len(cells) and cells[i + 1].kind == "value":
+            value = cells[i + 1]
+            pairs.append(_Cell("entry", f"{cell.text} {value.text}", cell.name, value.value, value.percent))
+            i += 2
+        else:
+            unread.append(cell)
+            i += 1
+    return pairs, unread
+
+
+def _bad_line(n: int, line: str, unread: list, decimal_comma: bool) -> str:
+    """Why line ``n`` could not be read, in a few words."""
+    why = []
+    for cell in unread:
+        if cell.kind == "name":
+            why.append(f"{cell.text!r} has no mole fraction")
+        elif cell.kind == "value":
+            why.append(f"{cell.text!r} has no component name")
+        elif cell.kind == "run-on":
+            why.append(f"{cell.text!r} holds several entries: separate them with commas, semicolons or new lines")
+        else:
+            why.append(f"{cell.text!r} is not a name and a number")
+    comma = ""
+    if not decimal_comma and re.search(r"\d,\d", line):
+        comma = (" (a decimal comma such as '0,85' is read only where no comma separates entries: put ';' "
+                 "or new lines between them, or write '0.85')")
+    return f"line {n} {line!r}: " + ", ".join(why) + comma
+
+
+def _as_fractions(found: list, header_percent: bool, notes: list, who: str) -> PastedComposition:
+    """Percentages divided by 100: all with a % sign, a header saying %, or a sum near 100."""
+    signs = [cell.percent for _, cell in found]
+    if any(signs) and not all(signs):
+        plain = ", ".join(f"line {n} {cell.text!r}" for n, cell in found if not cell.percent)
+        raise InputError(f"{who}: some numbers have a % sign and {plain} not; write every one as a "
+                         "percentage or every one as a fraction.")
+    total = math.fsum(cell.value for _, cell in found)
+    percent = all(signs) or header_percent
+    low, high = PERCENT_SUM_RANGE
+    if not percent and low <= total <= high:
+        percent = True
+        notes.append(f"the numbers sum to {total:.6g}, so they were read as mole percent (divided by 100).")
+    scale = 0.01 if percent else 1.0
+    return PastedComposition(pairs=tuple((cell.name, cell.value * scale) for _, cell in found),
+                             lines=tuple(n for n, _ in found), notes=tuple(notes))
+
+
+def component_from_text(name: str, who: str) -> Fluid:
+    """A library fluid from a name as engineers write it: the library's names and aliases,
+    gas-analysis shorthand (:data:`SHORTHAND`), else close matches in the error.
+
+    Raises
+    ------
+    UnknownFluidError
+        Not a library name; ``who`` leads the message, which lists the closest names.
+    InputError
+        A lumped fraction such as "C6+" or "C7 plus", which is no single fluid.
+    """
+    if re.search(r"\+\s*$|\bplus\b", name, re.IGNORECASE):
+        raise InputError(f"{who}: {name!r} is a lumped plus fraction, not one fluid; give it as a single "
+                         "component (e.g. n-hexane or n-heptane for C6+/C7+) or as a Fluid with its own "
+                         "constants, Fluid(name, Tc, Pc, omega, molar_mass).")
+    library = _SHORTHAND_KEYS.get(re.sub(r"[\s\-_]", "", name).lower())
+    return _component(library if library is not None else name, who)
+
+
+def fraction_from_text(text: str, who: str) -> float:
+    """One mole fraction as typed in a cell: ``"0.85"``, ``"0,85"``, ``".07"``, ``"8.5e-1"`` or
+    ``"85 %"`` [-]; the same number forms as :func:`read_composition_text`.
+
+    Raises
+    ------
+    InputError
+        Not such a number; ``who`` leads the message.
+    """
+    if not isinstance(text, str):
+        raise WrongTypeError(f"{who}: a mole fraction as text, e.g. '0.85' or '85 %'; got {text!r}.")
+    cell = _read_cell(text.replace("\u00a0", " ").strip(), decimal_comma=True)
+    if cell.kind != "value":
+        raise InputError(f"{who}: cannot read {text!r} as a mole fraction; write a number such as 0.85 "
+                         "(or 0,85), or a percentage such as 85 %.")
+    return cell.value / 100.0 if cell.percent else cell.value
+
+
+def _resolved_pairs(reading: PastedComposition) -> list[tuple[Fluid, float]]:
+    """Each pair's fluid looked up, an unknown name or a repeated fluid named by its line."""
+    out, seen = [], {}
+    for (name, fraction), n in zip(reading.pairs, reading.lines):
+        who = f"Mixture.from_text, line {n} ({name!r})"
+        fluid = component_from_text(name, who)
+        if not (math.isfinite(fraction) and fraction >= 0):
+            raise InputError(f"{who}: the mole fraction is {fraction:g}; mole fractions must be finite and >= 0.")
+        key = _identity(fluid)
+        if key in seen:
+            first, earlier = seen[key]
+            where = f"line {n}" if first == n else f"lines {first} and {n}"
+            raise InputError(f"Mixture.from_text: {earlier!r} and {name!r} ({where}) are the same fluid "
+                             f"({fluid.name}); give it once, with the sum of its fractions.")
+        seen[key] = (n, name)
+        out.append((fluid, fraction))
+    return out
 
 
 @dataclass(frozen=True, init=False)
