@@ -11,12 +11,15 @@ refused input is explained beside its field; the previous result stays on screen
 - :class:`RootTracePanel` -- the residual and every root finder's iterates for one state.
 - :class:`ProcessPanel` -- a valve, compressor, expander or closed vessel from an inlet state,
   the reference equation's step beside it, drawn on a pressure-enthalpy diagram.
+- :class:`CompositionField` -- a mixture's composition, pasted or typed into a small table,
+  with a Normalise button; its ``value`` is the Mixture (None while the input is invalid).
 """
 
 from .accuracy_panel import AccuracyPanel
+from .composition import CompositionField
 from .isotherm_explorer import IsothermExplorer
 from .process_panel import ProcessPanel
 from .root_trace import RootTracePanel
 from .state_panel import StatePanel
 
-__all__ = ["AccuracyPanel", "IsothermExplorer", "ProcessPanel", "RootTracePanel", "StatePanel"]
+__all__ = ["AccuracyPanel", "CompositionField", "IsothermExplorer", "ProcessPanel", "RootTracePanel", "StatePanel"]
