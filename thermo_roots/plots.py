@@ -403,6 +403,96 @@ def plot_saturation_curve(model, ax=None, *, T=None, reference=True, n=80):
     return ax
 
 
+# --------------------------------------------------------------------------- binary P-x-y
+
+def plot_pxy(model, T, ax=None, *, n=41, reference=True, n_reference=9):
+    """The P-x-y diagram of a binary mixture at one temperature: the bubble-pressure curve
+    against the liquid's composition and the dew-pressure curve against the vapour's.
+
+    Parameters
+    ----------
+    model : CubicModel
+        A cubic on a two-component Mixture (its kᵢⱼ are used; the feed composition is not).
+    T : float or str
+        Temperature [K] ("-20 degC" accepted).
+    ax : matplotlib Axes, optional
+    n : int
+        Compositions of the model's curves, from pure second to pure first component.
+    reference : bool
+        Also the reference mixture model's bubble and dew points (CoolProp HEOS, GERG-2008
+        type; about 5-40 ms a point) at ``n_reference`` compositions.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+
+    Notes
+    -----
+    Between the curves the binary splits into two phases; above the bubble curve it is
+    liquid, below the dew curve vapour. Where the temperature is above the lighter
+    component's critical temperature the curves meet at the mixture's critical point short
+    of x = 1 and the plot ends there (compositions without a bubble point are left out).
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., ch. 12 (saturation points of mixtures).
+    """
+    from .equilibrium.saturation_points import bubble_point, dew_point
+
+    if getattr(model, "n_components", 1) != 2:
+        raise InputError(f"plot_pxy draws a binary; the model has {getattr(model, 'n_components', 1)} "
+                         "component(s). Give a cubic on a two-component Mixture, e.g. "
+                         "PengRobinson(Mixture({'propane': 0.5, 'n-butane': 0.5})).")
+    T = float(to_si(T, "T"))
+    names = model.components.names
+    x1 = np.linspace(0.0, 1.0, n)
+    P_bubble, P_dew = np.full(n, np.nan), np.full(n, np.nan)
+    for i, x in enumerate(x1):
+        z = np.array([x, 1.0 - x])
+        b, d = bubble_point(model, T=T, z=z), dew_point(model, T=T, z=z)
+        P_bubble[i] = b.P if b.status == "converged" else np.nan
+        P_dew[i] = d.P if d.status == "converged" else np.nan
+    ax = _new_axes(ax)
+    style = model_style(0)
+    label = model_label(model)
+    ax.plot(x1, P_bubble * _BAR, color=style["color"], linewidth=style["linewidth"],
+            label=f"bubble pressure, {label} (liquid x)", gid="model:bubble")
+    ax.plot(x1, P_dew * _BAR, color=style["color"], linewidth=style["linewidth"], linestyle="--",
+            label=f"dew pressure, {label} (vapour y)", gid="model:dew")
+    if np.any(np.isfinite(P_bubble)) and np.any(np.isfinite(P_dew)):
+        ax.fill(np.concatenate([x1[np.isfinite(P_bubble)], x1[np.isfinite(P_dew)][::-1]]),
+                np.concatenate([P_bubble[np.isfinite(P_bubble)], P_dew[np.isfinite(P_dew)][::-1]]) * _BAR,
+                color=style["color"], alpha=0.08, linewidth=0, label="two phases (model)")
+    if reference:
+        _pxy_reference(ax, model, T, n_reference)
+    ax.set_xlim(0.0, 1.0)
+    ax.set_xlabel(f"Mole fraction of {names[0]} in the liquid (x) or the vapour (y) [-]")
+    ax.set_ylabel("Pressure P [bar]")
+    ax.set_title(f"{names[0]} + {names[1]} at {_temperature_text(T)} — bubble and dew pressures")
+    ax.grid(True, color="0.92")
+    _deduplicated_legend(ax, loc="best", fontsize=8)
+    return ax
+
+
+def _pxy_reference(ax, model, T, n_points):
+    """The reference mixture model's bubble and dew points at n_points compositions (failures left out)."""
+    from .reference import mixture_reference_reason, reference_bubble_point, reference_dew_point
+
+    if mixture_reference_reason(model.components):
+        _note(ax, f"No reference: {mixture_reference_reason(model.components)}")
+        return
+    x1 = np.linspace(0.0, 1.0, n_points + 2)[1:-1]
+    for kind, call, marker in (("bubble", reference_bubble_point, "o"), ("dew", reference_dew_point, "s")):
+        P = []
+        for x in x1:
+            point = call(model.components.with_fractions([x, 1.0 - x]), T=T)
+            P.append(float(point.P) if point.available else np.nan)
+        ax.plot(x1, np.asarray(P) * _BAR, linestyle="none", marker=marker, markerfacecolor="white",
+                markeredgecolor=STYLE["reference"]["color"], label=f"{kind} point, reference mixture model",
+                gid=f"reference:{kind}")
+
+
 # --------------------------------------------------------------------------- compressibility
 
 def plot_compressibility(model, T, P=None, ax=None, *, reference=True, n=150):
