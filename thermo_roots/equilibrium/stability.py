@@ -176,7 +176,8 @@ def read_states(model, T, P, z, who: str):
         for label, x, unit in (("T", Tf, "K"), ("P", Pf, "Pa")):
             bad = ~(np.isfinite(x) & (x > 0))
             for i in np.flatnonzero(bad & (reasons == "")):
-                reasons[i] = f"{label} = {x[i]!r} {unit} is not a positive finite number"
+                reasons[i] = (f"{label} = {x[i]:.6g} {unit} is not a positive finite number; give {label} in {unit} "
+                              "above zero")
         total = zf.sum(axis=1)
         bad_z = ~(np.isfinite(zf).all(axis=1) & (zf >= 0).all(axis=1) & (total > 0))
     for i in np.flatnonzero(bad_z & (reasons == "")):
