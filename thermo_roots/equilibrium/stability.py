@@ -55,6 +55,10 @@ PROVEN_BELOW = 1e-3
 #: A trial whose composition comes within this of the feed in every ln wᵢ has found the
 #: trivial solution w = z (tm = 0): it proves nothing and stops.
 TRIVIAL_WITHIN = 1e-4
+#: A trial whose tm is above this [-] and falls by less than :data:`SLOW_FALL` of itself in a
+#: step has settled above zero (it proves nothing against stability).
+POSITIVE_MARGIN = 1e-4
+SLOW_FALL = 1e-3
 #: Every this many steps the dominant-eigenvalue extrapolation (Crowe & Nishio 1975).
 ACCELERATE_EVERY = 5
 
@@ -349,6 +353,7 @@ def _iterate_trials(model, T, P, z, d, tol, maxiter):
     with np.errstate(divide="ignore"):
         ln_z = np.repeat(np.log(z), 4, axis=0)
     tm = np.full(m * 4, np.inf)
+    tm_last = np.full(m * 4, np.inf)
     steps = np.zeros(m * 4, dtype=int)
     done = np.zeros(m * 4, dtype=bool)
     trivial = np.zeros(m * 4, dtype=bool)
@@ -368,7 +373,14 @@ def _iterate_trials(model, T, P, z, d, tol, maxiter):
         with np.errstate(divide="ignore", invalid="ignore"):
             near_feed = np.all(np.where(ln_z[active] > -np.inf,
                                         np.abs(np.log(w_new) - ln_z[active]) < TRIVIAL_WITHIN, True), axis=1)
-        settled = np.max(np.abs(step), axis=1) < tol
+        largest = np.max(np.abs(step), axis=1)
+        # a stationary point: steps below tol; or a tm well above zero that falls by less than
+        # SLOW_FALL of itself per step (substitution lowers tm at every step at a falling rate, so
+        # a thousand more such steps would not bring it to zero; near a critical point it creeps
+        # like that for hundreds of steps with tm fixed to 1e-7)
+        fall = tm_last[active] - tm[active]
+        settled = (largest < tol) | ((k > 2) & (tm[active] > POSITIVE_MARGIN) & (fall < SLOW_FALL * tm[active]))
+        tm_last[active] = tm[active]
         proven = tm[active] < -PROVEN_BELOW
         broken = ~np.isfinite(tm[active])
         state = active // 4
