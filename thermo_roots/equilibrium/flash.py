@@ -45,8 +45,8 @@ from thermo_roots.equilibrium.fugacity import phase_fugacity
 from thermo_roots.equilibrium.phase_words import LIQUID, feed_phase_words
 from thermo_roots.equilibrium.rachford_rice import rachford_rice
 from thermo_roots.models import R
-from thermo_roots.equilibrium.stability import (ACCELERATE_EVERY, NOT_SOLVED, STABLE, UNSTABLE, _dominant_eigenvalue_step,
-                                                _test, read_states)
+from thermo_roots.equilibrium.stability import (ACCELERATE_EVERY, NOT_CONVERGED, NOT_SOLVED, STABLE, UNSTABLE,
+                                                _dominant_eigenvalue_step, _k_from_trial, _test, read_states)
 
 #: Convergence: every |ln Kᵢ − (ln φᵢᴸ − ln φᵢⱽ)| below this [-] (the fugacities equal to 1e-10).
 FLASH_TOLERANCE = 1e-10
@@ -58,11 +58,11 @@ NEWTON_STEPS = 30
 HALVINGS = 12
 #: A split whose every |ln Kᵢ| is below this has collapsed onto the feed (the trivial solution).
 TRIVIAL_BELOW = 1e-4
-#: Relative slack [-] in "the Gibbs energy fell": rounding of G itself.
-GIBBS_SLACK = 1e-13
+#: Relative slack [-] in "the Gibbs energy fell": the rounding of G, a sum of terms of order one
+#: whose ln phi carry cancellations (near convergence G changes like |ln K error|², below it).
+GIBBS_SLACK = 1e-11
 
 CONVERGED = "converged"
-NOT_CONVERGED = "not converged"
 #: Status texts of :func:`flash_tp`.
 STATUSES = (CONVERGED, NOT_CONVERGED, NOT_SOLVED)
 
@@ -89,6 +89,9 @@ class FlashResult:
     tpd_min : the stability test's lowest tangent-plane distance [-]
     iterations : stability steps plus flash steps, per state
     newton : True where the Newton stage was needed
+    near_critical : True where the state is one phase at the edge of what the test resolves:
+        its trials crept towards the feed with tm > 0 without settling, or a trial just below
+        zero led to no split of lower Gibbs energy (next to a critical point)
     status : "converged", "not converged" or "not solved"
     reason : why a state is not converged or not solved ("" otherwise)
     """
@@ -110,6 +113,7 @@ class FlashResult:
     tpd_min: Any
     iterations: Any
     newton: Any
+    near_critical: Any
     status: Any
     reason: Any
 
@@ -150,9 +154,19 @@ def _split(model, T, P, z, ln_K):
     return beta, x, y, liquid, vapour, G, residual
 
 
-def _accepted(G_new, G_old):
-    """The Gibbs energy fell (within rounding), or the old value was not finite."""
-    return np.isfinite(G_new) & ~(G_new > G_old + GIBBS_SLACK * np.maximum(np.abs(G_old), 1.0))
+def _accepted(G_new, G_old, beta_new, beta_old, plain=True):
+    """Whether a step is kept: the Gibbs energy fell (within rounding) with 0 < β < 1 after it.
+
+    G is the Gibbs energy of a split only for 0 < β < 1; outside (the negative flash, where
+    the iteration may start or wander) it can fall without bound towards the trivial
+    solution. So a step from inside that leaves is refused; a plain substitution step that
+    starts outside is kept (it heads back inside where the feed does split); an
+    extrapolated one (``plain=False``) must land inside.
+    """
+    inside_new, inside_old = (beta_new > 0.0) & (beta_new < 1.0), (beta_old > 0.0) & (beta_old < 1.0)
+    fell = np.isfinite(G_new) & ~(G_new > G_old + GIBBS_SLACK * np.maximum(np.abs(G_old), 1.0))
+    fell |= ~np.isfinite(G_old) & np.isfinite(G_new)
+    return np.where(inside_old, inside_new & fell, np.isfinite(G_new) & (inside_new | plain))
 
 
 # --------------------------------------------------------------------------- the stages
@@ -166,6 +180,8 @@ def _substitution(model, T, P, z, ln_K, tol, steps):
     iterations = np.zeros(n, dtype=int)
     converged = np.zeros(n, dtype=bool)
     G_best = np.full(n, np.inf)
+    beta_best = np.full(n, np.nan)
+    plain = np.ones(n, dtype=bool)   # the pending trial is a plain substitution step (not extrapolated)
     K_best = ln_K.copy()
     last_step = np.full_like(ln_K, np.nan)
     halvings = np.zeros(n, dtype=int)
@@ -176,7 +192,7 @@ def _substitution(model, T, P, z, ln_K, tol, steps):
             break
         beta, x, y, liquid, vapour, G, target = _split(model, T[active], P[active], z[active], trial[active])
         iterations[active] = k
-        ok = _accepted(G, G_best[active])
+        ok = _accepted(G, G_best[active], beta, beta_best[active], plain[active])
         # rejected: halve the step towards the last accepted K
         rejected = active[~ok]
         halvings[rejected] += 1
@@ -184,12 +200,14 @@ def _substitution(model, T, P, z, ln_K, tol, steps):
         gave_up = rejected[halvings[rejected] > HALVINGS]
         kept = active[ok]
         step = target[ok] - trial[kept]
-        G_best[kept], K_best[kept], halvings[kept] = G[ok], trial[kept], 0
+        G_best[kept], beta_best[kept], K_best[kept], halvings[kept] = G[ok], beta[ok], trial[kept], 0
         done = np.max(np.abs(step), axis=1) < tol
         converged[kept[done]] = True
         new = target[ok]
+        plain[kept] = True
         if k % ACCELERATE_EVERY == 0:
             new = _dominant_eigenvalue_step(new, step, last_step[kept])
+            plain[kept] = False
         last_step[kept] = step
         trial[kept] = new
         finished = np.zeros(n, dtype=bool)
@@ -214,13 +232,13 @@ def _newton(model, T, P, z, ln_K, tol, steps):
         if active.size == 0:
             break
         Ta, Pa, za, Ka = T[active], P[active], z[active], ln_K[active]
-        *_, G, target = _split(model, Ta, Pa, za, Ka)
+        beta, *_, G, target = _split(model, Ta, Pa, za, Ka)
         F = Ka - target
         done = np.max(np.abs(F), axis=1) < tol
         converged[active[done]] = True
         iterations[active] = k
         keep = ~done & np.all(np.isfinite(F), axis=1)
-        active, Ta, Pa, za, Ka, F, G = (a[keep] for a in (active, Ta, Pa, za, Ka, F, G))
+        active, Ta, Pa, za, Ka, F, G, beta = (a[keep] for a in (active, Ta, Pa, za, Ka, F, G, beta))
         if active.size == 0:
             break
         J = np.empty((active.size, nc, nc))
@@ -242,8 +260,8 @@ def _newton(model, T, P, z, ln_K, tol, steps):
             if not pending.any():
                 break
             trial = Ka[pending] + t[pending, None] * delta[pending]
-            *_, G_trial, _ = _split(model, Ta[pending], Pa[pending], za[pending], trial)
-            ok = _accepted(G_trial, G[pending])
+            beta_trial, *_, G_trial, _ = _split(model, Ta[pending], Pa[pending], za[pending], trial)
+            ok = _accepted(G_trial, G[pending], beta_trial, beta[pending], plain=False)
             where = np.flatnonzero(pending)
             ln_K[active[where[ok]]] = trial[ok]
             moved[where[ok]] = True
@@ -306,10 +324,18 @@ def _flash_flat(model, shape, T, P, z, reasons, tol, maxiter) -> FlashResult:
     iterations = test["iterations"].copy()
     newton = np.zeros(n, dtype=bool)
     one = test["status"] == STABLE
-
-    split = np.flatnonzero(test["status"] == UNSTABLE)
+    # near a critical point the trials can creep towards the feed for hundreds of steps with
+    # tm > 0: nothing proves instability, so the flash is tried from the lowest trial; a split
+    # it finds is kept only where it lowers the Gibbs energy below the feed's
+    creeping = test["status"] == NOT_CONVERGED
+    near_critical = np.zeros(n, dtype=bool)
+    split = np.flatnonzero((test["status"] == UNSTABLE) | creeping)
     if split.size:
         ln_K = np.log(test["K_estimate"][split])
+        slow_test = creeping[split]
+        if slow_test.any():
+            i = split[slow_test]
+            ln_K[slow_test] = np.log(_k_from_trial(model, T[i], P[i], z[i], test["trial"][i], test["v_feed"][i]))
         ln_K, ok, steps = _substitution(model, T[split], P[split], z[split], ln_K, tol, maxiter)
         iterations[split] += steps
         slow = np.flatnonzero(~ok)
@@ -319,22 +345,24 @@ def _flash_flat(model, shape, T, P, z, reasons, tol, maxiter) -> FlashResult:
                                       NEWTON_STEPS)
             ln_K[slow], ok[slow] = K2, ok2
             iterations[split[slow]] += steps2
-        b, xs, ys, liquid, vapour, _, _ = _split(model, T[split], P[split], z[split], ln_K)
+        b, xs, ys, liquid, vapour, G, _ = _split(model, T[split], P[split], z[split], ln_K)
         collapsed = np.max(np.abs(ln_K), axis=1) < TRIVIAL_BELOW
-        outside = (b <= 0.0) | (b >= 1.0)
-        two = ok & ~collapsed & ~outside
+        outside = ~((b > 0.0) & (b < 1.0))
+        lower = G < test["g_feed"][split] - GIBBS_SLACK * np.maximum(1.0, np.abs(G))
+        two = ok & ~collapsed & ~outside & lower
         idx = split[two]
         status[idx], beta[idx], x[idx], y[idx], n_phases[idx] = CONVERGED, b[two], xs[two], ys[two], 2
         Zl[idx], Zv[idx], vl[idx], vv[idx] = liquid.Z[two], vapour.Z[two], liquid.v[two], vapour.v[two]
-        # converged onto the feed, or outside 0 < beta < 1: the test's trial was a near miss; one phase
-        one[split[ok & ~two]] = True
-        for i in split[~ok]:
+        # no split below the feed's Gibbs energy: one phase, at the edge of the test's resolution
+        edge = ~two & (ok | slow_test)
+        one[split[edge]] = True
+        near_critical[split[edge]] = True
+        reason[split[edge]] = ""
+        for i in split[~two & ~edge]:
             status[i] = NOT_CONVERGED
             reason[i] = (f"the flash did not converge at T = {T[i]:.6g} K, P = {P[i]:.6g} Pa within {maxiter} "
                          f"substitution and {NEWTON_STEPS} Newton steps (a state very near a critical point?); "
                          "try a slightly different T or P")
-    not_converged_test = test["status"] == "not converged"
-    status[not_converged_test] = NOT_CONVERGED
 
     one_idx = np.flatnonzero(one)
     phase = np.full(n, "not solved", dtype=object)
@@ -354,7 +382,7 @@ def _flash_flat(model, shape, T, P, z, reasons, tol, maxiter) -> FlashResult:
     Z = P * v / (R * T)
     values = dict(T=T, P=P, z=z, beta=beta, x=x, y=y, n_phases=n_phases, phase=phase, Z_liquid=Zl, Z_vapor=Zv,
                   v_liquid=vl, v_vapor=vv, v=v, Z=Z, tpd_min=test["tpd_min"], iterations=iterations, newton=newton,
-                  status=status, reason=reason)
+                  near_critical=near_critical, status=status, reason=reason)
     return _shaped(shape, values)
 
 

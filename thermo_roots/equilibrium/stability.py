@@ -59,6 +59,8 @@ TRIVIAL_WITHIN = 1e-4
 #: step has settled above zero (it proves nothing against stability).
 POSITIVE_MARGIN = 1e-4
 SLOW_FALL = 1e-3
+#: b below this (with r near 1) marks a trial heading for the trivial solution [-].
+TRIVIAL_B = 1e-4
 #: Every this many steps the dominant-eigenvalue extrapolation (Crowe & Nishio 1975).
 ACCELERATE_EVERY = 5
 
@@ -292,7 +294,7 @@ def _test(model, T, P, z, reasons, tol, maxiter):
     out = {"tpd_min": np.full(n, np.nan), "trial": np.full((n, nc), np.nan), "K_estimate": np.full((n, nc), np.nan),
            "trial_tpd": np.full((n, 4), np.nan), "iterations": np.zeros(n, dtype=int),
            "status": np.full(n, NOT_SOLVED, dtype="<U15"), "reason": reasons.copy(),
-           "Z_feed": np.full(n, np.nan), "v_feed": np.full(n, np.nan)}
+           "Z_feed": np.full(n, np.nan), "v_feed": np.full(n, np.nan), "g_feed": np.full(n, np.nan)}
     idx = np.flatnonzero(good)
     if idx.size == 0:
         return out
@@ -305,6 +307,9 @@ def _test(model, T, P, z, reasons, tol, maxiter):
                             "(far outside the range a cubic holds in double precision)")
     idx, d = idx[usable], d[usable]
     out["Z_feed"][idx], out["v_feed"][idx] = feed.Z[usable], feed.v[usable]
+    # the feed's Gibbs energy as one phase, G/(RT) less the pure ideal gases' (what a split must beat)
+    with np.errstate(invalid="ignore"):
+        out["g_feed"][idx] = np.where(z[idx] > 0, z[idx] * d, 0.0).sum(axis=1)
     if idx.size == 0:
         return out
     m = idx.size
@@ -386,6 +391,14 @@ def _iterate_trials(model, T, P, z, d, tol, maxiter):
         state = active // 4
         proven_states[state[proven]] = True
         finished = settled | proven | near_feed | broken | proven_states[state]
+        # Michelsen & Mollerup (2007, ch. 10): heading for the trivial solution when
+        # b = Σ (Wᵢ − zᵢ)(ln Wᵢ − ln zᵢ) is small and tm ≈ b/2 (r = 2 tm/b near 1)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            gap = np.where(ln_z[active] > -np.inf, (W - np.exp(ln_z[active])) * (ln_W[active] - ln_z[active]), 0.0)
+            b = gap.sum(axis=1)
+            r = 2.0 * tm[active] / b
+        near_feed |= (b < TRIVIAL_B) & (np.abs(r - 1.0) < 0.2)
+        finished |= near_feed
         trivial[active] = near_feed & ~proven
         if k % ACCELERATE_EVERY == 0:
             new = _dominant_eigenvalue_step(new, step, last_step[active])
@@ -402,7 +415,8 @@ def _iterate_trials(model, T, P, z, d, tol, maxiter):
 def _finish(shape, out) -> StabilityResult:
     """Shape the flat arrays back; a scalar state gives Python scalars."""
     stable = out["status"] == STABLE
-    values = dict(out, stable=stable)
+    values = {k: v for k, v in out.items() if k != "g_feed"}   # the flash's, not a field
+    values["stable"] = stable
     if shape == ():
         scalar = {k: (v[0].item() if np.ndim(v[0]) == 0 and not isinstance(v[0], str) else v[0])
                   for k, v in values.items()}
