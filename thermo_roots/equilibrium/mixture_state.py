@@ -314,7 +314,7 @@ def solve_mixture(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHE
     bad = np.flatnonzero(status != CONVERGED)
     if bad.size and (shape == () or errors == "raise"):
         i = int(bad[0])
-        where = "" if shape == () else f" at index {np.unravel_index(i, shape)}"
+        where = "" if shape == () else f" at index {tuple(int(k) for k in np.unravel_index(i, shape))}"
         kind = ConvergenceError if status[i] == NOT_CONVERGED else InputError
         raise kind(f"solve: the mixture state{where} is not solved: {reason[i]}.")
     nc = model.n_components
