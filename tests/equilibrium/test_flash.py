@@ -169,6 +169,23 @@ def test_near_the_critical_region_every_state_converges_or_says_why(gas3):
                                np.broadcast_to(gas3.z, (two.sum(), 3)), atol=1e-12)
 
 
+def test_next_to_the_critical_point_of_the_natural_gas():
+    """Where substitution crawls (the gas's critical point is near 223 K, 7.65 MPa in PR, kij = 0,
+    found by this grid), the Newton stage on the vapour amounts must finish with equal fugacities."""
+    model = tr.PengRobinson(tr.Mixture(GAS6))
+    T, P = np.meshgrid(np.linspace(222.3, 224.3, 8), np.linspace(7.57e6, 7.77e6, 8))
+    f = flash_tp(model, T, P)
+    ok = f.status == "converged"
+    assert ok.mean() >= 0.95
+    two = ok & (f.n_phases == 2)
+    assert two.sum() >= 5 and f.newton[two].sum() >= 3
+    from thermo_roots.equilibrium.fugacity import phase_fugacity
+
+    liquid = phase_fugacity(model, T[two], P[two], f.x[two])
+    vapour = phase_fugacity(model, T[two], P[two], f.y[two])
+    np.testing.assert_allclose(np.log(f.x[two]) + liquid.ln_phi, np.log(f.y[two]) + vapour.ln_phi, atol=1e-8)
+
+
 def test_arrays_keep_their_good_elements(gas6):
     T = np.array([200.0, np.nan, 230.0, -5.0, 1e-300])
     P = np.array([3e6, 3e6, 4e6, 3e6, 3e6])

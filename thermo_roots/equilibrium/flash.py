@@ -10,8 +10,9 @@ For every state, vectorized:
    (:func:`~thermo_roots.equilibrium.fugacity.phase_fugacity`), ln Kᵢ ← ln φᵢᴸ − ln φᵢⱽ;
    every fifth step extrapolated along the dominant eigenvalue (Crowe & Nishio 1975);
 3. states still unconverged after :data:`SUBSTITUTION_STEPS` (slow near a critical point)
-   go on by Newton's method on ln K (its Jacobian by forward differences of the same
-   functions) with a halving line search.
+   go on by Newton's method on the Gibbs energy in the vapour amounts (its Hessian by
+   forward differences of the same ln φ, made positive definite) with a halving line
+   search.
 
 The Gibbs energy of the split, G/(RT) = Σ over phases of βₚ Σᵢ cᵢ (ln cᵢ + ln φᵢ), must fall
 at every accepted step: a step that raises it is halved towards the last accepted K
@@ -217,56 +218,96 @@ def _substitution(model, T, P, z, ln_K, tol, steps):
     return K_best, converged, iterations
 
 
-def _newton(model, T, P, z, ln_K, tol, steps):
-    """Newton's method on F(ln K) = ln K − (ln φᴸ − ln φⱽ) = 0 with a halving line search on G.
+def _amounts_gibbs(model, T, P, z, v):
+    """G/(RT) and its gradient in the vapour amounts v (per mole of feed), states (m, nc).
 
-    The Jacobian is taken by forward differences of F (each column one more split), so
-    it uses the same ln φ as everything else. Returns ln K, converged, iterations.
+    l = z − v, x = l/L, y = v/V; G = Σ lᵢ (ln xᵢ + ln φᵢᴸ) + Σ vᵢ (ln yᵢ + ln φᵢⱽ) and
+    ∂G/∂vᵢ = ln(yᵢ φᵢⱽ) − ln(xᵢ φᵢᴸ) (Michelsen & Mollerup 2007, ch. 10). An absent
+    component (zᵢ = 0) has gradient 0.
+    """
+    present = z > 0
+    l = z - v
+    with np.errstate(divide="ignore", invalid="ignore"):
+        x = l / l.sum(axis=1, keepdims=True)
+        y = v / v.sum(axis=1, keepdims=True)
+        liquid, vapour = phase_fugacity(model, T, P, x), phase_fugacity(model, T, P, y)
+        ln_fl, ln_fv = np.log(x) + liquid.ln_phi, np.log(y) + vapour.ln_phi
+        G = np.where(present, l * ln_fl + v * ln_fv, 0.0).sum(axis=1)
+        gradient = np.where(present, ln_fv - ln_fl, 0.0)
+    return G, gradient
+
+
+def _newton(model, T, P, z, ln_K, tol, steps):
+    """Newton's method on the Gibbs energy in the vapour amounts vᵢ, with a halving line search.
+
+    Michelsen's second-order stage: the Hessian of G in v (the derivative of its gradient,
+    taken by forward differences of the same ln φ, all nc columns of all states in one
+    array) made positive definite by lifting its eigenvalues, so every step is a descent
+    direction; the step is cut to keep 0 < vᵢ < zᵢ and halved until G falls. Starts from
+    the split of z by K (states whose split is not 0 < β < 1 are left unconverged).
+    Returns ln K = ln(y/x), converged, iterations.
+
+    References
+    ----------
+    Michelsen (1982), Fluid Phase Equilib. 9, 21-40; Michelsen & Mollerup (2007), ch. 10.
     """
     n, nc = z.shape
     iterations = np.zeros(n, dtype=int)
     converged = np.zeros(n, dtype=bool)
+    beta, x, y, *_ = _split(model, T, P, z, ln_K)
+    v = beta[:, None] * y
     ln_K = ln_K.copy()
-    active = np.arange(n)
+    active = np.flatnonzero((beta > 0) & (beta < 1) & np.all(np.isfinite(v), axis=1))
+    present = z > 0
+    eye = np.eye(nc)
     for k in range(1, steps + 1):
         if active.size == 0:
             break
-        Ta, Pa, za, Ka = T[active], P[active], z[active], ln_K[active]
-        beta, *_, G, target = _split(model, Ta, Pa, za, Ka)
-        F = Ka - target
-        done = np.max(np.abs(F), axis=1) < tol
-        converged[active[done]] = True
+        Ta, Pa, za, va = T[active], P[active], z[active], v[active]
+        G, gradient = _amounts_gibbs(model, Ta, Pa, za, va)
         iterations[active] = k
-        keep = ~done & np.all(np.isfinite(F), axis=1)
-        active, Ta, Pa, za, Ka, F, G, beta = (a[keep] for a in (active, Ta, Pa, za, Ka, F, G, beta))
+        done = np.max(np.abs(gradient), axis=1) < tol
+        converged[active[done]] = True
+        keep = ~done & np.isfinite(G)
+        active, Ta, Pa, za, va, G, gradient = (a[keep] for a in (active, Ta, Pa, za, va, G, gradient))
         if active.size == 0:
             break
-        J = np.empty((active.size, nc, nc))
-        h = 1e-7 * np.maximum(1.0, np.abs(Ka))
-        for j in range(nc):
-            shifted = Ka.copy()
-            shifted[:, j] += h[:, j]
-            *_, target_j = _split(model, Ta, Pa, za, shifted)
-            J[:, :, j] = ((shifted - target_j) - F) / h[:, j][:, None]
-        try:
-            delta = -np.linalg.solve(J, F[..., None])[..., 0]
-        except np.linalg.LinAlgError:
-            delta = -F   # a singular Jacobian somewhere: a substitution step for all
-        delta = np.where(np.isfinite(delta), delta, -F)
-        t = np.ones(active.size)
-        moved = np.zeros(active.size, dtype=bool)
+        m = active.size
+        la = za - va
+        h = 1e-7 * np.maximum(np.minimum(va, la), 1e-300)   # inside 0 < v < z
+        shifted = np.repeat(va[:, None, :], nc, axis=1) + h[:, :, None] * eye
+        _, g_j = _amounts_gibbs(model, np.repeat(Ta, nc), np.repeat(Pa, nc), np.repeat(za, nc, axis=0),
+                                shifted.reshape(m * nc, nc))
+        H = (g_j.reshape(m, nc, nc) - gradient[:, None, :]) / h[:, :, None]
+        H = 0.5 * (H + np.swapaxes(H, 1, 2))
+        both = present[active][:, :, None] & present[active][:, None, :]
+        H = np.where(both, H, eye)                        # an absent component stays at v = 0
+        H = np.where(np.isfinite(H), H, eye)
+        w, U = np.linalg.eigh(H)
+        floor = 1e-10 * np.maximum(np.abs(w).max(axis=1, keepdims=True), 1e-300)
+        w = np.maximum(np.abs(w), floor)                  # positive definite: a descent direction
+        with np.errstate(over="ignore", invalid="ignore"):
+            delta = -np.einsum("mij,mj,mkj,mk->mi", U, 1.0 / w, U, gradient)
+        delta = np.where(np.isfinite(delta), delta, 0.0)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            room = np.where(delta < 0, -va / delta, np.where(delta > 0, la / delta, np.inf))
+        t = np.minimum(1.0, 0.9 * np.min(np.where(present[active], room, np.inf), axis=1))
+        moved = np.zeros(m, dtype=bool)
         for _ in range(HALVINGS):
-            pending = ~moved
-            if not pending.any():
+            pending = np.flatnonzero(~moved)
+            if pending.size == 0:
                 break
-            trial = Ka[pending] + t[pending, None] * delta[pending]
-            beta_trial, *_, G_trial, _ = _split(model, Ta[pending], Pa[pending], za[pending], trial)
-            ok = _accepted(G_trial, G[pending], beta_trial, beta[pending], plain=False)
-            where = np.flatnonzero(pending)
-            ln_K[active[where[ok]]] = trial[ok]
-            moved[where[ok]] = True
-            t[where[~ok]] *= 0.5
+            trial = va[pending] + t[pending, None] * delta[pending]
+            G_trial, _ = _amounts_gibbs(model, Ta[pending], Pa[pending], za[pending], trial)
+            ok = np.isfinite(G_trial) & ~(G_trial > G[pending] + GIBBS_SLACK * np.maximum(np.abs(G[pending]), 1.0))
+            v[active[pending[ok]]] = trial[ok]
+            moved[pending[ok]] = True
+            t[pending[~ok]] *= 0.5
         active = active[moved]   # no step lowered G: that state stops here (not converged)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        l = z - v
+        ratio = (v / v.sum(axis=1, keepdims=True)) / (l / l.sum(axis=1, keepdims=True))
+        ln_K = np.where(present & np.isfinite(ratio) & (ratio > 0), np.log(ratio), ln_K)
     return ln_K, converged, iterations
 
 
