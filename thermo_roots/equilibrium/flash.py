@@ -53,6 +53,8 @@ from thermo_roots.equilibrium.stability import (ACCELERATE_EVERY, NOT_CONVERGED,
 FLASH_TOLERANCE = 1e-10
 #: Successive-substitution steps before the Newton stage takes over.
 SUBSTITUTION_STEPS = 60
+#: States flashed at once (memory: about 5 kB per state while iterating).
+CHUNK = 2 ** 14
 #: Most Newton steps.
 NEWTON_STEPS = 30
 #: Most halvings of a step that raised the Gibbs energy.
@@ -354,6 +356,18 @@ def flash_tp(model, T, P, z=None, *, tol: float = FLASH_TOLERANCE, maxiter: int 
 
 
 def _flash_flat(model, shape, T, P, z, reasons, tol, maxiter) -> FlashResult:
+    """The flash of flat states, in chunks of :data:`CHUNK` (each iteration's arrays stay small:
+    2e5 states at once peaked at about 1 GB), shaped back to ``shape``."""
+    n = T.size
+    if n <= CHUNK:
+        return _shaped(shape, _flash_chunk(model, T, P, z, reasons, tol, maxiter))
+    pieces = [_flash_chunk(model, T[s:s + CHUNK], P[s:s + CHUNK], z[s:s + CHUNK], reasons[s:s + CHUNK], tol, maxiter)
+              for s in range(0, n, CHUNK)]
+    return _shaped(shape, {k: np.concatenate([p[k] for p in pieces]) for k in pieces[0]})
+
+
+def _flash_chunk(model, T, P, z, reasons, tol, maxiter) -> dict:
+    """The flash of one chunk of flat states: a dict of flat arrays (the FlashResult fields)."""
     n, nc = z.shape
     test = _test(model, T, P, z, reasons, 1e-8, 200)
     status = np.full(n, NOT_SOLVED, dtype="<U15")
@@ -424,7 +438,7 @@ def _flash_flat(model, shape, T, P, z, reasons, tol, maxiter) -> FlashResult:
     values = dict(T=T, P=P, z=z, beta=beta, x=x, y=y, n_phases=n_phases, phase=phase, Z_liquid=Zl, Z_vapor=Zv,
                   v_liquid=vl, v_vapor=vv, v=v, Z=Z, tpd_min=test["tpd_min"], iterations=iterations, newton=newton,
                   near_critical=near_critical, status=status, reason=reason)
-    return _shaped(shape, values)
+    return values
 
 
 def _shaped(shape, values) -> FlashResult:

@@ -95,7 +95,7 @@ def phase_identification_parameter(model, T, v):
     """
     T, v = np.asarray(T, dtype=float), np.asarray(v, dtype=float)
     h = _PIP_STEP * v
-    with np.errstate(invalid="ignore", divide="ignore"):
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):   # far outside the model's range: NaN
         d2P_dv2 = (model.dP_dv(T, v + h) - model.dP_dv(T, v - h)) / (2.0 * h)
         d2P_dTdv = (model.dP_dT(T, v + h) - model.dP_dT(T, v - h)) / (2.0 * h)
         return v * (d2P_dTdv / model.dP_dT(T, v) - d2P_dv2 / model.dP_dv(T, v))

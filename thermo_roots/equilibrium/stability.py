@@ -209,8 +209,11 @@ def _trial_starts(ln_k, z):
     with np.errstate(divide="ignore"):
         ln_z = np.log(z)
     starts = np.empty((n, 4, nc))
-    starts[:, 0] = ln_z + ln_k
-    starts[:, 1] = ln_z - ln_k
+    # normalized (Σ W = 1): the first step sets the scale, and K z at 1e-300 Pa would overflow
+    for slot, sign in ((0, 1.0), (1, -1.0)):
+        ln_w = ln_z + sign * ln_k
+        top = np.max(ln_w, axis=1, keepdims=True)
+        starts[:, slot] = ln_w - top - np.log(np.exp(ln_w - top).sum(axis=1, keepdims=True))
     masked = np.where(z > 0, ln_k, np.nan)
     light, heavy = np.nanargmax(masked, axis=1), np.nanargmin(masked, axis=1)
     rows = np.arange(n)
@@ -223,7 +226,7 @@ def _trial_starts(ln_k, z):
 def _tm(ln_W, ln_phi, d):
     """Michelsen's modified tangent-plane distance tm(W) [-] (absent components contribute 0)."""
     W = np.exp(ln_W)
-    with np.errstate(invalid="ignore"):   # an absent component: 0 (-inf), left out by the where
+    with np.errstate(invalid="ignore", over="ignore"):   # an absent component: 0 (-inf), left out by the where
         terms = np.where(W > 0, W * (ln_W + ln_phi - d - 1.0), 0.0)
     return 1.0 + terms.sum(axis=-1)
 
