@@ -81,7 +81,8 @@ class FlashResult:
     beta : molar vapour fraction [-]: the split in two phases; in one phase 1.0 where the
         phase word is "vapor" or "supercritical" and 0.0 where it is "liquid" (the module's
         rule); NaN only where not solved
-    x, y : liquid and vapour mole fractions [-] (both z in one phase)
+    x, y : liquid and vapour mole fractions [-] (both z in one phase); of two phases the
+        "vapour" y is the one of larger molar volume (also in a liquid-liquid split)
     n_phases : 1 or 2 (0 where not solved)
     phase : "liquid", "vapor", "supercritical" or "two-phase" (:mod:`.phase_words`);
         "not solved" where the state has a reason
@@ -405,9 +406,16 @@ def _flash_chunk(model, T, P, z, reasons, tol, maxiter) -> dict:
         outside = ~((b > 0.0) & (b < 1.0))
         lower = G < test["g_feed"][split] - GIBBS_SLACK * np.maximum(1.0, np.abs(G))
         two = ok & ~collapsed & ~outside & lower
+        # the "vapour" is the phase of larger molar volume (a liquid-liquid split of CO2 or N2 at low
+        # T can converge with the denser phase in y): swap such splits
+        swap = vapour.v < liquid.v
+        b = np.where(swap, 1.0 - b, b)
+        xs, ys = np.where(swap[:, None], ys, xs), np.where(swap[:, None], xs, ys)
+        Z_l, Z_v = np.where(swap, vapour.Z, liquid.Z), np.where(swap, liquid.Z, vapour.Z)
+        v_l, v_v = np.where(swap, vapour.v, liquid.v), np.where(swap, liquid.v, vapour.v)
         idx = split[two]
         status[idx], beta[idx], x[idx], y[idx], n_phases[idx] = CONVERGED, b[two], xs[two], ys[two], 2
-        Zl[idx], Zv[idx], vl[idx], vv[idx] = liquid.Z[two], vapour.Z[two], liquid.v[two], vapour.v[two]
+        Zl[idx], Zv[idx], vl[idx], vv[idx] = Z_l[two], Z_v[two], v_l[two], v_v[two]
         # no split below the feed's Gibbs energy: one phase, at the edge of the test's resolution
         edge = ~two & (ok | slow_test)
         one[split[edge]] = True
