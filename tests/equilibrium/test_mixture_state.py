@@ -84,6 +84,29 @@ def test_lever_rule_against_each_phase_solved_as_a_feed(gas6):
     assert s.h_mass == pytest.approx(s.h / float(gas6.z @ gas6.components.molar_masses), rel=1e-12)
 
 
+def test_array_caloric_equals_the_one_composition_path(gas6):
+    """h, s, cp, w of an array (each phase at its own composition, one call) equal
+    properties.caloric of the model at that one composition, state by state."""
+    from thermo_roots.properties import caloric
+
+    T, P = np.meshgrid(np.linspace(190.0, 300.0, 4), np.linspace(1e6, 8e6, 4))
+    s = tr.solve(gas6, T=T, P=P)
+    assert np.all(s.status == "converged") and np.any(s.phase == "two-phase")
+    for i in np.ndindex(T.shape):
+        parts = []
+        for v, comp, weight in ((s.v_liquid[i], s.x[i], 1.0 - s.vapor_fraction[i]),
+                                (s.v_vapor[i], s.y[i], s.vapor_fraction[i])):
+            if np.isfinite(v):
+                parts.append((weight, caloric(gas6.at_composition(comp), T[i], v, P[i])))
+        assert s.h[i] == pytest.approx(sum(w * c.h for w, c in parts), rel=1e-12, abs=1e-9)
+        assert s.s[i] == pytest.approx(sum(w * c.s for w, c in parts), rel=1e-12, abs=1e-12)
+        if len(parts) == 1:
+            assert s.cp[i] == pytest.approx(parts[0][1].cp, rel=1e-12)
+            assert s.w[i] == pytest.approx(parts[0][1].w, rel=1e-12)
+        else:
+            assert np.isnan(s.cp[i]) and np.isnan(s.w[i])
+
+
 def test_each_phase_volume_is_a_root_of_its_cubic(gas6):
     s = tr.solve(gas6, T=200.0, P=3e6)
     assert np.nanmin(np.abs(s.liquid_roots - s.v_liquid)) < 1e-12 * s.v_liquid
@@ -158,3 +181,13 @@ def test_phase_identification_parameter_tells_a_pure_liquid_from_its_vapour():
     assert liquid.phase == "liquid" and vapour.phase == "vapor"
     assert pw.phase_identification_parameter(model, 250.0, liquid.v) > 1.0
     assert pw.phase_identification_parameter(model, 250.0, vapour.v) < 1.0
+
+
+def test_phase_identification_parameter_at_per_state_compositions(gas6):
+    """One array call at many compositions equals the model at each composition alone."""
+    rng = np.random.default_rng(3)
+    z = rng.dirichlet(np.ones(6), 5)
+    T, v = np.linspace(150.0, 300.0, 5), np.linspace(6e-5, 1e-3, 5)
+    together = pw.phase_identification_parameter(pw.model_at_compositions(gas6, z), T, v)
+    alone = [pw.phase_identification_parameter(gas6.at_composition(z[i]), T[i], v[i]) for i in range(5)]
+    np.testing.assert_allclose(together, alone, rtol=1e-12)

@@ -19,6 +19,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from thermo_roots.equilibrium.flash import CONVERGED, NOT_CONVERGED, _flash_flat
+from thermo_roots.equilibrium.phase_words import model_at_compositions
 from thermo_roots.equilibrium.stability import read_states
 from thermo_roots.errors import ConvergenceError, DomainError, InputError
 from thermo_roots.inversion.cubic import cubic_real_roots
@@ -33,6 +34,8 @@ MIXTURE_PAIRS = ("(T, P)",)
 ERRORS = ("nan", "raise")
 #: The caloric fields of a mixture state (two-phase by the lever rule).
 _LEVER_FIELDS = ("h", "s", "u", "g")
+#: ... and those of one phase only (NaN in two phases).
+_CALORIC_FIELDS = _LEVER_FIELDS + ("cp", "cv", "w")
 
 
 @dataclass(frozen=True)
@@ -142,6 +145,9 @@ class MixtureState:
     s = property(lambda self: self._caloric["s"], doc="Entropy [J/(mol K)] (lever rule over the phases).")
     u = property(lambda self: self._caloric["u"], doc="Internal energy [J/mol] (lever rule over the phases).")
     g = property(lambda self: self._caloric["g"], doc="Gibbs energy [J/mol] (lever rule over the phases).")
+    cp = property(lambda self: self._caloric["cp"], doc="Isobaric heat capacity [J/(mol K)]; NaN in two phases.")
+    cv = property(lambda self: self._caloric["cv"], doc="Isochoric heat capacity [J/(mol K)]; NaN in two phases.")
+    w = property(lambda self: self._caloric["w"], doc="Speed of sound [m/s]; NaN in two phases.")
     h_mass = property(lambda self: self._per_mass(self.h), doc="Specific enthalpy [J/kg].")
     s_mass = property(lambda self: self._per_mass(self.s), doc="Specific entropy [J/(kg K)].")
     u_mass = property(lambda self: self._per_mass(self.u), doc="Specific internal energy [J/kg].")
@@ -215,28 +221,48 @@ def _label(model) -> str:
     return " + ".join(f"{n} {z:.4g}" for n, z in zip(c.names, c.fractions))
 
 
-def _phase_caloric(model, T, P, v, comp):
-    """h, s, u, g [J/mol ...] of phases at flat T, P, v and compositions comp (n, nc); NaN where v is NaN.
+def _ideal_parts_by_component(model, T, v):
+    """Each component's ideal-gas Helmholtz bundle at (T, v) [J/mol ...]: the pieces
+    properties.helmholtz sums (the fluid's ideal part on the project's gas constant),
+    to be weighted here by each state's own composition.
 
-    properties.caloric evaluates a model at its own composition, so states are grouped by
-    composition (every one-phase state of one feed is one group) and each group is one
-    array call of the model at that composition.
+    Raises DomainError (as properties does) for a component without ideal-gas data.
     """
-    from thermo_roots.properties import caloric
+    from thermo_roots.properties import _gas_constant_shift, _ideal_parts
+
+    parts = []
+    for ideal, _ in _ideal_parts(model):
+        parts.append([a + b for a, b in zip(ideal.helmholtz(T, v), _gas_constant_shift(ideal, T, v))])
+    return parts
+
+
+def _phase_caloric(model, T, P, v, comp):
+    """h, s, u, g, cp, cv, w of phases at flat T [K], P [Pa], v [m³/mol] and compositions comp
+    (n, nc), in one array call; NaN where v is NaN.
+
+    a(T, v) = the model's residual bundle at each state's composition + Σ xᵢ (component i's
+    ideal part) + R T Σ xᵢ ln xᵢ (the ideal mixing term, as in properties.helmholtz), then
+    properties.caloric_from_helmholtz.
+    """
+    from thermo_roots.models import Helmholtz
+    from thermo_roots.properties import caloric_from_helmholtz
 
     n = T.size
-    out = {k: np.full(n, np.nan) for k in _LEVER_FIELDS}
+    out = {k: np.full(n, np.nan) for k in _CALORIC_FIELDS}
     ok = np.flatnonzero(np.isfinite(v))
     if ok.size == 0:
         return out
-    rows, inverse = np.unique(comp[ok], axis=0, return_inverse=True)
-    inverse = np.ravel(inverse)
-    for k, row in enumerate(rows):
-        at = ok[inverse == k]
-        twin = model if np.array_equal(row, model.z) else model.at_composition(row)
-        record = caloric(twin, T[at], v[at], P[at])
-        for name in _LEVER_FIELDS:
-            out[name][at] = getattr(record, name)
+    T, P, v, x = T[ok], P[ok], v[ok], comp[ok]
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        A = list(model_at_compositions(model, x).residual_bundle(T, v))
+        for i, ideal in enumerate(_ideal_parts_by_component(model, T, v)):
+            A = [a + x[:, i] * b for a, b in zip(A, ideal)]
+        mixing = np.where(x > 0, x * np.log(np.where(x > 0, x, 1.0)), 0.0).sum(axis=1)
+        A = Helmholtz(*A)._replace(a=A[0] + R * T * mixing, a_T=A[1] + R * mixing)
+        values = caloric_from_helmholtz(T, v, P, x @ model.components.molar_masses, *A)
+    for name, value in zip(("P", "h", "s", "u", "g", "cp", "cv", "w"), values):
+        if name in out:
+            out[name][ok] = value
     return out
 
 
@@ -251,9 +277,10 @@ def _lever_caloric(state):
     liquid = _phase_caloric(state.model, T, P, vl, x)
     vapour = _phase_caloric(state.model, T, P, vv, y)
     out = {}
-    for name in _LEVER_FIELDS:
+    for name in _CALORIC_FIELDS:
         lq, vp = liquid[name], vapour[name]
-        both = np.where(np.isnan(vl), vp, np.where(np.isnan(vv), lq, (1.0 - beta) * lq + beta * vp))
+        mixed = (1.0 - beta) * lq + beta * vp if name in _LEVER_FIELDS else np.nan
+        both = np.where(np.isnan(vl), vp, np.where(np.isnan(vv), lq, mixed))
         out[name] = _scalar_or_array(both.reshape(shape))
     return out
 

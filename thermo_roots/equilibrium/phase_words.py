@@ -30,6 +30,8 @@ properties, Fluid Phase Equilib. 301, 225-233.
 
 from __future__ import annotations
 
+import copy
+
 import numpy as np
 
 LIQUID, VAPOR, SUPERCRITICAL, TWO_PHASE = "liquid", "vapor", "supercritical", "two-phase"
@@ -101,16 +103,27 @@ def phase_identification_parameter(model, T, v):
         return v * (d2P_dTdv / model.dP_dT(T, v) - d2P_dv2 / model.dP_dv(T, v))
 
 
+def model_at_compositions(model, x):
+    """The cubic with per-state compositions x (n, nc): what its (T, v) methods read of the
+    composition (z for the mixing rule, b, c, v_min) as arrays, so that one call of
+    ``pressure``, ``dP_dv``, ``dP_dT`` or ``residual_bundle`` evaluates every state at its
+    own composition with the model's own formulas (``at_composition`` takes one)."""
+    x = np.asarray(x, dtype=float)
+    twin = copy.copy(model)
+    twin.z = x
+    twin.b = x @ model._b_i
+    twin.c = x @ model._c_i
+    twin.v_min = twin.b - twin.c
+    return twin
+
+
 def feed_phase_words(model, T, P, z, v):
     """Words of single-phase feeds z (n, nc) at flat T [K], P [Pa] and their volumes v [m³/mol]."""
     z = np.asarray(z, dtype=float)
-    pip = np.full(z.shape[0], np.nan)
-    rows, inverse = np.unique(z, axis=0, return_inverse=True)
-    inverse = np.ravel(inverse)
-    for k, row in enumerate(rows):
-        at = inverse == k
-        same = np.array_equal(row, model.z)
-        twin = model if same or model.n_components == 1 else model.at_composition(row)
-        pip[at] = phase_identification_parameter(twin, T[at], v[at])
+    if model.n_components == 1 or np.all(z == model.z):
+        twin = model
+    else:
+        twin = model_at_compositions(model, z)
+    pip = phase_identification_parameter(twin, T, v)
     Tc, Pc = model.components.Tc, model.components.Pc
     return phase_words(T, P, pip, z @ Tc, z @ Pc)
