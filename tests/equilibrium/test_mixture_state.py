@@ -191,3 +191,8 @@ def test_phase_identification_parameter_at_per_state_compositions(gas6):
     together = pw.phase_identification_parameter(pw.model_at_compositions(gas6, z), T, v)
     alone = [pw.phase_identification_parameter(gas6.at_composition(z[i]), T[i], v[i]) for i in range(5)]
     np.testing.assert_allclose(together, alone, rtol=1e-12)
+
+
+def test_print_shows_compositions_and_the_caution(gas6):
+    text = str(tr.solve(gas6, T=200.0, P=3e6))
+    assert "vapor y" in text and "methane" in text and "Caution" in text and "two-phase" in text

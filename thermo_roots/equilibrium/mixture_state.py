@@ -194,6 +194,21 @@ class MixtureState:
         return (f"MixtureState({name}, T={self.T:.6g} K, P={self.P:.6g} Pa, v={self.v:.6g} m³/mol, "
                 f"rho_mass={self.rho_mass:.6g} kg/m³, Z={self.Z:.6g}, phase={self.phase!r}{split})")
 
+    def __str__(self):
+        """The state in engineering units with its compositions, warnings and the caution (for print)."""
+        if np.ndim(self.T):
+            return repr(self)
+        rows = self.summary()
+        width = max(len(k) for k, _ in rows)
+        lines = [f"{_label(self.model)}, {self.model.name}"] + [f"  {k.ljust(width)}  {v}" for k, v in rows]
+        if not self.reason:
+            lines.append(f"  {'component':24s} {'feed z':>10s} {'liquid x':>10s} {'vapor y':>10s}")
+            lines += [f"  {n:24s} {zi:10.6g} {_fmt(xi):>10s} {_fmt(yi):>10s}"
+                      for n, zi, xi, yi in zip(self.model.components.names, self.z, self.x, self.y)]
+        lines += [f"  Warning: {w}" for w in self.warnings]
+        lines.append(f"  Caution: {CAUTION}")
+        return "\n".join(lines)
+
     def _repr_html_(self):
         title = html.escape(f"{_label(self.model)} — {self.model.name}")
         notes = "".join(f"<p><b>Warning.</b> {html.escape(w)}</p>" for w in self.warnings)
@@ -356,8 +371,9 @@ def solve_mixture(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHE
     if bad.size:
         warnings += (f"{bad.size} of {status.size} states are not solved (NaN); .reason says why for each.",)
     if np.any(np.asarray(flash.phase) == "two-phase"):
-        warnings += ("Two-phase states: h, s, u and g are the lever-rule sums over the liquid and vapour; the "
-                     "phase split is the cubic's, good to a few percent in the vapour fraction at best.",)
+        warnings += ("Two-phase states: h, s, u and g are the lever-rule sums over the liquid and vapour, and "
+                     "the split is the cubic's own (with the kij given); compare it with the reference mixture "
+                     "model (thermo_roots.reference.reference_mixture_state) before relying on it.",)
     phase = np.where(status == CONVERGED, np.asarray(flash.phase, dtype=object), "not solved")
     return MixtureState(model=model, T=shaped(T), P=shaped(P), z=shaped(z, True), phase=shaped(phase.astype(str)),
                         vapor_fraction=shaped(flash.beta), x=shaped(flash.x, True), y=shaped(flash.y, True),
