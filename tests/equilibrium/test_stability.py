@@ -124,3 +124,14 @@ def test_threads_give_the_serial_answer(binary):
     for r in out:
         np.testing.assert_array_equal(r.stable, serial.stable)
         np.testing.assert_allclose(r.tpd_min, serial.tpd_min, rtol=1e-12, atol=1e-15)
+
+
+def test_one_phase_answers_of_the_flash_have_no_negative_tpd_on_the_grid(binary):
+    from thermo_roots.equilibrium.flash import flash_tp
+
+    T, P = np.meshgrid(np.linspace(200.0, 400.0, 6), np.linspace(1e6, 1.2e7, 6))
+    f = flash_tp(binary, T, P)
+    one = f.n_phases == 1
+    assert one.sum() >= 5 and (f.n_phases == 2).sum() >= 5
+    for i in zip(*np.nonzero(one)):
+        assert _grid_tpd_min(binary, T[i], P[i], binary.z) >= -1e-9
