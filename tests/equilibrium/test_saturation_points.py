@@ -109,14 +109,15 @@ def test_natural_gas_bubble_point_where_the_oracle_stops_near_the_trivial_soluti
 def test_pure_component_limit_meets_the_pure_saturation_pressure():
     # a trace of ethane in methane: bubble and dew pressure both tend to methane's own
     # saturation pressure of the same model (thermo_roots.saturation). The dew pressure moves
-    # by about y_ethane (P_methane/P_ethane - 1), some 3e-6 at 120 K (Raoult's law, common
-    # practice), the bubble pressure by about x_ethane: hence the tolerances
+    # down by about y_ethane (P_methane/P_ethane - 1), some 3e-6 at 120 K, the bubble pressure
+    # down by about x_ethane (1 - P_ethane/P_methane) (Raoult's law, common practice): hence
+    # the tolerances and the order
     model = tr.PengRobinson(tr.Mixture({"methane": 1 - 1e-8, "ethane": 1e-8}))
     pure = tr.saturation(tr.PengRobinson("methane"), T=np.array([120.0, 150.0, 180.0]))
     bubble, dew = bubble_point(model, T=pure.T), dew_point(model, T=pure.T)
     assert bubble.P == pytest.approx(pure.P, rel=1e-7)
     assert dew.P == pytest.approx(pure.P, rel=1e-5)
-    assert np.all((dew.P < pure.P) & (pure.P < bubble.P))
+    assert np.all((dew.P < bubble.P) & (bubble.P < pure.P))
     assert bubble.v_feed == pytest.approx(pure.v_liquid, rel=1e-5)
     assert bubble.v_incipient == pytest.approx(pure.v_vapor, rel=1e-5)
 
