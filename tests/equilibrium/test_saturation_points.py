@@ -13,8 +13,8 @@ import numpy as np
 import pytest
 
 import thermo_roots as tr
-from thermo_roots.equilibrium.saturation_points import (CONVERGED, TRIVIAL, SaturationPoint, bubble_point,
-                                                        dew_point)
+from thermo_roots.equilibrium.saturation_points import (CONVERGED, OUTSIDE, TRIVIAL, SaturationPoint,
+                                                        bubble_point, dew_point)
 from thermo_roots.errors import ConvergenceError, DomainError, InputError, WrongTypeError
 
 from .coolprop_cubic import CoolPropCubic
@@ -162,13 +162,14 @@ def test_an_array_keeps_its_good_elements():
 
 
 def test_no_dew_point_above_the_cricondentherm():
-    # methane/ethane 50/50 by PR: the cricondentherm lies near 269 K (the envelope); far above it
-    # the iteration runs onto K = 1 and the point is refused with the reason
+    # methane/ethane 50/50 by PR: the cricondentherm lies near 268.95 K (the envelope); above it
+    # the point is refused with the reason, naming the cricondentherm
     model = tr.PengRobinson(tr.Mixture({"methane": 0.5, "ethane": 0.5}))
-    points = dew_point(model, T=np.array([250.0, 300.0, 400.0]))
+    points = dew_point(model, T=np.array([250.0, 270.0, 300.0, 400.0]))
     assert points.status[0] == CONVERGED
-    assert list(points.status[1:]) == [TRIVIAL, TRIVIAL]
+    assert all(s in (TRIVIAL, OUTSIDE) for s in points.status[1:])
     assert all(r.startswith("no dew point at this temperature") for r in points.reason[1:])
+    assert "cricondentherm 268.9" in points.reason[1]
     with pytest.raises((DomainError, ConvergenceError), match="no dew point"):
         dew_point(model, T=np.array([400.0]), errors="raise")
 

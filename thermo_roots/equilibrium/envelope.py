@@ -50,8 +50,9 @@ from typing import Any
 import numpy as np
 
 from thermo_roots.errors import InputError, WrongTypeError
-from thermo_roots.equilibrium.saturation_points import (SATURATION_CAUTION, _check_model, _wilson_ln_k,
-                                                        bubble_point, dew_point, feed_composition, newton_solve)
+from thermo_roots.equilibrium.saturation_points import (SATURATION_CAUTION, _check_model, _saturation_point,
+                                                        _wilson_ln_k, feed_composition, newton_solve)
+from thermo_roots.roots import find_root
 from thermo_roots.units import to_si
 
 #: Largest change along one step in ln T, ln P and any ln Kᵢ [-].
@@ -242,7 +243,7 @@ def _from_both_ends(model, z, forward, P_start, max_points):
     with nitrogen below about 70 K at a few bar: the incipient vapor, nearly pure nitrogen,
     would be compressed past its own vapor root)."""
     n = z.size
-    end = dew_point(model, P=P_start, z=z)
+    end = _end_point("dew", model, P_start, z)
     note = ""
     if end.status != "converged":
         return forward, (f"The envelope is not closed ({forward.note}); no dew point at P_start to trace "
@@ -274,6 +275,11 @@ def _from_both_ends(model, z, forward, P_start, max_points):
     return joined, note
 
 
+def _end_point(kind, model, P, z):
+    """The bubble or dew point at P without the envelope fallback (which would call back here)."""
+    return _saturation_point(kind, model, None, P, z, "lower", "nan", 40, fallback=False)
+
+
 def _interpolate(u1, u2, index, value):
     """The point on the segment u1 → u2 where u[index] = value (linear)."""
     w = (value - u1[index]) / (u2[index] - u1[index])
@@ -295,27 +301,62 @@ def _critical_by_hermite(u1, t1, u2, t2, k, n):
 
 
 def _extreme(model, z, curve, index, n):
-    """(T, P) of the highest T (index n) or P (index n + 1) on the curve, refined."""
+    """The highest T (index n) or P (index n + 1) of the curve, refined: (u, position).
+
+    The parabola in arc length through the extreme traced point and its neighbours gives the
+    vertex; the point is solved there exactly (at the vertex's P for the cricondentherm, its T
+    for the cricondenbar), so the extreme value is right to second order in the vertex's
+    error. ``position`` is where the point falls between the traced rows (a fractional
+    index), None when the traced point itself is kept."""
     u = curve.u
     i = int(np.nanargmax(u[:, index]))
     if i == 0 or i == len(u) - 1 or not np.isfinite(u[i - 1:i + 2]).all():
-        return float(np.exp(u[i, n])), float(np.exp(u[i, n + 1]))
+        return u[i], None
     other = n + 1 if index == n else n
-    # parabola of u[index] and u[other] in arc length through i-1, i, i+1
     seg = np.hypot(np.diff(u[i - 1:i + 2, n]), np.diff(u[i - 1:i + 2, n + 1]))
     s = np.array([0.0, seg[0], seg[0] + seg[1]])
     a = np.polyfit(s, u[i - 1:i + 2, index], 2)
     s_top = -a[1] / (2 * a[0]) if a[0] < 0 else s[1]
     s_top = float(np.clip(s_top, s[0], s[2]))
-    b = np.polyfit(s, u[i - 1:i + 2, other], 2)
-    other_value = float(np.polyval(b, s_top))
+    other_value = float(np.polyval(np.polyfit(s, u[i - 1:i + 2, other], 2), s_top))
     j = i - 1 if s_top < s[1] else i
     w = (s_top - s[j - i + 1]) / (s[j - i + 2] - s[j - i + 1])
     guess = u[j] + w * (u[j + 1] - u[j])
     guess[other] = other_value
-    solved = _solve_point(model, guess, z, 0.0, other, bool(curve.flipped[j + 1]))
-    best = solved.u[0] if solved.converged[0] and solved.u[0, index] >= u[i, index] else u[i]
-    return float(np.exp(best[n])), float(np.exp(best[n + 1]))
+    if curve.flipped[j] != curve.flipped[j + 1]:
+        return u[i], None                  # the vertex lies across the critical point: keep the point
+    solved = _solve_point(model, guess, z, 0.0, other, bool(curve.flipped[j]))
+    if solved.converged[0] and solved.u[0, index] >= u[i, index]:
+        return solved.u[0], j + min(max(w, 0.01), 0.99)
+    return u[i], None
+
+
+def _with_special_points(model, z, curve, n):
+    """The curve with the critical point (once as the last bubble point, once as the first dew
+    point) and the refined cricondenbar and cricondentherm inserted in their places, so that
+    each side's points run all the way to the critical point and the extremes are on the
+    curve. Returns (u, flipped, cricondenbar u, cricondentherm u)."""
+    rows = [(float(i), row, bool(f)) for i, (row, f) in enumerate(zip(curve.u, curve.flipped))]
+    if curve.critical is not None:
+        flips = curve.flipped
+        for j in np.flatnonzero(flips[:-1] != flips[1:]):
+            if not np.isfinite(curve.u[j]).all() or not np.isfinite(curve.u[j + 1]).all():
+                continue
+            k = int(np.argmax(np.abs(curve.u[j, :n])))
+            w = float(curve.u[j, k] / (curve.u[j, k] - curve.u[j + 1, k]))
+            at = np.r_[np.zeros(n), np.log(curve.critical[0]), np.log(curve.critical[1])]
+            rows += [(j + w - 1e-6, at, bool(flips[j])), (j + w + 1e-6, at, bool(flips[j + 1]))]
+    extremes = []
+    for index in (n + 1, n):
+        u_top, position = _extreme(model, z, curve, index, n)
+        if curve.critical is not None and np.log(curve.critical[index - n]) > u_top[index]:
+            u_top = np.r_[np.zeros(n), np.log(curve.critical[0]), np.log(curve.critical[1])]
+            position = None            # a near-azeotrope's highest point can be the critical one
+        extremes.append(u_top)
+        if position is not None:
+            rows.append((position, u_top, bool(curve.flipped[int(position)])))
+    rows.sort(key=lambda r: r[0])
+    return np.array([r[1] for r in rows]), np.array([r[2] for r in rows]), extremes[0], extremes[1]
 
 
 @dataclass(frozen=True)
@@ -455,7 +496,7 @@ def phase_envelope(model, *, z=None, qualities=(), P_start=DEFAULT_P_START, max_
         raise InputError(f"phase_envelope: max_points must be a whole number >= 10; got {max_points!r}.")
     betas = _check_qualities(qualities)
     n = model.n_components
-    start = bubble_point(model, P=P_start, z=z)
+    start = _end_point("bubble", model, P_start, z)
     if start.status != "converged":
         raise InputError(f"phase_envelope: no bubble point at P_start = {P_start:.6g} Pa to start from "
                          f"({start.reason}). Try another P_start, e.g. P_start='0.5 bar'.")
@@ -468,16 +509,13 @@ def phase_envelope(model, *, z=None, qualities=(), P_start=DEFAULT_P_START, max_
             warnings.append(note)
     if curve.critical is None:
         warnings.append("The trace did not pass a critical point.")
-    u = curve.u
+    u, flipped, top_P, top_T = _with_special_points(model, z, curve, n)
     K = np.exp(u[:, :n])
     incipient = K * z
     incipient /= incipient.sum(axis=1, keepdims=True)
-    side = np.where(curve.flipped, "dew", "bubble")
-    cricondenbar = _extreme(model, z, curve, n + 1, n)
-    cricondentherm = _extreme(model, z, curve, n, n)
-    if curve.critical is not None:          # a near-azeotrope's highest point can be the critical one
-        cricondenbar = max(cricondenbar, curve.critical, key=lambda p: p[1])
-        cricondentherm = max(cricondentherm, curve.critical, key=lambda p: p[0])
+    side = np.where(flipped, "dew", "bubble")
+    cricondenbar = (float(np.exp(top_P[n])), float(np.exp(top_P[n + 1])))
+    cricondentherm = (float(np.exp(top_T[n])), float(np.exp(top_T[n + 1])))
     quality = {}
     for beta in betas:
         line = _quality_line(model, z, beta, start, P_start, int(max_points))
@@ -489,13 +527,13 @@ def phase_envelope(model, *, z=None, qualities=(), P_start=DEFAULT_P_START, max_
             T_line, P_line = np.r_[T_line, curve.critical[0]], np.r_[P_line, curve.critical[1]]
         quality[beta] = (T_line, P_line)
     return PhaseEnvelope(model, z, np.exp(u[:, n]), np.exp(u[:, n + 1]), side, incipient, curve.critical,
-                         cricondenbar, cricondentherm, quality, curve.closed, tuple(warnings), u, curve.flipped)
+                         cricondenbar, cricondentherm, quality, curve.closed, tuple(warnings), u, flipped)
 
 
 def _quality_line(model, z, beta, bubble, P_start, max_points):
     """The line of vapor fraction β from P_start towards the critical point."""
     n = model.n_components
-    dew = dew_point(model, P=P_start, z=z)
+    dew = _end_point("dew", model, P_start, z)
     if dew.status != "converged":
         return None
     T_guess = bubble.T + beta * (dew.T - bubble.T)
@@ -514,8 +552,9 @@ def envelope_starts(model, z, kind, spec, values, branch, envelope=None):
     Where the traced envelope's ``kind`` side meets T = value (``spec`` "T") or P = value,
     the crossing with the lowest (``branch`` "lower") or highest ("upper") other variable, when
     there are two or more ("upper") or at least one ("lower"). Returns u0 (m, n + 2) in the
-    variables of the β of ``kind`` (ln K = ln(y/x)) and a bool array, False where there is no
-    such crossing.
+    variables of the β of ``kind`` (ln K = ln(y/x)), a bool array (False where there is no
+    such crossing) and each crossing's segment of the envelope, (m, 2, n + 2), in the
+    envelope's own variables (ln K = ln(incipient/feed)).
     """
     n = model.n_components
     env = phase_envelope(model, z=z) if envelope is None else envelope
@@ -524,6 +563,7 @@ def envelope_starts(model, z, kind, spec, values, branch, envelope=None):
     index = n if spec == "T" else n + 1
     other = n + 1 if spec == "T" else n
     u0 = np.full((values.size, n + 2), np.nan)
+    segments = np.full((values.size, 2, n + 2), np.nan)
     found = np.zeros(values.size, dtype=bool)
     for k, value in enumerate(np.log(values)):
         crossings = []
@@ -532,13 +572,66 @@ def envelope_starts(model, z, kind, spec, values, branch, envelope=None):
                 continue
             a, b = u[i, index] - value, u[i + 1, index] - value
             if a == 0 or a * b < 0:
-                crossings.append(_interpolate(u[i], u[i + 1], index, value))
+                crossings.append((_interpolate(u[i], u[i + 1], index, value), i))
         need = 2 if branch == "upper" else 1
         if len(crossings) >= need:
             pick = max if branch == "upper" else min
-            best = pick(crossings, key=lambda c: c[other])
+            best, i = pick(crossings, key=lambda c: c[0][other])
+            segments[k] = u[i], u[i + 1]
             if kind == "dew":
                 best = best.copy()
                 best[:n] = -best[:n]        # the envelope's K is incipient/feed; a dew point's y/x
             u0[k], found[k] = best, True
-    return u0, found
+    return u0, found, segments
+
+
+#: Near the critical point (every |ln Kᵢ| of a segment below this) a point is found by
+#: bracketing along the envelope instead of by Newton's method at the given T or P.
+NEAR_CRITICAL_LN_K = 0.1
+#: The end of such a bracket at the critical point itself is moved to |ln K| = this [-]: at
+#: ln K = 0 every (T, P) solves the system (the trivial solution).
+CRITICAL_OFFSET_LN_K = 1e-3
+
+
+def near_critical_points(model, z, kind, spec, values, segments):
+    """Points of the envelope at T (or P) = values near the critical point, by bracketed root
+    finding along the envelope: the unknown is s = ln K_k of the marking component k, each
+    trial a point of the envelope solved with ln K_k = s specified (so never the trivial
+    solution), and the function ln T(s) − ln T_given (or in P), which changes sign over the
+    segment of the envelope that crosses the given value.
+
+    Returns u (m, n + 2) in the variables of the β of ``kind`` and a bool array of successes.
+    References: Michelsen (1980) (ln K as the specified variable near the critical point).
+    """
+    n = model.n_components
+    m = values.size
+    k = np.argmax(np.abs(segments[:, 0, :n]) + np.abs(segments[:, 1, :n]), axis=1)
+    rows = np.arange(m)
+    ends = segments[rows[:, None], [0, 1], k[:, None]]                 # (m, 2): s at each end
+    sign = np.sign(ends[:, 0] + ends[:, 1])
+    ends = np.where(np.abs(ends) < CRITICAL_OFFSET_LN_K, sign[:, None] * CRITICAL_OFFSET_LN_K, ends)
+    index = n if spec == "T" else n + 1
+    target = np.log(values)
+    flipped = kind == "dew"
+    last = {}
+
+    def point(s, i):
+        w = (s - ends[i, 0]) / (ends[i, 1] - ends[i, 0])
+        guess = segments[i, 0] + w[:, None] * (segments[i, 1] - segments[i, 0])
+        guess[np.arange(i.size), k[i]] = s
+        solved = newton_solve(model, guess, z, np.zeros(i.size), k[i], s, flipped=flipped, maxiter=30)
+        last.update({int(j): solved.u[r] for r, j in enumerate(i) if solved.converged[r]})
+        return np.where(solved.converged, solved.u[:, index] - target[i], np.nan)
+
+    result = find_root(point, bracket=(ends[:, 0], ends[:, 1]), args=(rows,), xtol=1e-12, trace=False)
+    ok = np.asarray(result.converged)
+    u = np.full((m, n + 2), np.nan)
+    if ok.any():
+        good = rows[ok]
+        solved = newton_solve(model, segments[good, 0], z, np.zeros(good.size), k[good], result.root[ok],
+                              flipped=flipped, maxiter=20)
+        u[good] = np.where(solved.converged[:, None], solved.u, np.nan)
+    ok &= np.isfinite(u).all(axis=1)
+    if kind == "dew":
+        u[:, :n] = -u[:, :n]
+    return u, ok

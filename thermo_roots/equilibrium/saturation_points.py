@@ -76,7 +76,8 @@ WRONG_SIDE = "other side"
 NOT_CONVERGED = "not converged"
 NOT_SOLVED = "not solved"          # bad input: not finite, not positive
 NO_BRANCH = "no such branch"       # the envelope has no point of that branch at this T or P
-STATUSES = (CONVERGED, TRIVIAL, WRONG_SIDE, NOT_CONVERGED, NOT_SOLVED, NO_BRANCH)
+OUTSIDE = "outside envelope"       # the traced envelope does not reach this T or P on this side
+STATUSES = (CONVERGED, TRIVIAL, WRONG_SIDE, NOT_CONVERGED, NOT_SOLVED, NO_BRANCH, OUTSIDE)
 
 #: An answer with max |ln Kᵢ| below this is the trivial solution (both phases the feed).
 TRIVIAL_LN_K = 1e-4
@@ -513,7 +514,7 @@ def feed_composition(model, z, who):
     return arr
 
 
-def _saturation_point(kind, model, T, P, z, branch, errors, maxiter):
+def _saturation_point(kind, model, T, P, z, branch, errors, maxiter, fallback=True):
     who = f"{kind}_point"
     _check_model(model, who)
     if (T is None) == (P is None):
@@ -535,7 +536,7 @@ def _saturation_point(kind, model, T, P, z, branch, errors, maxiter):
     problems.flag(~(np.isfinite(flat) & (flat > 0)),
                   lambda i: f"{spec} = {float(flat[i])!r} is not a positive finite number [{unit}].", InputError)
     good = np.flatnonzero(problems.ok)
-    solved = _solve(model, z, flat[good], kind, spec, branch, maxiter)
+    solved = _solve(model, z, flat[good], kind, spec, branch, maxiter, fallback)
     n = model.n_components
     out = {key: np.full(flat.size, np.nan) for key in ("T", "P", "v_feed", "Z_feed", "v_incipient", "Z_incipient")}
     incipient = np.full((flat.size, n), np.nan)
@@ -548,11 +549,13 @@ def _saturation_point(kind, model, T, P, z, branch, errors, maxiter):
     for key in out:
         out[key][ok] = solved[key][keep]
     incipient[ok] = solved["incipient"][keep]
-    for code in (TRIVIAL, WRONG_SIDE, NOT_CONVERGED, NO_BRANCH):
+    note = np.full(flat.size, "", dtype=object)
+    note[good] = solved["note"]
+    for code in (TRIVIAL, WRONG_SIDE, NOT_CONVERGED, NO_BRANCH, OUTSIDE):
         where = good[solved["status"] == code]
         mask = np.zeros(flat.size, dtype=bool)
         mask[where] = True
-        problems.flag(mask, lambda i, code=code: _reason(kind, spec, flat[i], code, branch),
+        problems.flag(mask, lambda i, code=code: note[i] or _reason(kind, spec, flat[i], code, branch),
                       ConvergenceError if code == NOT_CONVERGED else DomainError)
     reason = problems.reason
 
@@ -590,21 +593,28 @@ def _reason(kind, spec, value, code, branch):
             "critical point try phase_envelope(model), which passes through it.")
 
 
-def _solve(model, z, values, kind, spec, branch, maxiter):
-    """Every stage for the good points (1-D ``values`` of T [K] or P [Pa])."""
+def _solve(model, z, values, kind, spec, branch, maxiter, fallback=True):
+    """Every stage for the good points (1-D ``values`` of T [K] or P [Pa]).
+
+    ``fallback``: where the lower branch's own stages find nothing, trace the envelope and
+    start from it (off inside the envelope's own starting points, which would recurse)."""
     m, n = values.size, model.n_components
     zz = np.broadcast_to(z, (m, n))
     beta = np.full(m, 0.0 if kind == "bubble" else 1.0)
     spec_index = n if spec == "T" else n + 1
     empty = {key: np.full(m, np.nan) for key in ("T", "P", "v_feed", "Z_feed", "v_incipient", "Z_incipient")}
     empty.update(incipient=np.full((m, n), np.nan), iterations=np.zeros(m, dtype=int),
-                 status=np.full(m, NOT_CONVERGED, dtype=object))
+                 status=np.full(m, NOT_CONVERGED, dtype=object), note=np.full(m, "", dtype=object))
     if m == 0:
         return empty
+    envelope = None
     if branch == "upper":
-        from thermo_roots.equilibrium.envelope import envelope_starts   # the envelope builds on this module
-
-        u0, found = envelope_starts(model, z, kind, spec, values, "upper")
+        envelope, why = _envelope_for(model, z)
+        if envelope is None:
+            empty["status"][:] = NO_BRANCH
+            empty["note"][:] = why
+            return empty
+        u0, found = _envelope_starts(model, z, kind, spec, values, "upper", envelope)
         counts = np.zeros(m, dtype=int)
     else:
         if spec == "T":
@@ -628,9 +638,92 @@ def _solve(model, z, values, kind, spec, branch, maxiter):
         retry = np.flatnonzero(np.isin(out["status"], (TRIVIAL, NOT_CONVERGED)) & found)
         if retry.size:
             _retry_from_wilson(model, zz, values, kind, spec, spec_index, beta, retry, out, maxiter)
+        lost = np.flatnonzero(np.isin(out["status"], (TRIVIAL, NOT_CONVERGED, WRONG_SIDE)))
+        if fallback and lost.size:
+            _from_the_envelope(model, z, values, kind, spec, spec_index, beta, lost, out, maxiter)
     else:
         out["status"][~found] = NO_BRANCH
     return out
+
+
+def _envelope_for(model, z):
+    """The feed's traced envelope, or (None, why) where it cannot be traced."""
+    from thermo_roots.equilibrium.envelope import phase_envelope   # the envelope builds on this module
+
+    try:
+        return phase_envelope(model, z=z), ""
+    except InputError as error:
+        return None, f"the phase envelope could not be traced for this feed: {error}"
+
+
+def _envelope_starts(model, z, kind, spec, values, branch, envelope):
+    """Starts from the envelope; near the critical point the points themselves, bracketed along
+    it (:func:`~.envelope.near_critical_points`), where Newton's method at fixed T or P would
+    fall onto the trivial solution."""
+    from thermo_roots.equilibrium.envelope import NEAR_CRITICAL_LN_K, envelope_starts, near_critical_points
+
+    u0, found, segments = envelope_starts(model, z, kind, spec, values, branch, envelope=envelope)
+    n = model.n_components
+    with np.errstate(invalid="ignore"):
+        near = found & (np.abs(segments[:, :, :n]).max(axis=(1, 2)) < NEAR_CRITICAL_LN_K)
+    if near.any():
+        u_near, ok = near_critical_points(model, z, kind, spec, values[near], segments[near])
+        rows = np.flatnonzero(near)
+        u0[rows[ok]] = u_near[ok]
+    return u0, found
+
+
+def _from_the_envelope(model, z, values, kind, spec, spec_index, beta, rows, out, maxiter):
+    """Lower-branch points the Wilson start could not reach: Newton from the traced envelope
+    where it meets the given T or P on the ``kind`` side; where it does not meet it, the
+    reason names the envelope's reach (its cricondentherm, cricondenbar, critical point)."""
+    envelope, why = _envelope_for(model, z)
+    if envelope is None:
+        return
+    u0, found = _envelope_starts(model, z, kind, spec, values[rows], "lower", envelope)
+    if found.any():
+        take = rows[found]
+        result = newton_solve(model, u0[found], np.broadcast_to(z, (take.size, z.size)), beta[take], spec_index,
+                              np.log(values[take]), maxiter=maxiter)
+        trial = {key: np.array(val[take]) for key, val in out.items()}
+        _fill(trial, result, kind, model.n_components)
+        better = trial["status"] == CONVERGED
+        for key in out:
+            out[key][take[better]] = trial[key][better]
+        out["iterations"][take] += result.iterations
+    critical = envelope.critical
+    unsolved = rows[found][out["status"][rows[found]] != CONVERGED]
+    if critical is not None and unsolved.size:
+        c = critical[0] if spec == "T" else critical[1]
+        close = unsolved[np.abs(np.log(values[unsolved] / c)) < 2e-3]
+        out["note"][close] = [
+            f"no {kind} point found at {spec} = {v:.6g} {'K' if spec == 'T' else 'Pa'}: that is within "
+            f"{abs(v - c) / c:.1e} (relative) of the mixture's critical point ({critical[0]:.6g} K, "
+            f"{critical[1] / 1e5:.6g} bar), where bubble and dew point meet and the two phases cannot be told "
+            "apart; use the critical point (phase_envelope(model).critical)." for v in values[close]]
+    missing = rows[~found]
+    out["status"][missing] = OUTSIDE
+    out["note"][missing] = [_outside_reason(kind, spec, v, envelope) for v in values[missing]]
+
+
+def _outside_reason(kind, spec, value, envelope):
+    """Why there is no point: how far the envelope's ``kind`` side reaches in T or P."""
+    on_side = envelope.side == kind
+    T, P = envelope.T[on_side], envelope.P[on_side]
+    what = "temperature" if spec == "T" else "pressure"
+    at = f"T = {value:.6g} K" if spec == "T" else f"P = {value / 1e5:.6g} bar"
+    if not np.isfinite(T).any():
+        return f"no {kind} point at this {what} ({at}): the traced envelope has no {kind} side."
+    if spec == "T":
+        reach = f"{np.nanmin(T):.6g} K to {np.nanmax(T):.6g} K"
+        special = (f"cricondentherm {envelope.cricondentherm[0]:.6g} K" if kind == "dew" else
+                   "critical point " + ("–" if envelope.critical is None else f"{envelope.critical[0]:.6g} K"))
+    else:
+        reach = f"{np.nanmin(P) / 1e5:.6g} bar to {np.nanmax(P) / 1e5:.6g} bar"
+        special = f"cricondenbar {envelope.cricondenbar[1] / 1e5:.6g} bar"
+    return (f"no {kind} point at this {what} ({at}): the {kind} side of the phase envelope traced for this feed "
+            f"spans {reach} ({special}). The feed is single-phase at every "
+            f"{'pressure' if spec == 'T' else 'temperature'} there.")
 
 
 def _fill(out, result, kind, n, where=None):
