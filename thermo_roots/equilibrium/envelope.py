@@ -49,6 +49,7 @@ from typing import Any
 
 import numpy as np
 
+from thermo_roots.equilibrium.fugacity import phase_fugacity
 from thermo_roots.errors import InputError, WrongTypeError
 from thermo_roots.equilibrium.saturation_points import (SATURATION_CAUTION, _check_model, _saturation_point,
                                                         _wilson_ln_k, feed_composition, newton_solve)
@@ -372,6 +373,8 @@ class PhaseEnvelope:
         "bubble" or "dew" per point.
     incipient : ndarray, shape (m, n)
         Composition of the phase that appears at each point [-].
+    v_feed, v_incipient : ndarray
+        Molar volumes [m³/mol] of the feed phase and of the incipient phase at each point.
     critical : (T [K], P [Pa]) or None
         Where the two sides meet (None if the trace did not reach it).
     cricondenbar, cricondentherm : (T [K], P [Pa])
@@ -390,6 +393,8 @@ class PhaseEnvelope:
     P: Any = field(repr=False)
     side: Any = field(repr=False)
     incipient: Any = field(repr=False)
+    v_feed: Any = field(repr=False)
+    v_incipient: Any = field(repr=False)
     critical: Any
     cricondenbar: Any
     cricondentherm: Any
@@ -400,14 +405,16 @@ class PhaseEnvelope:
     _flipped: Any = field(repr=False, default=None)
 
     def to_frame(self):
-        """The envelope's points as a pandas DataFrame: T [K], P [Pa], side, and the incipient
-        phase's mole fractions as "incipient <component>"; the special points in ``attrs``."""
+        """The envelope's points as a pandas DataFrame: T [K], P [Pa], side, v_feed and
+        v_incipient [m³/mol], and the incipient phase's mole fractions as "incipient
+        <component>"; units and the special points in ``attrs``."""
         import pandas as pd
 
-        frame = pd.DataFrame({"T": self.T, "P": self.P, "side": self.side})
+        frame = pd.DataFrame({"T": self.T, "P": self.P, "side": self.side, "v_feed": self.v_feed,
+                              "v_incipient": self.v_incipient})
         for j, name in enumerate(self.model.components.names):
             frame[f"incipient {name}"] = self.incipient[:, j]
-        frame.attrs.update(units={"T": "K", "P": "Pa"}, model=self.model.name, critical=self.critical,
+        frame.attrs.update(units={"T": "K", "P": "Pa", "v_feed": "m³/mol", "v_incipient": "m³/mol"}, model=self.model.name, critical=self.critical,
                            cricondenbar=self.cricondenbar, cricondentherm=self.cricondentherm,
                            composition=dict(zip(self.model.components.names, np.asarray(self.z).tolist())))
         return frame
@@ -514,6 +521,7 @@ def phase_envelope(model, *, z=None, qualities=(), P_start=DEFAULT_P_START, max_
     incipient = K * z
     incipient /= incipient.sum(axis=1, keepdims=True)
     side = np.where(flipped, "dew", "bubble")
+    v_feed, v_incipient = _volumes(model, z, u, flipped, incipient)
     cricondenbar = (float(np.exp(top_P[n])), float(np.exp(top_P[n + 1])))
     cricondentherm = (float(np.exp(top_T[n])), float(np.exp(top_T[n + 1])))
     quality = {}
@@ -526,8 +534,26 @@ def phase_envelope(model, *, z=None, qualities=(), P_start=DEFAULT_P_START, max_
         if curve.critical is not None:
             T_line, P_line = np.r_[T_line, curve.critical[0]], np.r_[P_line, curve.critical[1]]
         quality[beta] = (T_line, P_line)
-    return PhaseEnvelope(model, z, np.exp(u[:, n]), np.exp(u[:, n + 1]), side, incipient, curve.critical,
-                         cricondenbar, cricondentherm, quality, curve.closed, tuple(warnings), u, flipped)
+    return PhaseEnvelope(model, z, np.exp(u[:, n]), np.exp(u[:, n + 1]), side, incipient, v_feed, v_incipient,
+                         curve.critical, cricondenbar, cricondentherm, quality, curve.closed, tuple(warnings), u,
+                         flipped)
+
+
+def _volumes(model, z, u, flipped, incipient):
+    """Molar volumes [m³/mol] of the feed and the incipient phase at each point (liquid root for
+    the liquid of the side, vapor root for its vapor)."""
+    n = z.size
+    T, P = np.exp(u[:, n]), np.exp(u[:, n + 1])
+    v_feed, v_incipient = np.full(T.size, np.nan), np.full(T.size, np.nan)
+    with np.errstate(all="ignore"):
+        for dew in (False, True):
+            rows = np.flatnonzero((flipped == dew) & np.isfinite(T))
+            if rows.size:
+                feed_root, incipient_root = ("vapor", "liquid") if dew else ("liquid", "vapor")
+                v_feed[rows] = phase_fugacity(model, T[rows], P[rows], np.broadcast_to(z, (rows.size, n)),
+                                              root=feed_root).v
+                v_incipient[rows] = phase_fugacity(model, T[rows], P[rows], incipient[rows], root=incipient_root).v
+    return v_feed, v_incipient
 
 
 def _quality_line(model, z, beta, bubble, P_start, max_points):
@@ -607,20 +633,21 @@ def near_critical_points(model, z, kind, spec, values, segments):
     m = values.size
     k = np.argmax(np.abs(segments[:, 0, :n]) + np.abs(segments[:, 1, :n]), axis=1)
     rows = np.arange(m)
-    ends = segments[rows[:, None], [0, 1], k[:, None]]                 # (m, 2): s at each end
-    sign = np.sign(ends[:, 0] + ends[:, 1])
-    ends = np.where(np.abs(ends) < CRITICAL_OFFSET_LN_K, sign[:, None] * CRITICAL_OFFSET_LN_K, ends)
+    along = segments[rows[:, None], [0, 1], k[:, None]]                # (m, 2): s at each end
+    sign = np.sign(along[:, 0] + along[:, 1])
+    ends = np.where(np.abs(along) < CRITICAL_OFFSET_LN_K, sign[:, None] * CRITICAL_OFFSET_LN_K, along)
     index = n if spec == "T" else n + 1
     target = np.log(values)
     flipped = kind == "dew"
-    last = {}
 
-    def point(s, i):
-        w = (s - ends[i, 0]) / (ends[i, 1] - ends[i, 0])
+    def solve_at(s, i):
+        w = (s - along[i, 0]) / (along[i, 1] - along[i, 0])
         guess = segments[i, 0] + w[:, None] * (segments[i, 1] - segments[i, 0])
         guess[np.arange(i.size), k[i]] = s
-        solved = newton_solve(model, guess, z, np.zeros(i.size), k[i], s, flipped=flipped, maxiter=30)
-        last.update({int(j): solved.u[r] for r, j in enumerate(i) if solved.converged[r]})
+        return newton_solve(model, guess, z, np.zeros(i.size), k[i], s, flipped=flipped, maxiter=30)
+
+    def point(s, i):
+        solved = solve_at(s, i)
         return np.where(solved.converged, solved.u[:, index] - target[i], np.nan)
 
     result = find_root(point, bracket=(ends[:, 0], ends[:, 1]), args=(rows,), xtol=1e-12, trace=False)
@@ -628,8 +655,7 @@ def near_critical_points(model, z, kind, spec, values, segments):
     u = np.full((m, n + 2), np.nan)
     if ok.any():
         good = rows[ok]
-        solved = newton_solve(model, segments[good, 0], z, np.zeros(good.size), k[good], result.root[ok],
-                              flipped=flipped, maxiter=20)
+        solved = solve_at(np.asarray(result.root)[ok], good)
         u[good] = np.where(solved.converged[:, None], solved.u, np.nan)
     ok &= np.isfinite(u).all(axis=1)
     if kind == "dew":

@@ -129,13 +129,16 @@ def equilibrium_residuals(model, u, z, beta, flipped=False):
     """F₁…Fₙ₊₁ of the system (module docstring) at u = (ln K, ln T, ln P), shape (..., n + 2).
 
     ``flipped``: the x phase takes the vapor root and y the liquid root (past the critical
-    point of an envelope traced at fixed β, where the phase labelled x becomes the lighter).
+    point of an envelope traced at fixed β, where the phase labelled x becomes the lighter);
+    None: each phase takes its root of lowest Gibbs energy (next to the critical point, where
+    the feed's cubic can have three roots and the two phases must sit on the same one).
     Returns (F of shape (..., n + 1), Phases).
     """
     n = u.shape[-1] - 2
     ln_K, T, P = u[..., :n], np.exp(u[..., n]), np.exp(u[..., n + 1])
     x, y = split_compositions(ln_K, z, beta)
-    root_x, root_y = ("vapor", "liquid") if flipped else ("liquid", "vapor")
+    root_x, root_y = ("stable", "stable") if flipped is None else ("vapor", "liquid") if flipped else \
+        ("liquid", "vapor")
     liquid = phase_fugacity(model, T, P, x, root=root_x)
     vapor = phase_fugacity(model, T, P, y, root=root_y)
     F = np.concatenate([ln_K + vapor.ln_phi - liquid.ln_phi, np.sum(y - x, axis=-1)[..., None]], axis=-1)
