@@ -688,12 +688,7 @@ def _from_the_envelope(model, z, values, kind, spec, spec_index, beta, rows, out
         take = rows[found]
         result = newton_solve(model, u0[found], np.broadcast_to(z, (take.size, z.size)), beta[take], spec_index,
                               np.log(values[take]), maxiter=maxiter)
-        trial = {key: np.array(val[take]) for key, val in out.items()}
-        _fill(trial, result, kind, model.n_components)
-        better = trial["status"] == CONVERGED
-        for key in out:
-            out[key][take[better]] = trial[key][better]
-        out["iterations"][take] += result.iterations
+        _keep_converged(out, take, result, kind, model.n_components)
     critical = envelope.critical
     unsolved = rows[found][out["status"][rows[found]] != CONVERGED]
     if critical is not None and unsolved.size:
@@ -766,8 +761,14 @@ def _retry_from_wilson(model, zz, values, kind, spec, spec_index, beta, rows, ou
     with np.errstate(all="ignore"):
         u0 = np.concatenate([_wilson_ln_k(model, T, P), np.log(T)[:, None], np.log(P)[:, None]], axis=1)
     result = newton_solve(model, u0, zz[rows], beta[rows], spec_index, np.log(v), maxiter=maxiter)
+    _keep_converged(out, rows, result, kind, model.n_components)
+
+
+def _keep_converged(out, rows, result, kind, n):
+    """A second attempt's Newton result for ``rows``: kept where it converged to a saturation
+    point, the first attempt's status and reason kept elsewhere; iterations add up."""
     trial = {key: np.array(val[rows]) for key, val in out.items()}
-    _fill(trial, result, kind, model.n_components)
+    _fill(trial, result, kind, n)
     better = trial["status"] == CONVERGED
     for key in out:
         out[key][rows[better]] = trial[key][better]
