@@ -198,3 +198,5 @@ def test_bad_inputs():
         phase_envelope(model, P_start="lots")
     with pytest.raises(WrongTypeError):
         phase_envelope("methane")
+    with pytest.raises(InputError, match="saturation"):
+        phase_envelope(tr.PengRobinson("methane"))

@@ -181,3 +181,22 @@ def test_threads_give_the_serial_answer():
     with concurrent.futures.ThreadPoolExecutor(4) as pool:
         parallel = list(pool.map(lambda t: bubble_point(model, T=t).P, temperatures))
     assert parallel == pytest.approx(serial, rel=1e-12)
+
+
+def test_a_pure_fluid_is_the_one_component_case():
+    # one component: bubble and dew point are the saturation of thermo_roots.saturation
+    model = tr.PengRobinson("methane")
+    pure = tr.saturation(model, T=150.0)
+    bubble, dew = bubble_point(model, T=150.0), dew_point(model, T=150.0)
+    assert bubble.P == pytest.approx(pure.P, rel=1e-12) and dew.P == pytest.approx(pure.P, rel=1e-12)
+    assert bubble.v_feed == pytest.approx(pure.v_liquid) and dew.v_feed == pytest.approx(pure.v_vapor)
+    above = bubble_point(model, T=np.array([200.0]))
+    assert above.status[0] != CONVERGED and "critical temperature" in above.reason[0]
+
+
+def test_far_off_inputs_get_a_reason_not_an_exception():
+    model = tr.PengRobinson(tr.Mixture({"methane": 0.5, "ethane": 0.5}))
+    tiny = bubble_point(model, T=1e-300)
+    assert tiny.status != CONVERGED and tiny.reason.startswith("no bubble point at this temperature")
+    huge = bubble_point(model, P=100 * 4.6e6)
+    assert huge.status != CONVERGED and "cricondenbar" in huge.reason

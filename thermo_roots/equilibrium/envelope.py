@@ -503,6 +503,9 @@ def phase_envelope(model, *, z=None, qualities=(), P_start=DEFAULT_P_START, max_
         raise InputError(f"phase_envelope: max_points must be a whole number >= 10; got {max_points!r}.")
     betas = _check_qualities(qualities)
     n = model.n_components
+    if np.count_nonzero(z) < 2:
+        raise InputError("phase_envelope needs a feed of two or more components; a pure fluid's envelope is its "
+                         "saturation curve: use thermo_roots.saturation(model, T=...) or plots.plot_saturation_curve.")
     start = _end_point("bubble", model, P_start, z)
     if start.status != "converged":
         raise InputError(f"phase_envelope: no bubble point at P_start = {P_start:.6g} Pa to start from "

@@ -36,7 +36,13 @@ temperature, where the bubble equations converge onto the dew curve).
 The upper branch (the retrograde dew point above the critical temperature, the second
 bubble or dew temperature near the cricondenbar) is started from the phase envelope traced
 for the feed (:func:`~.envelope.phase_envelope`): the envelope's points give the start for
-Newton's method at each requested T or P.
+Newton's method at each requested T or P. The lower branch falls back on the envelope too
+where the three stages find nothing: a point the envelope does not reach on that side is
+refused with the envelope's reach in the reason (its cricondentherm, cricondenbar or critical
+point), and next to the critical point, where Newton's method at fixed T or P falls onto the
+trivial solution, the point is found by bracketed root finding along the envelope with
+ln Kᵢ as the unknown (:func:`~.envelope.near_critical_points`). A model of one component
+gives its saturation (:func:`thermo_roots.saturation`).
 
 References
 ----------
@@ -62,7 +68,7 @@ from thermo_roots.equilibrium.fugacity import PhaseFugacity, phase_fugacity
 from thermo_roots.equilibrium.k_values import WILSON_CONSTANT
 from thermo_roots.inversion._problems import Problems, check_errors_option, si_array
 from thermo_roots.inversion.display import CAUTION
-from thermo_roots.models import CubicModel
+from thermo_roots.models import CubicModel, R
 from thermo_roots.roots import find_root
 from thermo_roots.units import to_si
 
@@ -539,7 +545,10 @@ def _saturation_point(kind, model, T, P, z, branch, errors, maxiter, fallback=Tr
     problems.flag(~(np.isfinite(flat) & (flat > 0)),
                   lambda i: f"{spec} = {float(flat[i])!r} is not a positive finite number [{unit}].", InputError)
     good = np.flatnonzero(problems.ok)
-    solved = _solve(model, z, flat[good], kind, spec, branch, maxiter, fallback)
+    if model.n_components == 1:
+        solved = _pure_fluid(model, flat[good], kind, spec)
+    else:
+        solved = _solve(model, z, flat[good], kind, spec, branch, maxiter, fallback)
     n = model.n_components
     out = {key: np.full(flat.size, np.nan) for key in ("T", "P", "v_feed", "Z_feed", "v_incipient", "Z_incipient")}
     incipient = np.full((flat.size, n), np.nan)
@@ -629,7 +638,8 @@ def _solve(model, z, values, kind, spec, branch, maxiter, fallback=True):
         with np.errstate(all="ignore"):
             ln_K = _wilson_ln_k(model, T, P)
         ln_K, T, P, counts = _substitute(model, ln_K, T, P, zz, kind, spec, SUBSTITUTION_STEPS)
-        u0 = np.concatenate([ln_K, np.log(T)[:, None], np.log(P)[:, None]], axis=1)
+        with np.errstate(divide="ignore", invalid="ignore"):    # a start of P = 0 (T far too low): -inf
+            u0 = np.concatenate([ln_K, np.log(T)[:, None], np.log(P)[:, None]], axis=1)
         found = np.isfinite(u0).all(axis=1)
     u0[:, spec_index] = np.log(values)
     result = newton_solve(model, u0, zz, beta, spec_index, np.log(values), maxiter=maxiter)
@@ -647,6 +657,26 @@ def _solve(model, z, values, kind, spec, branch, maxiter, fallback=True):
     else:
         out["status"][~found] = NO_BRANCH
     return out
+
+
+def _pure_fluid(model, values, kind, spec):
+    """One component: bubble and dew point are its saturation (:func:`thermo_roots.saturation`),
+    where the mixture equations would have only the trivial solution."""
+    from thermo_roots.inversion.saturation import saturation
+
+    m = values.size
+    sat = saturation(model, **{spec: values}, errors="nan")
+    T, P = np.asarray(sat.T, dtype=float).reshape(m), np.asarray(sat.P, dtype=float).reshape(m)
+    v_l, v_v = np.asarray(sat.v_liquid, dtype=float).reshape(m), np.asarray(sat.v_vapor, dtype=float).reshape(m)
+    v_feed, v_inc = (v_l, v_v) if kind == "bubble" else (v_v, v_l)
+    ok = np.isfinite(T) & np.isfinite(P) & np.isfinite(v_l)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        Z = P / (R * T)
+    reason = np.asarray(sat.reason, dtype=object).reshape(m)
+    return {"T": T, "P": P, "v_feed": v_feed, "Z_feed": Z * v_feed, "v_incipient": v_inc, "Z_incipient": Z * v_inc,
+            "incipient": np.ones((m, 1)), "iterations": np.zeros(m, dtype=int),
+            "status": np.where(ok, CONVERGED, OUTSIDE).astype(object),
+            "note": np.array([f"no {kind} point of the pure fluid: {r}" if r else "" for r in reason], dtype=object)}
 
 
 def _envelope_for(model, z):
