@@ -442,7 +442,7 @@ def _cell(value) -> str:
 
 # --------------------------------------------------------------------------- public entry points
 
-def bubble_point(model, T=None, P=None, *, z=None, branch="lower", errors="nan", maxiter=40):
+def bubble_point(model, T=None, P=None, *, z=None, branch="lower", errors="nan", maxiter=40, envelope=None):
     """Bubble point of a mixture: the pressure at T, or the temperature at P, where the feed
     liquid z is in equilibrium with a first bubble of vapor.
 
@@ -465,6 +465,10 @@ def bubble_point(model, T=None, P=None, *, z=None, branch="lower", errors="nan",
         "raise": raise at the first such point.
     maxiter : int
         Most Newton iterations per point (after :data:`SUBSTITUTION_STEPS` substitutions).
+    envelope : PhaseEnvelope, optional
+        The feed's envelope from :func:`~.envelope.phase_envelope`, if already traced: the
+        upper branch and the fallbacks start from it instead of tracing it again (some 0.4 s
+        for a binary, 0.9 s for a six-component gas).
 
     Returns
     -------
@@ -480,10 +484,10 @@ def bubble_point(model, T=None, P=None, *, z=None, branch="lower", errors="nan",
     ----------
     Michelsen & Mollerup (2007) ch. 12; Michelsen (1980); Wilson (1968) (see the module).
     """
-    return _saturation_point("bubble", model, T, P, z, branch, errors, maxiter)
+    return _saturation_point("bubble", model, T, P, z, branch, errors, maxiter, envelope=envelope)
 
 
-def dew_point(model, T=None, P=None, *, z=None, branch="lower", errors="nan", maxiter=40):
+def dew_point(model, T=None, P=None, *, z=None, branch="lower", errors="nan", maxiter=40, envelope=None):
     """Dew point of a mixture: the pressure at T, or the temperature at P, where the feed
     vapor z is in equilibrium with a first drop of liquid.
 
@@ -496,7 +500,7 @@ def dew_point(model, T=None, P=None, *, z=None, branch="lower", errors="nan", ma
     ----------
     Michelsen & Mollerup (2007) ch. 12; Michelsen (1980); Wilson (1968) (see the module).
     """
-    return _saturation_point("dew", model, T, P, z, branch, errors, maxiter)
+    return _saturation_point("dew", model, T, P, z, branch, errors, maxiter, envelope=envelope)
 
 
 def _check_model(model, who):
@@ -523,7 +527,24 @@ def feed_composition(model, z, who):
     return arr
 
 
-def _saturation_point(kind, model, T, P, z, branch, errors, maxiter, fallback=True):
+def _check_envelope(envelope, model, z, who):
+    """A passed envelope must be of this model (same components, kᵢⱼ, cubic) and feed."""
+    if envelope is None:
+        return
+    from thermo_roots.equilibrium.envelope import PhaseEnvelope
+
+    if not isinstance(envelope, PhaseEnvelope):
+        raise WrongTypeError(f"{who}: envelope must be a PhaseEnvelope from phase_envelope(model); got "
+                             f"{type(envelope).__name__}.")
+    other = envelope.model
+    same = (other is model) or (other.name == model.name and other.components.names == model.components.names
+                                and np.array_equal(other.kij, model.kij))
+    if not same or not np.allclose(envelope.z, z, rtol=0, atol=1e-12):
+        raise InputError(f"{who}: the envelope given was traced for another model or feed ({envelope!r}); trace "
+                         "it for this one with phase_envelope(model, z=z), or leave envelope out.")
+
+
+def _saturation_point(kind, model, T, P, z, branch, errors, maxiter, fallback=True, envelope=None):
     who = f"{kind}_point"
     _check_model(model, who)
     if (T is None) == (P is None):
@@ -533,6 +554,7 @@ def _saturation_point(kind, model, T, P, z, branch, errors, maxiter, fallback=Tr
         raise InputError(f"{who}: branch={branch!r} is not one of {', '.join(map(repr, BRANCHES))}.")
     check_errors_option(errors)
     z = feed_composition(model, z, who)
+    _check_envelope(envelope, model, z, who)
     spec = "T" if T is not None else "P"
     unit = "K" if spec == "T" else "Pa"
     given = np.asarray(si_array(to_si, T if spec == "T" else P, spec), dtype=float)
@@ -548,7 +570,7 @@ def _saturation_point(kind, model, T, P, z, branch, errors, maxiter, fallback=Tr
     if model.n_components == 1:
         solved = _pure_fluid(model, flat[good], kind, spec)
     else:
-        solved = _solve(model, z, flat[good], kind, spec, branch, maxiter, fallback)
+        solved = _solve(model, z, flat[good], kind, spec, branch, maxiter, fallback, envelope)
     n = model.n_components
     out = {key: np.full(flat.size, np.nan) for key in ("T", "P", "v_feed", "Z_feed", "v_incipient", "Z_incipient")}
     incipient = np.full((flat.size, n), np.nan)
@@ -605,7 +627,7 @@ def _reason(kind, spec, value, code, branch):
             "critical point try phase_envelope(model), which passes through it.")
 
 
-def _solve(model, z, values, kind, spec, branch, maxiter, fallback=True):
+def _solve(model, z, values, kind, spec, branch, maxiter, fallback=True, given_envelope=None):
     """Every stage for the good points (1-D ``values`` of T [K] or P [Pa]).
 
     ``fallback``: where the lower branch's own stages find nothing, trace the envelope and
@@ -621,7 +643,7 @@ def _solve(model, z, values, kind, spec, branch, maxiter, fallback=True):
         return empty
     envelope = None
     if branch == "upper":
-        envelope, why = _envelope_for(model, z)
+        envelope, why = _envelope_for(model, z, given_envelope)
         if envelope is None:
             empty["status"][:] = NO_BRANCH
             empty["note"][:] = why
@@ -653,7 +675,7 @@ def _solve(model, z, values, kind, spec, branch, maxiter, fallback=True):
             _retry_from_wilson(model, zz, values, kind, spec, spec_index, beta, retry, out, maxiter)
         lost = np.flatnonzero(np.isin(out["status"], (TRIVIAL, NOT_CONVERGED, WRONG_SIDE)))
         if fallback and lost.size:
-            _from_the_envelope(model, z, values, kind, spec, spec_index, beta, lost, out, maxiter)
+            _from_the_envelope(model, z, values, kind, spec, spec_index, beta, lost, out, maxiter, given_envelope)
     else:
         out["status"][~found] = NO_BRANCH
     return out
@@ -679,10 +701,13 @@ def _pure_fluid(model, values, kind, spec):
             "note": np.array([f"no {kind} point of the pure fluid: {r}" if r else "" for r in reason], dtype=object)}
 
 
-def _envelope_for(model, z):
-    """The feed's traced envelope, or (None, why) where it cannot be traced."""
+def _envelope_for(model, z, given=None):
+    """The feed's traced envelope (``given``, when the caller passed one), or (None, why) where it
+    cannot be traced."""
     from thermo_roots.equilibrium.envelope import phase_envelope   # the envelope builds on this module
 
+    if given is not None:
+        return given, ""
     try:
         return phase_envelope(model, z=z), ""
     except InputError as error:
@@ -706,11 +731,11 @@ def _envelope_starts(model, z, kind, spec, values, branch, envelope):
     return u0, found
 
 
-def _from_the_envelope(model, z, values, kind, spec, spec_index, beta, rows, out, maxiter):
+def _from_the_envelope(model, z, values, kind, spec, spec_index, beta, rows, out, maxiter, given=None):
     """Lower-branch points the Wilson start could not reach: Newton from the traced envelope
     where it meets the given T or P on the ``kind`` side; where it does not meet it, the
     reason names the envelope's reach (its cricondentherm, cricondenbar, critical point)."""
-    envelope, why = _envelope_for(model, z)
+    envelope, why = _envelope_for(model, z, given)
     if envelope is None:
         return
     u0, found = _envelope_starts(model, z, kind, spec, values[rows], "lower", envelope)
