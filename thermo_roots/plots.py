@@ -30,6 +30,7 @@ from matplotlib.patches import Patch
 
 from .accuracy import model_label
 from .errors import InputError
+from .equilibrium.saturation_points import SATURATION_CAUTION
 from .inversion import CAUTION, State, saturation, solve
 from .models import Model
 from .reference import library_reason, reference_limits, reference_saturation, reference_state
@@ -1512,3 +1513,214 @@ def plot_temperature_entropy(model, ax=None, *, P_lines=None, quality_lines=(0.2
     """
     return _property_diagram(model, ax, kind="ts", lines=P_lines, quality_lines=quality_lines, reference=reference,
                              step=step)
+
+
+# --------------------------------------------------------------------------- phase envelope
+
+_ENVELOPE_STYLE = {
+    "bubble": dict(color="#1b5e9e", linestyle="-", linewidth=2.0),
+    "dew": dict(color="#c4581b", linestyle="--", linewidth=2.0),
+    "critical": dict(marker="*", markersize=15, markerfacecolor="gold", markeredgecolor="black", linestyle="none",
+                     zorder=6),
+    "cricondenbar": dict(marker="^", markersize=9, markerfacecolor="white", markeredgecolor="black",
+                         markeredgewidth=1.5, linestyle="none", zorder=6),
+    "cricondentherm": dict(marker=">", markersize=9, markerfacecolor="white", markeredgecolor="black",
+                           markeredgewidth=1.5, linestyle="none", zorder=6),
+    "quality": dict(color="0.4", linestyle=(0, (1, 1.5)), linewidth=1.3),
+    "reference_bubble": dict(marker="o", markersize=6, markerfacecolor="white", markeredgecolor="black",
+                             linestyle="none", zorder=5),
+    "reference_dew": dict(marker="s", markersize=6, markerfacecolor="white", markeredgecolor="black",
+                          linestyle="none", zorder=5),
+}
+#: How many temperatures per side the reference mixture model is asked at ("auto").
+_ENVELOPE_REFERENCE_POINTS = 5
+
+
+def _envelope_reference(envelope, count=_ENVELOPE_REFERENCE_POINTS):
+    """The reference mixture model's bubble and dew points at ``count`` temperatures per side
+    (inside each side's temperature range, clear of the critical point, where its solver is
+    unreliable): {"bubble": (T, P), "dew": (T, P)} of the available ones, and a note."""
+    from .reference import mixture_reference_reason, reference_bubble_point, reference_dew_point
+
+    mixture = envelope.model.components.with_fractions(envelope.z, normalize=True)
+    why = mixture_reference_reason(mixture)
+    if why:
+        return {}, f"Reference mixture model not drawn: {why}"
+    out, missing = {}, 0
+    Tc = envelope.critical[0] if envelope.critical is not None else np.nan
+    for side, call in (("bubble", reference_bubble_point), ("dew", reference_dew_point)):
+        T_side = envelope.T[(envelope.side == side) & np.isfinite(envelope.T)]
+        if T_side.size < 2:
+            continue
+        lo = float(T_side.min())
+        # the bubble side up to short of the critical point; the dew side's lower branch, up
+        # to short of the cricondentherm (CoolProp gives one dew point per temperature)
+        hi = float(min(T_side.max(), Tc)) if side == "bubble" and np.isfinite(Tc) else float(T_side.max())
+        T = np.linspace(lo + 0.05 * (hi - lo), hi - 0.1 * (hi - lo), count)
+        ref = call(mixture, T=T)
+        ok = np.asarray(ref.available, dtype=bool)
+        missing += int(np.sum(~ok))
+        out[side] = (np.asarray(ref.T)[ok], np.asarray(ref.P)[ok])
+    note = (f"{missing} reference point{'s' if missing != 1 else ''} unavailable (CoolProp's mixture saturation "
+            "solver did not converge there)." if missing else "")
+    return out, note
+
+
+def _label_quality_line(ax, T, P, beta):
+    """The line's vapor fraction written on it, along its slope, at a height that rises with β
+    (the lines start close together at low pressure; staggered labels do not collide)."""
+    P_top = float(np.nanmax(P))
+    target = (0.2 + 0.45 * beta) * P_top
+    i = int(np.nanargmin(np.abs(P - target)))
+    j = min(i + 1, P.size - 1) if i + 1 < P.size else i - 1
+    (x0, y0), (x1, y1) = ax.transData.transform([(T[i] - _ZERO_CELSIUS, P[i] * _BAR),
+                                                  (T[j] - _ZERO_CELSIUS, P[j] * _BAR)])
+    angle = math.degrees(math.atan2(y1 - y0, x1 - x0))
+    if angle > 90:
+        angle -= 180
+    elif angle < -90:
+        angle += 180
+    ax.annotate(f"{100 * beta:g} % vapor", xy=(T[i] - _ZERO_CELSIUS, P[i] * _BAR), ha="center", va="center",
+                fontsize=7, color="0.25", rotation=angle, rotation_mode="anchor", gid=f"quality-label:{beta:g}",
+                zorder=4, bbox=dict(boxstyle="round,pad=0.1", facecolor="white", edgecolor="none", alpha=0.9))
+
+
+def _draw_envelope_triple_line(ax, envelope):
+    """A vertical line at the triple point of a component making up half the feed or more, where
+    it lies in the plot: the real mixture freezes near there (a cubic knows no solid)."""
+    lo, hi = ax.get_xlim()
+    for fluid, zi in zip(envelope.model.components.fluids, envelope.z):
+        T3 = getattr(fluid, "T_triple", None)
+        if zi >= 0.5 and T3 and lo < T3 - _ZERO_CELSIUS < hi:
+            ax.axvline(T3 - _ZERO_CELSIUS, color="#5a3e1b", linewidth=0.9, linestyle=(0, (6, 2, 1, 2)),
+                       label=f"{fluid.name} triple point: solid below (not modelled)", gid="triple-point",
+                       zorder=1.5)
+
+
+def plot_phase_envelope(envelope, ax=None, *, reference=None, qualities=None):
+    """The phase envelope of a mixture: bubble and dew sides, critical point, cricondenbar,
+    cricondentherm, lines of constant vapor fraction, and optionally the reference model's points.
+
+    Temperature in °C on x (a kelvin scale on top), pressure in bar on y. The bubble side is a
+    solid blue line, the dew side a dashed orange one; the critical point a gold star, the
+    cricondenbar and cricondentherm open triangles, each labelled in words with its value;
+    quality lines dotted grey, each labelled at its low-pressure end. The caution is printed
+    under the axes (an envelope decides whether a line or vessel stays single-phase).
+
+    Parameters
+    ----------
+    envelope : PhaseEnvelope
+        From :func:`thermo_roots.equilibrium.envelope.phase_envelope`.
+    ax : matplotlib Axes, optional
+    reference : None, "auto" or True
+        None (default): the model only. "auto" (or True): the reference mixture model's
+        (CoolProp's multiparameter mixture model, GERG-2008 type) bubble and dew points at a
+        handful of temperatures on each side, as open circles and squares; a mixture it does
+        not cover gets a note instead.
+    qualities : sequence of float, optional
+        Vapor fractions [-] of the quality lines to draw: default those the envelope carries;
+        lines it does not carry are traced here (the envelope is traced again with them).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        Lines carry gids ``envelope-bubble``, ``envelope-dew``, ``quality:<β>``, points
+        ``critical-point``, ``cricondenbar``, ``cricondentherm``, ``reference-bubble``,
+        ``reference-dew``; labels ``critical-label``, ``cricondenbar-label``,
+        ``cricondentherm-label``, ``quality-label:<β>``.
+
+    References
+    ----------
+    Michelsen, M. L. (1980), Fluid Phase Equilib. 4, 1-10 (the envelope).
+    Kunz, O. & Wagner, W. (2012), J. Chem. Eng. Data 57, 3032 (GERG-2008, the reference).
+    Hunter, J. D. (2007), Comput. Sci. Eng. 9, 90-95 (Matplotlib).
+    """
+    from .equilibrium.envelope import PhaseEnvelope, phase_envelope
+
+    if not isinstance(envelope, PhaseEnvelope):
+        raise InputError(f"plot_phase_envelope needs a PhaseEnvelope, from phase_envelope(model); got "
+                         f"{type(envelope).__name__}.")
+    if reference not in (None, False, True, "auto"):
+        raise InputError(f"plot_phase_envelope: reference={reference!r}; use None (model only) or 'auto'.")
+    lines = dict(envelope.quality)
+    if qualities is not None:
+        wanted = [float(b) for b in qualities]
+        missing = [b for b in wanted if b not in lines]
+        if missing:
+            traced = phase_envelope(envelope.model, z=envelope.z, qualities=missing,
+                                    P_start=float(np.nanmin(envelope.P)))
+            for beta, (T, P) in traced.quality.items():
+                if envelope.critical is not None and traced.critical is not None:
+                    # the line's end is the critical point: this envelope's, not the new trace's
+                    T, P = np.r_[T[:-1], envelope.critical[0]], np.r_[P[:-1], envelope.critical[1]]
+                lines[beta] = (T, P)
+        lines = {b: lines[b] for b in wanted if b in lines}
+    ax = _new_axes(ax, size=(9.0, 5.6))
+    st = _ENVELOPE_STYLE
+    notes = list(envelope.warnings)
+    for side, label in (("bubble", "bubble points (liquid, first bubble)"),
+                        ("dew", "dew points (vapor, first drop)")):
+        keep = envelope.side == side
+        T = np.where(keep, envelope.T, np.nan)    # NaN breaks the line where the other side runs
+        ax.plot(T - _ZERO_CELSIUS, envelope.P * _BAR, label=label, gid=f"envelope-{side}", **st[side])
+    x_span = float(np.nanmax(envelope.T) - np.nanmin(envelope.T))
+    ax.set_xlim(np.nanmin(envelope.T) - _ZERO_CELSIUS - 0.05 * x_span,
+                np.nanmax(envelope.T) - _ZERO_CELSIUS + 0.3 * x_span)
+    ax.set_ylim(0.0, 1.15 * envelope.cricondenbar[1] * _BAR)
+    for beta, (T, P) in sorted(lines.items()):
+        ax.plot(np.asarray(T) - _ZERO_CELSIUS, np.asarray(P) * _BAR, gid=f"quality:{beta:g}",
+                label="lines of constant vapor fraction", **st["quality"])
+        _label_quality_line(ax, np.asarray(T), np.asarray(P), beta)
+    if envelope.critical is not None:
+        Tc, Pc = envelope.critical
+        ax.plot([Tc - _ZERO_CELSIUS], [Pc * _BAR], gid="critical-point", label="critical point", **st["critical"])
+    T_cb, P_cb = envelope.cricondenbar
+    T_ct, P_ct = envelope.cricondentherm
+    ax.plot([T_cb - _ZERO_CELSIUS], [P_cb * _BAR], gid="cricondenbar", label="cricondenbar (highest pressure)",
+            **st["cricondenbar"])
+    ax.plot([T_ct - _ZERO_CELSIUS], [P_ct * _BAR], gid="cricondentherm",
+            label="cricondentherm (highest temperature)", **st["cricondentherm"])
+    # labels: the critical point's to the left, the cricondentherm's to the right, the
+    # cricondenbar's on the side away from the critical point
+    # the critical point's label to its left (the bubble side runs below-left of it), the
+    # cricondenbar's above its marker, the cricondentherm's to its right
+    if envelope.critical is not None:
+        ax.annotate(f"critical point\n{Tc - _ZERO_CELSIUS:.1f} °C, {Pc * _BAR:.1f} bar",
+                    xy=(Tc - _ZERO_CELSIUS, Pc * _BAR), xytext=(-14, -8), textcoords="offset points", ha="right",
+                    va="center", fontsize=8, gid="critical-label", zorder=7,
+                    bbox=dict(boxstyle="round,pad=0.2", facecolor="white", edgecolor="none", alpha=0.85))
+    ax.annotate(f"cricondenbar {P_cb * _BAR:.1f} bar at {T_cb - _ZERO_CELSIUS:.1f} °C",
+                xy=(T_cb - _ZERO_CELSIUS, P_cb * _BAR), xytext=(0, 11), textcoords="offset points", ha="center",
+                va="bottom", fontsize=8, gid="cricondenbar-label", zorder=7,
+                bbox=dict(boxstyle="round,pad=0.2", facecolor="white", edgecolor="none", alpha=0.85))
+    ax.annotate(f"cricondentherm\n{T_ct - _ZERO_CELSIUS:.1f} °C at {P_ct * _BAR:.1f} bar",
+                xy=(T_ct - _ZERO_CELSIUS, P_ct * _BAR), xytext=(10, -4), textcoords="offset points", ha="left",
+                va="top", fontsize=8, gid="cricondentherm-label", zorder=7,
+                bbox=dict(boxstyle="round,pad=0.2", facecolor="white", edgecolor="none", alpha=0.85))
+    with_reference = reference in (True, "auto")
+    if with_reference:
+        points, note = _envelope_reference(envelope)
+        for side, label in (("bubble", "reference bubble points (CoolProp mixture model)"),
+                            ("dew", "reference dew points (CoolProp mixture model)")):
+            if side in points and points[side][0].size:
+                T, P = points[side]
+                ax.plot(T - _ZERO_CELSIUS, P * _BAR, gid=f"reference-{side}", label=label, **st[f"reference_{side}"])
+        if note:
+            notes.append(note)
+    ax.set_xlabel("Temperature [°C]")
+    ax.set_ylabel("Pressure [bar]")
+    sec = ax.secondary_xaxis("top", functions=(lambda c: c + _ZERO_CELSIUS, lambda k: k - _ZERO_CELSIUS))
+    sec.set_xlabel("Temperature [K]")
+    _draw_envelope_triple_line(ax, envelope)
+    ax.grid(True, color="0.9", linewidth=0.6)
+    ax.set_axisbelow(True)
+    components = " + ".join(f"{name} {zi:.3g}" for name, zi in zip(envelope.model.components.names, envelope.z))
+    ax.set_title("\n".join(textwrap.wrap(f"Phase envelope — {components}, {envelope.model.name}", 80)), fontsize=10)
+    ax.text(0.02, 0.97, "two phases inside the envelope,\none phase outside", transform=ax.transAxes, ha="left",
+            va="top", fontsize=8, color="0.35")
+    _deduplicated_legend(ax, loc="upper left", bbox_to_anchor=(1.02, 1.0), borderaxespad=0.0, fontsize=8,
+                         frameon=False, wrap=32)
+    blocks = [("Note: " + n, "#a3123a") for n in notes]
+    blocks.append(("Caution: " + SATURATION_CAUTION, "0.25"))
+    _draw_footer(ax, blocks)
+    return ax
