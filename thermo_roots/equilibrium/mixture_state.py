@@ -19,7 +19,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from thermo_roots.equilibrium.flash import CONVERGED, NOT_CONVERGED, _flash_flat
-from thermo_roots.equilibrium.phase_words import model_at_compositions
+from thermo_roots.equilibrium.phase_caloric import lever_caloric
 from thermo_roots.equilibrium.stability import read_states
 from thermo_roots.errors import ConvergenceError, DomainError, InputError
 from thermo_roots.inversion.cubic import cubic_real_roots
@@ -236,68 +236,11 @@ def _label(model) -> str:
     return " + ".join(f"{n} {z:.4g}" for n, z in zip(c.names, c.fractions))
 
 
-def _ideal_parts_by_component(model, T, v):
-    """Each component's ideal-gas Helmholtz bundle at (T, v) [J/mol ...]: the pieces
-    properties.helmholtz sums (the fluid's ideal part on the project's gas constant),
-    to be weighted here by each state's own composition.
-
-    Raises DomainError (as properties does) for a component without ideal-gas data.
-    """
-    from thermo_roots.properties import _gas_constant_shift, _ideal_parts
-
-    parts = []
-    for ideal, _ in _ideal_parts(model):
-        parts.append([a + b for a, b in zip(ideal.helmholtz(T, v), _gas_constant_shift(ideal, T, v))])
-    return parts
-
-
-def _phase_caloric(model, T, P, v, comp):
-    """h, s, u, g, cp, cv, w of phases at flat T [K], P [Pa], v [m³/mol] and compositions comp
-    (n, nc), in one array call; NaN where v is NaN.
-
-    a(T, v) = the model's residual bundle at each state's composition + Σ xᵢ (component i's
-    ideal part) + R T Σ xᵢ ln xᵢ (the ideal mixing term, as in properties.helmholtz), then
-    properties.caloric_from_helmholtz.
-    """
-    from thermo_roots.models import Helmholtz
-    from thermo_roots.properties import caloric_from_helmholtz
-
-    n = T.size
-    out = {k: np.full(n, np.nan) for k in _CALORIC_FIELDS}
-    ok = np.flatnonzero(np.isfinite(v))
-    if ok.size == 0:
-        return out
-    T, P, v, x = T[ok], P[ok], v[ok], comp[ok]
-    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        A = list(model_at_compositions(model, x).residual_bundle(T, v))
-        for i, ideal in enumerate(_ideal_parts_by_component(model, T, v)):
-            A = [a + x[:, i] * b for a, b in zip(A, ideal)]
-        mixing = np.where(x > 0, x * np.log(np.where(x > 0, x, 1.0)), 0.0).sum(axis=1)
-        A = Helmholtz(*A)._replace(a=A[0] + R * T * mixing, a_T=A[1] + R * mixing)
-        values = caloric_from_helmholtz(T, v, P, x @ model.components.molar_masses, *A)
-    for name, value in zip(("P", "h", "s", "u", "g", "cp", "cv", "w"), values):
-        if name in out:
-            out[name][ok] = value
-    return out
-
-
 def _lever_caloric(state):
-    """h, s, u, g of the whole: (1 − β) × liquid's + β × vapour's (one phase: that phase's)."""
-    shape = np.shape(state.T)
-    nc = state.model.n_components
-    T, P = (np.asarray(a, dtype=float).reshape(-1) for a in (state.T, state.P))
-    x, y = (np.asarray(a, dtype=float).reshape(-1, nc) for a in (state.x, state.y))
-    vl, vv = (np.asarray(a, dtype=float).reshape(-1) for a in (state.v_liquid, state.v_vapor))
-    beta = np.asarray(state.vapor_fraction, dtype=float).reshape(-1)
-    liquid = _phase_caloric(state.model, T, P, vl, x)
-    vapour = _phase_caloric(state.model, T, P, vv, y)
-    out = {}
-    for name in _CALORIC_FIELDS:
-        lq, vp = liquid[name], vapour[name]
-        mixed = (1.0 - beta) * lq + beta * vp if name in _LEVER_FIELDS else np.nan
-        both = np.where(np.isnan(vl), vp, np.where(np.isnan(vv), lq, mixed))
-        out[name] = _scalar_or_array(both.reshape(shape))
-    return out
+    """h, s, u, g of the whole by the lever rule, cp, cv, w of one phase (:func:`.phase_caloric.lever_caloric`)."""
+    values = lever_caloric(state.model, state.T, state.P, state.vapor_fraction, state.x, state.y,
+                           state.v_liquid, state.v_vapor)
+    return {name: _scalar_or_array(getattr(values, name)) for name in _CALORIC_FIELDS}
 
 
 # --------------------------------------------------------------------------- the entry point
