@@ -127,7 +127,8 @@ def test_random_feeds_never_above_the_oracles_gibbs_energy(gas6, oracle6):
         ours_phases = [(1.0 - f.beta[i], f.x[i], 1.0 / f.v_liquid[i]), (f.beta[i], f.y[i], 1.0 / f.v_vapor[i])] \
             if f.n_phases[i] == 2 else [(1.0, Z[i], 1.0 / f.v[i])]
         other = [(1.0 - theirs.vapor_fraction, theirs.x, theirs.rho_liquid),
-                 (theirs.vapor_fraction, theirs.y, theirs.rho_vapor)] if theirs.phases == 2 else [(1.0, Z[i], theirs.rho)]
+                 (theirs.vapor_fraction, theirs.y, theirs.rho_vapor)] \
+            if theirs.phases == 2 else [(1.0, Z[i], theirs.rho)]
         assert oracle6.reduced_gibbs(T[i], ours_phases) <= oracle6.reduced_gibbs(T[i], other) + 1e-9
     assert compared >= 18
 

@@ -46,7 +46,8 @@ from thermo_roots.equilibrium.fugacity import phase_fugacity
 from thermo_roots.equilibrium.phase_words import LIQUID, feed_phase_words
 from thermo_roots.equilibrium.rachford_rice import rachford_rice
 from thermo_roots.models import R
-from thermo_roots.equilibrium.stability import (ACCELERATE_EVERY, NOT_CONVERGED, NOT_SOLVED, STABLE, UNSTABLE,
+from thermo_roots.equilibrium.stability import (ACCELERATE_EVERY, NOT_CONVERGED, NOT_SOLVED, STABILITY_STEPS,
+                                                STABILITY_TOLERANCE, STABLE, UNSTABLE,
                                                 _dominant_eigenvalue_step, _k_from_trial, _test, read_states)
 
 #: Convergence: every |ln Kᵢ − (ln φᵢᴸ − ln φᵢⱽ)| below this [-] (the fugacities equal to 1e-10).
@@ -370,7 +371,7 @@ def _flash_flat(model, shape, T, P, z, reasons, tol, maxiter) -> FlashResult:
 def _flash_chunk(model, T, P, z, reasons, tol, maxiter) -> dict:
     """The flash of one chunk of flat states: a dict of flat arrays (the FlashResult fields)."""
     n, nc = z.shape
-    test = _test(model, T, P, z, reasons, 1e-8, 200)
+    test = _test(model, T, P, z, reasons, STABILITY_TOLERANCE, STABILITY_STEPS)
     status = np.full(n, NOT_SOLVED, dtype="<U15")
     reason = test["reason"].copy()
     beta = np.full(n, np.nan)

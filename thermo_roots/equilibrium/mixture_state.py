@@ -18,7 +18,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from thermo_roots.equilibrium.flash import CONVERGED, NOT_CONVERGED, _flash_flat
+from thermo_roots.equilibrium.flash import CONVERGED, FLASH_TOLERANCE, NOT_CONVERGED, SUBSTITUTION_STEPS, _flash_flat
 from thermo_roots.equilibrium.phase_caloric import lever_caloric
 from thermo_roots.equilibrium.stability import read_states
 from thermo_roots.errors import ConvergenceError, DomainError, InputError
@@ -294,7 +294,7 @@ def solve_mixture(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHE
                          "P='45 bar'); the energy pairs of a mixture ((P, h), (P, s)) and its other pairs are not "
                          "built yet. Solve at (T, P) and read .h, .s, .v from the result.")
     shape, T, P, z, reasons = read_states(model, given["T"], given["P"], None, "solve")
-    flash = _flash_flat(model, (-1,), T, P, z, reasons, 1e-10, 60)
+    flash = _flash_flat(model, (-1,), T, P, z, reasons, FLASH_TOLERANCE, SUBSTITUTION_STEPS)
     status, reason = np.asarray(flash.status), np.asarray(flash.reason, dtype=object)
     bad = np.flatnonzero(status != CONVERGED)
     if bad.size and (shape == () or errors == "raise"):

@@ -49,6 +49,8 @@ from thermo_roots.errors import InputError, WrongTypeError
 UNSTABLE_BELOW = 1e-8
 #: A trial stops when its ln W changes by less than this [-] in one step.
 STABILITY_TOLERANCE = 1e-8
+#: Most successive-substitution steps of a trial.
+STABILITY_STEPS = 200
 #: A trial stops as soon as tm is below minus this [-]: instability is proven, and a flash
 #: started from it needs no more digits of its composition.
 PROVEN_BELOW = 1e-3
@@ -243,7 +245,8 @@ def _dominant_eigenvalue_step(ln_W, step, last_step):
     return ln_W + s * factor[..., None]
 
 
-def tangent_plane(model, T, P, z=None, *, tol: float = STABILITY_TOLERANCE, maxiter: int = 200) -> StabilityResult:
+def tangent_plane(model, T, P, z=None, *, tol: float = STABILITY_TOLERANCE,
+                  maxiter: int = STABILITY_STEPS) -> StabilityResult:
     """Michelsen's tangent-plane stability test of feeds z at T [K], P [Pa], vectorized.
 
     Parameters
