@@ -15,6 +15,9 @@ from .models import (MODELS, R, CubicFamily, CubicModel, IdealGas, Model, PengRo
 from .units import to_si
 from .inversion import CAUTION, Root, Saturation, State, saturation, solve, volume_roots
 from .equilibrium.dispatch import solve  # noqa: E402,F811  (a mixture model goes to the flash)
+from .equilibrium import (FlashResult, MixtureState, PhaseEnvelope, SaturationPoint, bubble_point, dew_point,
+                          flash_tp, phase_envelope, tangent_plane)
+from .mixtures import BinaryParameters
 # The reference, sweep and accuracy layers pull in pandas and CoolProp's state objects;
 # they load on first use so that `import thermo_roots` and a first state stay quick.
 _LAZY = {
@@ -24,6 +27,7 @@ _LAZY = {
                "saturation_curve", "state_frame", "state_grid", "to_csv"),
     "accuracy": ("AccuracyMap", "accuracy_map"),
     "steps": ("ReferenceStep", "StepResult", "compress", "expand", "heat_at_constant_volume", "throttle"),
+    "reference.binary_fit": ("KijFit", "fit_kij"),
 }
 _LAZY_HOME = {name: module for module, names in _LAZY.items() for name in names}
 
@@ -50,4 +54,6 @@ __all__ = [
     "cross_check", "fit_volume_shift", "isenthalp", "isentrope", "isobar", "isochore", "isotherm", "read_csv", "reference_limits",
     "reference_saturation", "reference_state", "saturation_curve", "state_frame", "state_grid", "to_csv",
     "ReferenceStep", "StepResult", "compress", "expand", "heat_at_constant_volume", "throttle",
+    "BinaryParameters", "FlashResult", "KijFit", "MixtureState", "PhaseEnvelope", "SaturationPoint", "bubble_point",
+    "dew_point", "fit_kij", "flash_tp", "phase_envelope", "tangent_plane",
 ]

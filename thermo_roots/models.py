@@ -624,10 +624,10 @@ class CubicModel(Model):
 
             raise MixtureNotSupportedError(
                 f"{self!r} describes a mixture of {self.n_components} components; this is a pure-fluid "
-                "calculation (solve, saturation line, sweeps, cross-checks of one fluid). The flash of "
-                "mixtures is not built yet: today a mixture model gives its volume roots at (T, P) "
-                "(thermo_roots.volume_roots) and each component's fugacity coefficient "
-                "(thermo_roots.equilibrium.fugacity.phase_fugacity).")
+                "calculation (saturation line, sweeps, pure cross-checks). For a mixture use "
+                "thermo_roots.solve(model, T=, P=) or (P=, h=) / (P=, s=) (the flash), "
+                "thermo_roots.bubble_point, dew_point and phase_envelope, and "
+                "thermo_roots.reference.cross_check on the mixture state.")
         return self._fluid
 
     @property

@@ -14,11 +14,13 @@ from thermo_roots.units import STANDARD_ATMOSPHERE
 _MIXTURE_NOTE = """
     Mixtures
     --------
-    A model on a Mixture of two or more components (``model.is_mixture``) takes (T, P)
-    today and returns a :class:`~thermo_roots.equilibrium.mixture_state.MixtureState`
-    (tangent-plane stability, then the (T, P) flash): phase, vapor_fraction, x, y, v, Z,
-    each phase's volume and roots, h, s, u, g by the lever rule. Other pairs on a mixture
-    are refused with an InputError.
+    A model on a Mixture of two or more components (``model.is_mixture``) takes (T, P),
+    (P, h) or (P, s) (h, s molar or per kg, ``h_mass=``, ``s_mass=``, text with units on
+    either basis) and returns a :class:`~thermo_roots.equilibrium.mixture_state.MixtureState`
+    (tangent-plane stability, then the (T, P) flash; for an energy pair the temperature by
+    bracketed root finding on the flash's h or s): phase, vapor_fraction, x, y, v, Z, each
+    phase's volume and roots, h, s, u, g by the lever rule. Other pairs on a mixture are
+    refused with an InputError.
 """
 
 

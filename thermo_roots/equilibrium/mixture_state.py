@@ -6,8 +6,10 @@ and the result carries the split, each phase's volume and roots, and the caloric
 properties by the lever rule over the phases (each phase's h, s, u, g from
 ``properties.caloric`` at its own composition).
 
-Only (T, P) is understood today: the energy pairs of a mixture ((P, h), (P, s)) need a
-flash of their own and are refused with a clear error.
+(T, P), and the energy pairs (P, h) and (P, s) of a valve or an isentropic machine: their
+temperature comes from :func:`.energy_flash.energy_flash` (bracketed root finding in T on the
+flash's h or s, which rise with T at fixed P), then the flash at that T. Other pairs are
+refused with a clear error.
 """
 
 from __future__ import annotations
@@ -19,6 +21,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from thermo_roots.equilibrium.flash import CONVERGED, FLASH_TOLERANCE, NOT_CONVERGED, SUBSTITUTION_STEPS, _flash_flat
+from thermo_roots.equilibrium.energy_flash import energy_flash
 from thermo_roots.equilibrium.phase_caloric import lever_caloric
 from thermo_roots.equilibrium.stability import read_states
 from thermo_roots.errors import ConvergenceError, DomainError, InputError
@@ -29,7 +32,7 @@ from thermo_roots.models import R, _scalar_or_array
 from thermo_roots.units import STANDARD_ATMOSPHERE
 
 #: The pairs of knowns a mixture takes today.
-MIXTURE_PAIRS = ("(T, P)",)
+MIXTURE_PAIRS = ("(T, P)", "(P, h)", "(P, s)")
 #: The values of ``errors=``.
 ERRORS = ("nan", "raise")
 #: The caloric fields of a mixture state (two-phase by the lever rule).
@@ -245,6 +248,27 @@ def _lever_caloric(state):
 
 # --------------------------------------------------------------------------- the entry point
 
+def _temperature_and_pressure(model, given, knowns):
+    """(T, P, reasons) of the states: the knowns themselves for (T, P); for (P, h) or (P, s) (molar
+    or mass basis) the temperature of the energy flash (:func:`.energy_flash.energy_flash`), with
+    a reason per state it could not place (None for (T, P))."""
+    keys = set(given)
+    if keys == {"T", "P"}:
+        return given["T"], given["P"], None
+    energy = keys - {"P"}
+    if "P" in keys and len(energy) == 1 and next(iter(energy)) in ("h", "h_mass", "s", "s_mass"):
+        key = next(iter(energy))
+        name = key[0]
+        value = np.asarray(given[key], dtype=float) * (model.molar_mass if key.endswith("_mass") else 1.0)
+        P, value = np.broadcast_arrays(np.asarray(given["P"], dtype=float), value)
+        T, _, reasons = energy_flash(model, P, value, name)
+        return T.reshape(P.shape), P, reasons.astype(object)
+    raise InputError(f"{' and '.join(knowns)}: a mixture takes {', '.join(MIXTURE_PAIRS)} today, e.g. "
+                     "solve(model, T='-20 °C', P='45 bar') or solve(model, P='4.5 barg', h=state.h) for a valve "
+                     "outlet; its other pairs (a volume, a quality, T with an energy) are not built yet.")
+
+
+
 def solve_mixture(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, errors: str = "nan",
                   **knowns) -> MixtureState:
     """A mixture's state from (T, P): phase, vapour fraction, compositions, volumes, h, s, u, g.
@@ -263,6 +287,9 @@ def solve_mixture(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHE
         solve always raises.
     T, P : float, array_like, str or pint quantity
         Temperature [K] and pressure [Pa] (or text with units: "-20 °C", "45 barg").
+    h, s, h_mass, s_mass : float, array_like or str, with P instead of T
+        Enthalpy [J/mol] or entropy [J/(mol K)], or per kg [J/kg, J/(kg K)]; text with units
+        on either basis ("716 kJ/kg", "12 kJ/mol").
 
     Returns
     -------
@@ -289,11 +316,10 @@ def solve_mixture(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHE
         raise InputError(f"branch={branch!r}: a mixture's state is the flash's stable answer; give branch='stable' "
                          "(a metastable single phase of a mixture is not offered).")
     given = _read_knowns(model, knowns, atmosphere)
-    if set(given) != {"T", "P"}:
-        raise InputError(f"{' and '.join(knowns)}: a mixture takes (T, P) today, e.g. solve(model, T='-20 °C', "
-                         "P='45 bar'); the energy pairs of a mixture ((P, h), (P, s)) and its other pairs are not "
-                         "built yet. Solve at (T, P) and read .h, .s, .v from the result.")
-    shape, T, P, z, reasons = read_states(model, given["T"], given["P"], None, "solve")
+    T_known, P_known, energy_reasons = _temperature_and_pressure(model, given, knowns)
+    shape, T, P, z, reasons = read_states(model, T_known, P_known, None, "solve")
+    if energy_reasons is not None:
+        reasons = np.where(energy_reasons != "", energy_reasons, reasons).astype(object)
     flash = _flash_flat(model, (-1,), T, P, z, reasons, FLASH_TOLERANCE, SUBSTITUTION_STEPS)
     status, reason = np.asarray(flash.status), np.asarray(flash.reason, dtype=object)
     bad = np.flatnonzero(status != CONVERGED)

@@ -50,7 +50,9 @@ from .mixture import (AUTO_MIXTURE_PROGRESS_ABOVE, DEFAULT_MIXTURE_CHUNK, MIXTUR
                       mixture_phase_word, mixture_reference_reason, pseudo_critical, reference_bubble_point,
                       reference_dew_point, reference_mixture_state)
 
-__all__ += ["AUTO_MIXTURE_PROGRESS_ABOVE", "DEFAULT_MIXTURE_CHUNK", "MIXTURE_INTERRUPTED", "MIXTURE_KINDS",
+from .mixture_check import MixtureCrossCheck, cross_check_mixture
+
+__all__ += ["MixtureCrossCheck", "cross_check_mixture", "AUTO_MIXTURE_PROGRESS_ABOVE", "DEFAULT_MIXTURE_CHUNK", "MIXTURE_INTERRUPTED", "MIXTURE_KINDS",
             "REFERENCE_MIXTURE_CAUTION", "ReferenceMixtureState", "evaluate_mixture_reference", "mixture_phase_word",
             "mixture_reference_reason", "pseudo_critical", "reference_bubble_point", "reference_dew_point",
             "reference_mixture_state"]

@@ -466,7 +466,16 @@ def cross_check(state, *, at="default", progress=False, executor=None, chunk_siz
     Span, R. & Wagner, W. (1996), J. Phys. Chem. Ref. Data 25, 1509-1596 (CO2); Wagner, W. &
     Pruss, A. (2002), J. Phys. Chem. Ref. Data 31, 387-535 (water): two of the reference
     equations behind it.
+
+    A mixture state (``solve`` on a mixture model) is compared with the reference mixture
+    model at the same T, P and feed by :func:`.mixture_check.cross_check_mixture` (``at`` and
+    ``with_saturation`` do not apply there).
     """
+    from .mixture_check import cross_check_mixture, is_mixture_state
+
+    if is_mixture_state(state):
+        return cross_check_mixture(state, progress=progress, executor=executor, chunk_size=chunk_size,
+                                   on_interrupt=on_interrupt)
     _check_state(state)
     _check_run_options(progress=progress, executor=executor, chunk_size=chunk_size, on_interrupt=on_interrupt,
                        with_saturation=with_saturation)
