@@ -211,3 +211,15 @@ def test_an_envelope_of_another_feed_is_refused(envelopes):
         dew_point(model, T=250.0, z=[0.6, 0.4], envelope=env)
     with pytest.raises(InputError, match="another model or feed"):
         dew_point(envelopes["C3-nC4"][0], T=250.0, envelope=env)
+
+
+def test_threads_trace_the_serial_envelope(envelopes):
+    import concurrent.futures
+
+    models = [envelopes[key][0] for key in ("C1-C2", "C3-nC4")]
+    with concurrent.futures.ThreadPoolExecutor(2) as pool:
+        traced = list(pool.map(lambda m: phase_envelope(m), models))
+    for key, env in zip(("C1-C2", "C3-nC4"), traced):
+        serial = envelopes[key][2]
+        assert env.critical == pytest.approx(serial.critical, rel=1e-12)
+        assert env.P == pytest.approx(serial.P, rel=1e-12)
