@@ -158,16 +158,23 @@ def test_retrograde_branch_between_the_critical_point_and_the_cricondentherm(env
             feed = _ln_fugacity(oracle, model.z, t, point.v_feed[i])
             drop = _ln_fugacity(oracle, point.incipient[i], t, point.v_incipient[i])
             assert feed == pytest.approx(drop, abs=1e-7)
-    # beyond the cricondentherm there is neither
-    beyond = dew_point(model, T=Ct + 0.05, envelope=env)
+    # the cricondentherm is the highest dew temperature: 0.01 K below it both branches exist,
+    # 0.01 K above it neither
+    close = [dew_point(model, T=Ct - 0.01, branch=b, envelope=env) for b in ("lower", "upper")]
+    assert all(p.status == CONVERGED for p in close) and close[1].P > close[0].P
+    beyond = dew_point(model, T=Ct + 0.01, envelope=env)
     assert beyond.status != CONVERGED and beyond.reason.startswith("no dew point at this temperature")
+    assert dew_point(model, T=Ct + 0.01, branch="upper", envelope=env).status != CONVERGED
 
 
 def test_cricondenbar_bounds_the_bubble_and_dew_pressures(envelopes):
     model, _, env = envelopes["natural gas"]
     T_cb, P_cb = env.cricondenbar
-    assert dew_point(model, P=P_cb * 0.999, envelope=env).status == CONVERGED
-    over = dew_point(model, P=P_cb * 1.002, envelope=env)
+    # the natural gas's cricondenbar lies on the dew side: 1e-4 below it two dew temperatures,
+    # 1e-4 above it none
+    assert dew_point(model, P=P_cb * 0.9999, envelope=env).status == CONVERGED
+    assert dew_point(model, P=P_cb * 0.9999, branch="upper", envelope=env).status == CONVERGED
+    over = dew_point(model, P=P_cb * 1.0001, envelope=env)
     assert over.status != CONVERGED and "no dew point at this pressure" in over.reason
 
 
