@@ -158,16 +158,23 @@ def test_retrograde_branch_between_the_critical_point_and_the_cricondentherm(env
             feed = _ln_fugacity(oracle, model.z, t, point.v_feed[i])
             drop = _ln_fugacity(oracle, point.incipient[i], t, point.v_incipient[i])
             assert feed == pytest.approx(drop, abs=1e-7)
-    # beyond the cricondentherm there is neither
-    beyond = dew_point(model, T=Ct + 0.05, envelope=env)
+    # the cricondentherm is the highest dew temperature: 0.01 K below it both branches exist,
+    # 0.01 K above it neither
+    close = [dew_point(model, T=Ct - 0.01, branch=b, envelope=env) for b in ("lower", "upper")]
+    assert all(p.status == CONVERGED for p in close) and close[1].P > close[0].P
+    beyond = dew_point(model, T=Ct + 0.01, envelope=env)
     assert beyond.status != CONVERGED and beyond.reason.startswith("no dew point at this temperature")
+    assert dew_point(model, T=Ct + 0.01, branch="upper", envelope=env).status != CONVERGED
 
 
 def test_cricondenbar_bounds_the_bubble_and_dew_pressures(envelopes):
     model, _, env = envelopes["natural gas"]
     T_cb, P_cb = env.cricondenbar
-    assert dew_point(model, P=P_cb * 0.999, envelope=env).status == CONVERGED
-    over = dew_point(model, P=P_cb * 1.002, envelope=env)
+    # the natural gas's cricondenbar lies on the dew side: 1e-4 below it two dew temperatures,
+    # 1e-4 above it none
+    assert dew_point(model, P=P_cb * 0.9999, envelope=env).status == CONVERGED
+    assert dew_point(model, P=P_cb * 0.9999, branch="upper", envelope=env).status == CONVERGED
+    over = dew_point(model, P=P_cb * 1.0001, envelope=env)
     assert over.status != CONVERGED and "no dew point at this pressure" in over.reason
 
 
@@ -211,3 +218,15 @@ def test_an_envelope_of_another_feed_is_refused(envelopes):
         dew_point(model, T=250.0, z=[0.6, 0.4], envelope=env)
     with pytest.raises(InputError, match="another model or feed"):
         dew_point(envelopes["C3-nC4"][0], T=250.0, envelope=env)
+
+
+def test_threads_trace_the_serial_envelope(envelopes):
+    import concurrent.futures
+
+    models = [envelopes[key][0] for key in ("C1-C2", "C3-nC4")]
+    with concurrent.futures.ThreadPoolExecutor(2) as pool:
+        traced = list(pool.map(lambda m: phase_envelope(m), models))
+    for key, env in zip(("C1-C2", "C3-nC4"), traced):
+        serial = envelopes[key][2]
+        assert env.critical == pytest.approx(serial.critical, rel=1e-12)
+        assert env.P == pytest.approx(serial.P, rel=1e-12)

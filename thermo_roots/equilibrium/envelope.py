@@ -25,9 +25,10 @@ Each step:
   that ln Kᵢ through the two points of the jump and two more solved at ln Kᵢ = ±0.01. Past it the phase
   labelled x (the feed) takes the vapor root and the incipient one the liquid root.
 
-The cricondenbar (highest pressure) and cricondentherm (highest temperature) are found on
-the traced points by a parabola through the extreme point and its neighbours in arc length,
-then solved exactly at the parabola's vertex (at that temperature, or pressure).
+The cricondenbar (highest pressure) and cricondentherm (highest temperature) are solved
+exactly: around the highest traced point, the point where dP/dT (or dT/dP) of the curve is
+0, by bracketed root finding on that slope (each trial a point of the envelope at that T, or
+P, whose sensitivity is the slope).
 
 Quality lines (vapor fraction β of the feed) are the same system at 0 < β < 1, traced from
 ``P_start`` up to the neighbourhood of the critical point, where all of them meet.
@@ -292,34 +293,52 @@ def _interpolate(u1, u2, index, value):
 
 
 def _extreme(model, z, curve, index, n):
-    """The highest T (index n) or P (index n + 1) of the curve, refined: (u, position).
+    """The highest T (index n) or P (index n + 1) of the curve, solved exactly: (u, position).
 
-    The parabola in arc length through the extreme traced point and its neighbours gives the
-    vertex; the point is solved there exactly (at the vertex's P for the cricondentherm, its T
-    for the cricondenbar), so the extreme value is right to second order in the vertex's
-    error. ``position`` is where the point falls between the traced rows (a fractional
-    index), None when the traced point itself is kept."""
+    Around the highest traced point the curve is parameterized by the other variable (P for
+    the cricondentherm, T for the cricondenbar); the point where d u[index] / d u[other] = 0
+    (that slope is the sensitivity of the point solved with u[other] specified) is found by
+    bracketed root finding between the neighbours, where the slope changes sign. ``position``
+    is where the point falls between the traced rows (a fractional index), None when the
+    traced point itself is kept (an end of the curve, a gap, the critical point next to it,
+    or no sign change)."""
     u = curve.u
     i = int(np.nanargmax(u[:, index]))
-    if i == 0 or i == len(u) - 1 or not np.isfinite(u[i - 1:i + 2]).all():
+    if i == 0 or i == len(u) - 1 or not np.isfinite(u[i - 1:i + 2]).all() \
+            or len(set(curve.flipped[i - 1:i + 2].tolist())) > 1:
         return u[i], None
     other = n + 1 if index == n else n
-    seg = np.hypot(np.diff(u[i - 1:i + 2, n]), np.diff(u[i - 1:i + 2, n + 1]))
-    s = np.array([0.0, seg[0], seg[0] + seg[1]])
-    a = np.polyfit(s, u[i - 1:i + 2, index], 2)
-    s_top = -a[1] / (2 * a[0]) if a[0] < 0 else s[1]
-    s_top = float(np.clip(s_top, s[0], s[2]))
-    other_value = float(np.polyval(np.polyfit(s, u[i - 1:i + 2, other], 2), s_top))
-    j = i - 1 if s_top < s[1] else i
-    w = (s_top - s[j - i + 1]) / (s[j - i + 2] - s[j - i + 1])
-    guess = u[j] + w * (u[j + 1] - u[j])
-    guess[other] = other_value
-    if curve.flipped[j] != curve.flipped[j + 1]:
-        return u[i], None                  # the vertex lies across the critical point: keep the point
-    solved = _solve_point(model, guess, z, 0.0, other, bool(curve.flipped[j]))
-    if solved.converged[0] and solved.u[0, index] >= u[i, index]:
-        return solved.u[0], j + min(max(w, 0.01), 0.99)
-    return u[i], None
+    flip = bool(curve.flipped[i])
+    near = u[i - 1:i + 2]
+    order = np.argsort(near[:, other])
+
+    def solve_at(x):
+        guess = np.array([np.interp(x, near[order, other], near[order, j]) for j in range(n + 2)])
+        return _solve_point(model, guess, z, 0.0, other, flip, maxiter=20)
+
+    def slope(x, _rows):
+        out = np.full(np.shape(x), np.nan)
+        for r, value in enumerate(np.atleast_1d(x)):
+            solved = solve_at(value)
+            if solved.converged[0]:
+                out.flat[r] = solved.sensitivity[0, index]
+        return out
+
+    lo, hi = float(near[order[0], other]), float(near[order[-1], other])
+    ends = slope(np.array([lo, hi]), None)
+    if not (np.isfinite(ends).all() and ends[0] * ends[1] < 0):
+        return u[i], None
+    found = find_root(slope, bracket=(np.array([lo]), np.array([hi])), args=(np.array([0]),), xtol=1e-12,
+                      trace=False)
+    if not bool(np.asarray(found.converged)[0]):
+        return u[i], None
+    top = solve_at(float(np.asarray(found.root)[0]))
+    if not top.converged[0] or top.u[0, index] < u[i, index]:
+        return u[i], None
+    x = top.u[0, other]
+    j = i - 1 if (x - u[i, other]) * (u[i - 1, other] - u[i, other]) > 0 else i
+    w = (x - u[j, other]) / (u[j + 1, other] - u[j, other])
+    return top.u[0], j + min(max(float(w), 0.01), 0.99)
 
 
 def _with_special_points(model, z, curve, n):
