@@ -40,10 +40,10 @@ def executed(tmp_path_factory):
         return {name: run.result() for name, run in runs.items()}
 
 
-def test_there_are_the_five_notebooks():
+def test_there_are_the_six_notebooks():
     assert [p.name for p in NOTEBOOKS] == ["01_state_point.ipynb", "02_isotherm.ipynb",
                                           "03_model_accuracy.ipynb", "04_closed_vessel_heatup.ipynb",
-                                          "05_energy_duties.ipynb"]
+                                          "05_energy_duties.ipynb", "06_mixtures.ipynb"]
 
 
 @pytest.mark.parametrize("path", NOTEBOOKS, ids=lambda p: p.stem)
@@ -112,3 +112,25 @@ def test_closed_vessel_answers_its_question_with_the_numbers_of_its_own_plot(exe
     assert f"{T_rated - 273.15:.1f} °C" in shown and f"{T_rated_ref - 273.15:.1f} °C" in shown
     assert "licensed engineer" in shown and "Caution." in shown
     assert np.isfinite(T_rated_ref)
+
+
+def test_mixtures_notebook_quotes_the_librarys_own_answers(executed):
+    """Notebook 06: the letdown's outlet temperature, the drum's vapour fraction and the blend's
+    glide it quotes are those of direct solves of the site's duties (demo.MIXTURE_EQUIPMENT)."""
+    import thermo_roots as tr
+    from thermo_roots import demo
+
+    nb, error = executed["06_mixtures.ipynb"]
+    if error is not None:
+        raise error
+    shown = _markdown_outputs(nb)
+    pcv, drum, coil = (demo.MIXTURE_EQUIPMENT[t] for t in ("PCV-610", "V-640", "E-220"))
+    fuel = tr.PengRobinson(pcv.mixture(), kij="fitted")
+    outlet = tr.solve(fuel, P=pcv.outlet_pressure, h=tr.solve(fuel, **pcv.duty).h)
+    assert f"**{outlet.T - 273.15:.1f} °C**" in shown
+    split = tr.solve(tr.PengRobinson(drum.mixture(), kij="fitted"), **drum.duty)
+    assert f"**{100 * split.vapor_fraction:.1f} %**" in shown
+    blend = tr.PengRobinson(coil.mixture(), kij="fitted")
+    glide = float(tr.dew_point(blend, P=coil.duty["P"]).T - tr.bubble_point(blend, P=coil.duty["P"]).T)
+    assert f"a glide of **{glide:.1f} K**" in shown
+    assert "licensed" in shown and "hydrates" in shown
