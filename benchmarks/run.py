@@ -350,6 +350,20 @@ def check_caloric(table, model, T, P, n, repeat):
               "h, s, cp, w of every state; " + ("compiled caloric loop" if _accel.available() else "numpy path"))
 
 
+def check_mixture_flash(table, quick):
+    """Row 8: the (T, P) flash of a six-component natural gas (benchmarks/mixture_flash.py)."""
+    from mixture_flash import mixture_flash_row
+
+    row = mixture_flash_row(400, 6, 1) if quick else mixture_flash_row()
+    table.add(f"8  mixture flash, {row['states']:.0e} states", f"{row['ours_us_per_state']:.1f} us",
+              f"CoolProp PR mixture {row['reference_us_per_state_mean']:.0f} us", speed(row["ratio"]),
+              f">= {row['target_ratio']:.0f}x", row["ratio"] >= row["target_ratio"] and
+              row["converged"] == row["states"],
+              f"{row['converged']}/{row['states']} converged, {row['two_phase']} two-phase; CoolProp on "
+              f"{row['reference_states']} of them (mean), {row['phase_count_disagreements']} phase-count "
+              f"disagreements, beta within {row['max_vapor_fraction_difference']:.1e}")
+
+
 # --------------------------------------------------------------------------- main
 
 def header():
@@ -381,15 +395,15 @@ def main(argv=None):
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     parser.add_argument("--quick", action="store_true", help="tiny sizes, for the test suite")
     parser.add_argument("--repeat", type=int, default=None, help="timed repeats per measurement")
-    parser.add_argument("--checks", default="1,2,3,4,5,6,7",
+    parser.add_argument("--checks", default="1,2,3,4,5,6,7,8",
                         help="comma-separated check numbers to run (default all), e.g. --checks 1,2,3,7")
     args = parser.parse_args(argv)
     try:
         checks = {int(x) for x in args.checks.split(",") if x.strip()}
     except ValueError:
-        parser.error(f"--checks takes numbers 1-7 separated by commas, e.g. 1,2,3,7; got {args.checks!r}")
-    if not checks or not checks <= set(range(1, 8)):
-        parser.error(f"--checks takes numbers 1-7 separated by commas, e.g. 1,2,3,7; got {args.checks!r}")
+        parser.error(f"--checks takes numbers 1-8 separated by commas, e.g. 1,2,3,7; got {args.checks!r}")
+    if not checks or not checks <= set(range(1, 9)):
+        parser.error(f"--checks takes numbers 1-8 separated by commas, e.g. 1,2,3,7; got {args.checks!r}")
     quick = args.quick
     repeat = args.repeat or (2 if quick else 5)
     header()
@@ -410,6 +424,8 @@ def main(argv=None):
         check_energy(table, tr.PengRobinson(tr.get_fluid(FLUID)), n=2000 if quick else 10**5,
                      n_ref=200 if quick else 2000, n_caloric=2000 if quick else 10**6, repeat=repeat,
                      rows=tuple(sorted(checks & {6, 7})))
+    if 8 in checks:
+        check_mixture_flash(table, quick)
     table.print()
     print()
     print("Ratios from one run on a shared machine; repeat runs move them by 10-20 %.")
