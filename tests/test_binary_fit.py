@@ -85,3 +85,11 @@ def test_bad_kij_text_and_fit_requests_are_refused_with_what_to_give():
         fit_kij("PR", "CO2", "carbon dioxide")
     with pytest.raises(tr.InputError, match="both T and x_light"):
         fit_kij("PR", "methane", "ethane", T=[200.0])
+
+
+def test_a_state_says_which_pairs_got_no_fitted_kij():
+    model = tr.PengRobinson(tr.Mixture({"methane": 0.9, "n-decane": 0.1}), kij="fitted")
+    state = tr.solve(model, T=300.0, P=5e6)
+    assert any("methane + n-decane" in w and "fit_kij" in w for w in state.warnings)
+    assert not any("fitted table" in w for w in tr.solve(tr.PengRobinson(tr.Mixture({"methane": 0.9, "CO2": 0.1}),
+                                                                          kij="fitted"), T=300.0, P=5e6).warnings)

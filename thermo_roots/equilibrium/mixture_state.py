@@ -337,6 +337,12 @@ def solve_mixture(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHE
         return a
 
     warnings = ()
+    missing = getattr(model, "kij_missing", ())
+    if missing:
+        pairs = ", ".join(f"{a} + {b}" for a, b in missing)
+        warnings += (f"kᵢⱼ = 0 for {pairs}: the fitted table has no value for "
+                     f"{'this pair' if len(missing) == 1 else 'these pairs'}; give one (kij={{...}}) or fit it "
+                     "(thermo_roots.fit_kij) if the split matters.",)
     if bad.size:
         warnings += (f"{bad.size} of {status.size} states are not solved (NaN); .reason says why for each.",)
     if np.any(np.asarray(flash.phase) == "two-phase"):
