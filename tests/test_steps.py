@@ -136,6 +136,23 @@ def test_no_solid_warning_above_the_triple_point(co2):
     assert not any("Solid may form" in w for w in result.warnings)
 
 
+def test_a_warm_gas_let_down_below_the_triple_point_pressure_is_not_warned_of_solid(co2):
+    # CO2 gas at 40 °C and 50 bar let down to 1 atm leaves at about -23 °C, far above its
+    # sublimation temperature there (-78.5 °C; common practice), so no dry ice forms; the
+    # reference equation's own (P, h) solve agrees that the outlet is a vapor.
+    result = tr.throttle(co2, tr.solve(co2, T=313.15, P=50e5), 101325.0)
+    assert result.outlet.phase == "vapor" and result.outlet.T > 273.15 - 30.0
+    assert not any("olid" in w for w in result.warnings)
+    ref = heos("CarbonDioxide")
+    ref.update(CoolProp.PT_INPUTS, 50e5, 313.15)
+    ref.update(CoolProp.HmolarP_INPUTS, ref.hmolar(), 101325.0)
+    assert ref.T() == pytest.approx(result.outlet.T, abs=3.0)
+    # the same let-down of the liquid (a vent) does warn: liquid cannot exist below 5.18 bar
+    vent = tr.throttle(co2, tr.solve(co2, T=290.0, P=60e5), 101325.0)
+    assert vent.outlet.phase == "two-phase"
+    assert sum("Solid may form" in w and "cannot exist" in w for w in vent.warnings) == 1
+
+
 def test_constant_volume_heating_of_a_co2_cylinder(co2):
     # 0.3 kg CO2 in 0.5 L (600 kg/m³) from 20 °C to 100 barg
     fill = tr.solve(co2, T="20 degC", rho_mass=0.3 / 0.5e-3)

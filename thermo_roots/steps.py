@@ -288,14 +288,23 @@ def _outlet_enthalpy(kind, efficiency):
 # --------------------------------------------------------------------------- warnings
 
 def _outlet_warnings(model, outlet, P_out):
-    """The outlet's own warnings, and a solid-formation sentence below the triple point."""
+    """The outlet's own warnings, and a solid-formation sentence below the triple point.
+
+    Solid may form where the outlet is colder than the triple point, or where it holds
+    liquid (liquid or two-phase in the model) below the triple-point pressure: no real
+    liquid exists there (common practice: the phase diagram of a pure substance). A vapor
+    outlet below that pressure but warmer than the triple point is clear of the solid (the
+    sublimation curve lies below the triple-point temperature), so it is not warned of.
+    """
     notes = list(outlet.warnings)
     fluid = model.fluid
     solid = "dry ice" if fluid.library_name == "CarbonDioxide" or fluid.name == "carbon dioxide" else "solid"
     T = np.asarray(outlet.T, dtype=float)
     cold = fluid.T_triple is not None and np.any(T < fluid.T_triple)
     P_triple = _triple_pressure(model)
-    low = P_triple is not None and np.any(np.asarray(P_out) < P_triple)
+    P_out = np.broadcast_to(np.asarray(P_out, dtype=float), T.shape)
+    with_liquid = np.isin(np.asarray(outlet.phase, dtype=object), ("liquid", "two-phase"))
+    low = P_triple is not None and np.any((P_out < P_triple) & with_liquid)
     if cold or low:
         # The step's sentence below says more (pressure too, in °C and bar): the outlet
         # state's own triple-point sentence would repeat it.
@@ -305,8 +314,8 @@ def _outlet_warnings(model, outlet, P_out):
             where.append(f"the outlet temperature {np.min(T) - 273.15:.4g} °C is below the triple-point "
                          f"temperature {fluid.T_triple - 273.15:.4g} °C")
         if low:
-            where.append(f"the outlet pressure {np.min(P_out) / 1e5:.4g} bar is below the triple-point pressure "
-                         f"{P_triple / 1e5:.4g} bar")
+            where.append(f"the outlet pressure {np.min(P_out[with_liquid]) / 1e5:.4g} bar is below the triple-point "
+                         f"pressure {P_triple / 1e5:.4g} bar, where the liquid the model shows cannot exist")
         notes.append(f"Solid may form at the outlet ({solid} for {fluid.name}): {' and '.join(where)}. "
                      f"{'Dry ice can block the line or the valve. ' if solid == 'dry ice' else ''}"
                      f"The cubic equation does not model the solid, so its outlet temperature and quality there "
