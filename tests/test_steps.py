@@ -177,6 +177,25 @@ def test_constant_volume_heating_of_a_co2_cylinder(co2):
     assert CAUTION in repr(result)
 
 
+def test_a_step_display_marks_what_is_beyond_the_screening_thresholds(co2, propane):
+    # the CO2 cylinder's heat is 31 % below the reference's (measured above): the display says
+    # so in words, not only in a number; a compressor within 1 % says nothing of the kind
+    fill = tr.solve(co2, T="20 degC", rho_mass=600.0)
+    vessel = tr.heat_at_constant_volume(co2, fill, mass=0.3, P="100 barg")
+    assert abs(vessel.deviation_heat_percent) > tr.reference.LARGE_DEVIATION_PERCENT
+    for text in (repr(vessel), vessel._repr_html_()):
+        assert "Beyond the screening thresholds" in text and f"heat {vessel.deviation_heat_percent:+.3g} %" in text
+        assert "Pressure [bar abs]" in text   # a vessel's rating is in barg: say which the table shows
+    stage = tr.compress(propane, tr.solve(propane, P=2e5, quality=1.0), "15 bar", 0.75)
+    assert "Beyond the screening" not in repr(stage)
+    assert "quality" not in next(line for line in stage._energy_lines() if line.startswith("Outlet temperature"))
+    # a reference that has no outlet: its reason stands, no line of dashes; the solid warning first
+    vent = tr.throttle(co2, tr.solve(co2, P=20e5, quality=0.0), "1 bar")
+    assert not vent.reference.available
+    assert not any(line.startswith("Outlet temperature") for line in vent._energy_lines())
+    assert vent.warnings[0].startswith("Solid may form")
+
+
 def test_constant_volume_to_a_temperature_and_cooling(propane):
     fill = tr.solve(propane, T=300.0, P=1e5)
     hot = tr.heat_at_constant_volume(propane, fill, mass=2.0, T=350.0)

@@ -39,7 +39,8 @@ from .errors import InputError
 from .inversion import CAUTION, State, solve
 from .inversion.phases import phase_text
 from .models import _scalar_or_array
-from .reference import convention_offset, library_reason, reference_limits
+from .reference import (LARGE_DEVIATION_K, LARGE_DEVIATION_PERCENT, convention_offset, library_reason,
+                        reference_limits)
 from .reference.steps import ReferenceStep, reference_flow_step, reference_vessel_step
 from .units import STANDARD_ATMOSPHERE, to_si
 
@@ -137,7 +138,7 @@ class StepResult:
         dh, ds = convention_offset(self.inlet.model)
         shift = {"h": dh, "s": ds}
         rows = [("Phase", phase(self.inlet), phase(self.outlet), phase(r_in), phase(r_out))]
-        for label, name, scale, offset in (("Temperature [°C]", "T", 1.0, -273.15), ("Pressure [bar]", "P", 1e-5, 0.0),
+        for label, name, scale, offset in (("Temperature [°C]", "T", 1.0, -273.15), ("Pressure [bar abs]", "P", 1e-5, 0.0),
                                            ("Vapor quality [-]", "quality", 1.0, 0.0),
                                            ("Specific enthalpy h [kJ/kg]", "h", 1e-3 / M, 0.0),
                                            ("Specific entropy s [kJ/(kg K)]", "s", 1e-3 / M, 0.0),
@@ -163,11 +164,29 @@ class StepResult:
                          f"{_signed(self.deviation_heat_percent, '%')}")
         else:
             lines.append("Adiabatic, no work: h_out = h_in.")
-        lines.append(f"Outlet temperature, model - reference: {_signed(self.deviation_T_K, 'K')}; quality: "
-                     f"{_signed(self.deviation_quality, '')}")
-        if not ref.available:
+        if ref.available:
+            quality = (f"; quality {_signed(self.deviation_quality, '')}"
+                       if math.isfinite(_scalar(self.deviation_quality)) else "")
+            lines.append(f"Outlet temperature, model - reference: {_signed(self.deviation_T_K, 'K')}{quality}")
+        else:
             lines.append(f"Reference step {ref.reason}")
+        large = self._large_deviations()
+        if large:
+            lines.append(f"Beyond the screening thresholds (±{LARGE_DEVIATION_PERCENT:g} %, ±{LARGE_DEVIATION_K:g} K): "
+                         f"{', '.join(large)}. Do not rely on the model's number here.")
         return lines
+
+    def _large_deviations(self) -> list[str]:
+        """What of a scalar step differs from the reference by more than the thresholds the
+        cross-check and the panels mark (LARGE_DEVIATION_PERCENT, LARGE_DEVIATION_K)."""
+        out = []
+        for label, value, limit, unit in (("work", self.deviation_work_percent, LARGE_DEVIATION_PERCENT, "%"),
+                                          ("heat", self.deviation_heat_percent, LARGE_DEVIATION_PERCENT, "%"),
+                                          ("outlet temperature", self.deviation_T_K, LARGE_DEVIATION_K, "K")):
+            x = _scalar(value)
+            if math.isfinite(x) and abs(x) > limit:
+                out.append(f"{label} {_signed(x, unit)}")
+        return out
 
     def __repr__(self):
         model = self.inlet.model
@@ -233,8 +252,13 @@ def _celsius(x):
     return "-" if not math.isfinite(x) else f"{x - 273.15:.5g}"
 
 
+def _scalar(x):
+    """A float of a scalar value; NaN for an array (the display shows one step)."""
+    return float(x) if np.ndim(x) == 0 else math.nan
+
+
 def _signed(x, unit):
-    x = float(x) if np.ndim(x) == 0 else math.nan
+    x = _scalar(x)
     return "-" if not math.isfinite(x) else f"{x:+.3g} {unit}".rstrip()
 
 
@@ -316,7 +340,7 @@ def _outlet_warnings(model, outlet, P_out):
         if low:
             where.append(f"the outlet pressure {np.min(P_out[with_liquid]) / 1e5:.4g} bar is below the triple-point "
                          f"pressure {P_triple / 1e5:.4g} bar, where the liquid the model shows cannot exist")
-        notes.append(f"Solid may form at the outlet ({solid} for {fluid.name}): {' and '.join(where)}. "
+        notes.insert(0, f"Solid may form at the outlet ({solid} for {fluid.name}): {' and '.join(where)}. "
                      f"{'Dry ice can block the line or the valve. ' if solid == 'dry ice' else ''}"
                      f"The cubic equation does not model the solid, so its outlet temperature and quality there "
                      f"are not physical.")
