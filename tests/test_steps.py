@@ -186,6 +186,7 @@ def test_a_step_display_marks_what_is_beyond_the_screening_thresholds(co2, propa
     for text in (repr(vessel), vessel._repr_html_()):
         assert "Beyond the screening thresholds" in text and f"heat {vessel.deviation_heat_percent:+.3g} %" in text
         assert "Pressure [bar abs]" in text   # a vessel's rating is in barg: say which the table shows
+    assert "<b>Beyond the screening thresholds" in vessel._repr_html_()
     stage = tr.compress(propane, tr.solve(propane, P=2e5, quality=1.0), "15 bar", 0.75)
     assert "Beyond the screening" not in repr(stage)
     assert "quality" not in next(line for line in stage._energy_lines() if line.startswith("Outlet temperature"))

@@ -172,7 +172,7 @@ class StepResult:
             lines.append(f"Reference step {ref.reason}")
         large = self._large_deviations()
         if large:
-            lines.append(f"Beyond the screening thresholds (±{LARGE_DEVIATION_PERCENT:g} %, ±{LARGE_DEVIATION_K:g} K): "
+            lines.append(f"{_BEYOND} (±{LARGE_DEVIATION_PERCENT:g} %, ±{LARGE_DEVIATION_K:g} K): "
                          f"{', '.join(large)}. Do not rely on the model's number here.")
         return lines
 
@@ -218,10 +218,14 @@ class StepResult:
             return f"<div><p><b>{title}</b></p>{vessel}<pre>{esc(repr(self))}</pre>{caution}</div>"
         head = "".join(f"<th>{esc(h)}</th>" for h in ("", "inlet", "outlet", "reference inlet", "reference outlet"))
         body = "".join("<tr>" + "".join(f"<td>{esc(c)}</td>" for c in row) + "</tr>" for row in self.rows())
-        lines = "".join(f"<p>{esc(line)}</p>" for line in self._energy_lines())
+        lines = "".join(f"<p><b>{esc(line)}</b></p>" if line.startswith(_BEYOND) else f"<p>{esc(line)}</p>"
+                        for line in self._energy_lines())
         notes = "".join(f"<p><b>Warning.</b> {esc(w)}</p>" for w in self.warnings)
         return (f"<div>{vessel}<table><caption>{title}</caption><tr>{head}</tr>{body}</table>{lines}{notes}"
                 f"{caution}</div>")
+
+
+_BEYOND = "Beyond the screening thresholds"   # the display's line of large deviations
 
 
 def _ref_attr(state, name):
