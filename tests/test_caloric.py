@@ -165,6 +165,19 @@ def test_every_root_carries_its_properties(propane):
     assert vapor_root.h == pytest.approx(st.h, rel=1e-12)   # the stable root is the state
 
 
+def test_every_root_carries_the_per_kilogram_twins(propane):
+    # the same public names on a Root as on a State: h_mass, s_mass, u_mass, cp_mass, cv_mass
+    st = tr.solve(tr.PengRobinson(propane), T=300.0, P=9e5)
+    M = propane.molar_mass
+    for root in st.roots:
+        for molar in ("h", "s", "u", "cp", "cv"):
+            assert getattr(root, f"{molar}_mass") == pytest.approx(getattr(root, molar) / M, rel=1e-15)
+    stable = [r for r in st.roots if r.stable]
+    assert len(stable) == 1
+    for name in ("h_mass", "s_mass", "u_mass", "cp_mass", "cv_mass"):
+        assert getattr(stable[0], name) == pytest.approx(getattr(st, name), rel=1e-12)
+
+
 def test_arrays_in_arrays_out(propane):
     model = tr.SoaveRedlichKwong(propane)
     T = np.linspace(250.0, 400.0, 7)

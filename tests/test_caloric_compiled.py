@@ -84,6 +84,20 @@ def test_the_compiled_loop_agrees_with_the_numpy_path(short, options, fluid_name
     _agree(caloric(model, T, v), _numpy(model, T, v), T, v)
 
 
+def test_several_chunks_agree_with_the_numpy_path_chunk_by_chunk():
+    # the loop adds the Planck-Einstein terms into its scratch rows in place; each chunk of
+    # _accel.CHUNK states refills them, so a last, shorter chunk and every chunk between must
+    # agree with the numpy path as the first does (CO2: five Planck-Einstein terms)
+    model = tr.PengRobinson(tr.get_fluid("CO2"))
+    T, v, P = _states(model, 2 * _accel.CHUNK + 1234, seed=7)
+    for given in (P, None):
+        fast = caloric(model, T, v, given)
+        _agree(fast, _numpy(model, T, v, given), T, v)
+        one = caloric(model, T[-5:].repeat(1000), v[-5:].repeat(1000), None if given is None else P[-5:].repeat(1000))
+        for name in ("h", "cp", "w"):   # the last chunk's states alone give the same numbers
+            np.testing.assert_allclose(getattr(one, name)[::1000], getattr(fast, name)[-5:], rtol=1e-14)
+
+
 def _numpy(model, T, v, P=None):
     with _accel.disabled():
         return caloric(model, T, v, P)

@@ -95,3 +95,13 @@ def test_models_are_parameter_sets_of_one_implementation():
         assert issubclass(cls, tr.CubicModel)
         own = {k for k, v in vars(cls).items() if callable(v) and not k.startswith("__")}
         assert own == set(), f"{cls.__name__} defines {own}"
+
+
+def test_every_model_class_names_its_equation():
+    # a menu or a table names a model class without asking which kind it is (issue 9 §1:
+    # no family identity checks outside the model layer)
+    for short, cls in tr.MODELS.items():
+        assert cls.short_name == short and cls.name
+        if issubclass(cls, tr.CubicModel):
+            assert cls.name == cls.family.name == cls(tr.get_fluid("propane")).name
+    assert tr.IdealGas.name == "ideal gas"

@@ -136,6 +136,23 @@ def test_no_solid_warning_above_the_triple_point(co2):
     assert not any("Solid may form" in w for w in result.warnings)
 
 
+def test_a_warm_gas_let_down_below_the_triple_point_pressure_is_not_warned_of_solid(co2):
+    # CO2 gas at 40 °C and 50 bar let down to 1 atm leaves at about -23 °C, far above its
+    # sublimation temperature there (-78.5 °C; common practice), so no dry ice forms; the
+    # reference equation's own (P, h) solve agrees that the outlet is a vapor.
+    result = tr.throttle(co2, tr.solve(co2, T=313.15, P=50e5), 101325.0)
+    assert result.outlet.phase == "vapor" and result.outlet.T > 273.15 - 30.0
+    assert not any("olid" in w for w in result.warnings)
+    ref = heos("CarbonDioxide")
+    ref.update(CoolProp.PT_INPUTS, 50e5, 313.15)
+    ref.update(CoolProp.HmolarP_INPUTS, ref.hmolar(), 101325.0)
+    assert ref.T() == pytest.approx(result.outlet.T, abs=3.0)
+    # the same let-down of the liquid (a vent) does warn: liquid cannot exist below 5.18 bar
+    vent = tr.throttle(co2, tr.solve(co2, T=290.0, P=60e5), 101325.0)
+    assert vent.outlet.phase == "two-phase"
+    assert sum("Solid may form" in w and "cannot exist" in w for w in vent.warnings) == 1
+
+
 def test_constant_volume_heating_of_a_co2_cylinder(co2):
     # 0.3 kg CO2 in 0.5 L (600 kg/m³) from 20 °C to 100 barg
     fill = tr.solve(co2, T="20 degC", rho_mass=0.3 / 0.5e-3)
@@ -158,6 +175,26 @@ def test_constant_volume_heating_of_a_co2_cylinder(co2):
     assert abs(result.deviation_heat_percent) < 40.0
     assert "PRESSURE EQUIPMENT" in repr(result) and "PRESSURE EQUIPMENT" in result._repr_html_()
     assert CAUTION in repr(result)
+
+
+def test_a_step_display_marks_what_is_beyond_the_screening_thresholds(co2, propane):
+    # the CO2 cylinder's heat is 31 % below the reference's (measured above): the display says
+    # so in words, not only in a number; a compressor within 1 % says nothing of the kind
+    fill = tr.solve(co2, T="20 degC", rho_mass=600.0)
+    vessel = tr.heat_at_constant_volume(co2, fill, mass=0.3, P="100 barg")
+    assert abs(vessel.deviation_heat_percent) > tr.reference.LARGE_DEVIATION_PERCENT
+    for text in (repr(vessel), vessel._repr_html_()):
+        assert "Beyond the screening thresholds" in text and f"heat {vessel.deviation_heat_percent:+.3g} %" in text
+        assert "Pressure [bar abs]" in text   # a vessel's rating is in barg: say which the table shows
+    assert "<b>Beyond the screening thresholds" in vessel._repr_html_()
+    stage = tr.compress(propane, tr.solve(propane, P=2e5, quality=1.0), "15 bar", 0.75)
+    assert "Beyond the screening" not in repr(stage)
+    assert "quality" not in next(line for line in stage._energy_lines() if line.startswith("Outlet temperature"))
+    # a reference that has no outlet: its reason stands, no line of dashes; the solid warning first
+    vent = tr.throttle(co2, tr.solve(co2, P=20e5, quality=0.0), "1 bar")
+    assert not vent.reference.available
+    assert not any(line.startswith("Outlet temperature") for line in vent._energy_lines())
+    assert vent.warnings[0].startswith("Solid may form")
 
 
 def test_constant_volume_to_a_temperature_and_cooling(propane):

@@ -180,9 +180,7 @@ def caloric_kernel(model):
                 T = np.where((T > 0) & (T < np.inf), T, np.nan)   # positive, or tau = T_r/T is not
             if not (v > 0).all():
                 v = np.where(v > 0, v, np.nan)
-            out = np.empty((10, n))
-            if given_P:   # P is passed through, as on the numpy path: no row to fill
-                out = out[:9]
+            out = np.empty((10, n))   # row 0 is P (the given one, passed through, where P is known)
             planck = terms.planck_einstein
             logs = np.empty((8 + 2 * planck.shape[0], min(n, CHUNK)))
             d1, d2 = cubic.delta1, cubic.delta2
@@ -200,8 +198,8 @@ def caloric_kernel(model):
                 rows[7] = models.cubic_log_ratio(w + d1 * cubic.b, w + d2 * cubic.b, d1, d2)
                 kernels.caloric_loop(T_part, v_part, P[part], given_P, cubic, planck, rows, ideal.R, dR, R, M, out[:, part])
         RUNS["caloric"] += 1
-        fields = (P.reshape(shape),) if given_P else ()
-        return fields + tuple(row.reshape(shape) for row in out)
+        first = P if given_P else out[0]   # a given P is returned as the numpy path returns it
+        return (first.reshape(shape),) + tuple(row.reshape(shape) for row in out[1:])
 
     return run
 

@@ -573,6 +573,11 @@ class CubicModel(Model):
 
     family: CubicFamily
 
+    def __init_subclass__(cls, **kwargs):
+        super().__init_subclass__(**kwargs)
+        if "family" in cls.__dict__:   # the class names its equation, as IdealGas.name does
+            cls.name = cls.family.name
+
     def __init__(self, fluid, family: CubicFamily | None = None, volume_shift=0.0,
                  reference_state: str = "reference", kij=None):
         who = f"{type(self).__name__}(fluid)"

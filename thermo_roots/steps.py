@@ -39,7 +39,8 @@ from .errors import InputError
 from .inversion import CAUTION, State, solve
 from .inversion.phases import phase_text
 from .models import _scalar_or_array
-from .reference import convention_offset, library_reason, reference_limits
+from .reference import (LARGE_DEVIATION_K, LARGE_DEVIATION_PERCENT, convention_offset, library_reason,
+                        reference_limits)
 from .reference.steps import ReferenceStep, reference_flow_step, reference_vessel_step
 from .units import STANDARD_ATMOSPHERE, to_si
 
@@ -137,7 +138,7 @@ class StepResult:
         dh, ds = convention_offset(self.inlet.model)
         shift = {"h": dh, "s": ds}
         rows = [("Phase", phase(self.inlet), phase(self.outlet), phase(r_in), phase(r_out))]
-        for label, name, scale, offset in (("Temperature [°C]", "T", 1.0, -273.15), ("Pressure [bar]", "P", 1e-5, 0.0),
+        for label, name, scale, offset in (("Temperature [°C]", "T", 1.0, -273.15), ("Pressure [bar abs]", "P", 1e-5, 0.0),
                                            ("Vapor quality [-]", "quality", 1.0, 0.0),
                                            ("Specific enthalpy h [kJ/kg]", "h", 1e-3 / M, 0.0),
                                            ("Specific entropy s [kJ/(kg K)]", "s", 1e-3 / M, 0.0),
@@ -163,11 +164,29 @@ class StepResult:
                          f"{_signed(self.deviation_heat_percent, '%')}")
         else:
             lines.append("Adiabatic, no work: h_out = h_in.")
-        lines.append(f"Outlet temperature, model - reference: {_signed(self.deviation_T_K, 'K')}; quality: "
-                     f"{_signed(self.deviation_quality, '')}")
-        if not ref.available:
+        if ref.available:
+            quality = (f"; quality {_signed(self.deviation_quality, '')}"
+                       if math.isfinite(_scalar(self.deviation_quality)) else "")
+            lines.append(f"Outlet temperature, model - reference: {_signed(self.deviation_T_K, 'K')}{quality}")
+        else:
             lines.append(f"Reference step {ref.reason}")
+        large = self._large_deviations()
+        if large:
+            lines.append(f"{_BEYOND} (±{LARGE_DEVIATION_PERCENT:g} %, ±{LARGE_DEVIATION_K:g} K): "
+                         f"{', '.join(large)}. Do not rely on the model's number here.")
         return lines
+
+    def _large_deviations(self) -> list[str]:
+        """What of a scalar step differs from the reference by more than the thresholds the
+        cross-check and the panels mark (LARGE_DEVIATION_PERCENT, LARGE_DEVIATION_K)."""
+        out = []
+        for label, value, limit, unit in (("work", self.deviation_work_percent, LARGE_DEVIATION_PERCENT, "%"),
+                                          ("heat", self.deviation_heat_percent, LARGE_DEVIATION_PERCENT, "%"),
+                                          ("outlet temperature", self.deviation_T_K, LARGE_DEVIATION_K, "K")):
+            x = _scalar(value)
+            if math.isfinite(x) and abs(x) > limit:
+                out.append(f"{label} {_signed(x, unit)}")
+        return out
 
     def __repr__(self):
         model = self.inlet.model
@@ -199,10 +218,14 @@ class StepResult:
             return f"<div><p><b>{title}</b></p>{vessel}<pre>{esc(repr(self))}</pre>{caution}</div>"
         head = "".join(f"<th>{esc(h)}</th>" for h in ("", "inlet", "outlet", "reference inlet", "reference outlet"))
         body = "".join("<tr>" + "".join(f"<td>{esc(c)}</td>" for c in row) + "</tr>" for row in self.rows())
-        lines = "".join(f"<p>{esc(line)}</p>" for line in self._energy_lines())
+        lines = "".join(f"<p><b>{esc(line)}</b></p>" if line.startswith(_BEYOND) else f"<p>{esc(line)}</p>"
+                        for line in self._energy_lines())
         notes = "".join(f"<p><b>Warning.</b> {esc(w)}</p>" for w in self.warnings)
         return (f"<div>{vessel}<table><caption>{title}</caption><tr>{head}</tr>{body}</table>{lines}{notes}"
                 f"{caution}</div>")
+
+
+_BEYOND = "Beyond the screening thresholds"   # the display's line of large deviations
 
 
 def _ref_attr(state, name):
@@ -233,8 +256,13 @@ def _celsius(x):
     return "-" if not math.isfinite(x) else f"{x - 273.15:.5g}"
 
 
+def _scalar(x):
+    """A float of a scalar value; NaN for an array (the display shows one step)."""
+    return float(x) if np.ndim(x) == 0 else math.nan
+
+
 def _signed(x, unit):
-    x = float(x) if np.ndim(x) == 0 else math.nan
+    x = _scalar(x)
     return "-" if not math.isfinite(x) else f"{x:+.3g} {unit}".rstrip()
 
 
@@ -288,14 +316,23 @@ def _outlet_enthalpy(kind, efficiency):
 # --------------------------------------------------------------------------- warnings
 
 def _outlet_warnings(model, outlet, P_out):
-    """The outlet's own warnings, and a solid-formation sentence below the triple point."""
+    """The outlet's own warnings, and a solid-formation sentence below the triple point.
+
+    Solid may form where the outlet is colder than the triple point, or where it holds
+    liquid (liquid or two-phase in the model) below the triple-point pressure: no real
+    liquid exists there (common practice: the phase diagram of a pure substance). A vapor
+    outlet below that pressure but warmer than the triple point is clear of the solid (the
+    sublimation curve lies below the triple-point temperature), so it is not warned of.
+    """
     notes = list(outlet.warnings)
     fluid = model.fluid
     solid = "dry ice" if fluid.library_name == "CarbonDioxide" or fluid.name == "carbon dioxide" else "solid"
     T = np.asarray(outlet.T, dtype=float)
     cold = fluid.T_triple is not None and np.any(T < fluid.T_triple)
     P_triple = _triple_pressure(model)
-    low = P_triple is not None and np.any(np.asarray(P_out) < P_triple)
+    P_out = np.broadcast_to(np.asarray(P_out, dtype=float), T.shape)
+    with_liquid = np.isin(np.asarray(outlet.phase, dtype=object), ("liquid", "two-phase"))
+    low = P_triple is not None and np.any((P_out < P_triple) & with_liquid)
     if cold or low:
         # The step's sentence below says more (pressure too, in °C and bar): the outlet
         # state's own triple-point sentence would repeat it.
@@ -305,9 +342,9 @@ def _outlet_warnings(model, outlet, P_out):
             where.append(f"the outlet temperature {np.min(T) - 273.15:.4g} °C is below the triple-point "
                          f"temperature {fluid.T_triple - 273.15:.4g} °C")
         if low:
-            where.append(f"the outlet pressure {np.min(P_out) / 1e5:.4g} bar is below the triple-point pressure "
-                         f"{P_triple / 1e5:.4g} bar")
-        notes.append(f"Solid may form at the outlet ({solid} for {fluid.name}): {' and '.join(where)}. "
+            where.append(f"the outlet pressure {np.min(P_out[with_liquid]) / 1e5:.4g} bar is below the triple-point "
+                         f"pressure {P_triple / 1e5:.4g} bar, where the liquid the model shows cannot exist")
+        notes.insert(0, f"Solid may form at the outlet ({solid} for {fluid.name}): {' and '.join(where)}. "
                      f"{'Dry ice can block the line or the valve. ' if solid == 'dry ice' else ''}"
                      f"The cubic equation does not model the solid, so its outlet temperature and quality there "
                      f"are not physical.")

@@ -17,10 +17,11 @@ MODELS = CUBICS + [tr.IdealGas]
 
 
 def _cases(fluid):
-    """(T, P) of a liquid, a vapor, a supercritical state and two next to the critical point."""
+    """(T, P) of a liquid, a vapor, a supercritical state and four next to the critical point."""
     Tc, Pc = fluid.Tc, fluid.Pc
     return [(0.75 * Tc, 0.5 * Pc), (0.8 * Tc, 0.02 * Pc), (1.3 * Tc, 2.0 * Pc),
-            (0.999 * Tc, 0.995 * Pc), (1.001 * Tc, 1.002 * Pc)]
+            (0.999 * Tc, 0.995 * Pc), (1.001 * Tc, 1.002 * Pc),
+            (0.99999 * Tc, 0.99998 * Pc), (1.00001 * Tc, 1.00002 * Pc)]
 
 
 def _states(model):
@@ -29,7 +30,7 @@ def _states(model):
     if model.has_saturation:
         Tc = model.fluid.Tc
         out += [tr.solve(model, T=T, quality=q) for T, q in
-                [(0.7 * Tc, 0.3), (0.9 * Tc, 0.0), (0.9 * Tc, 1.0), (0.998 * Tc, 0.5)]]
+                [(0.7 * Tc, 0.3), (0.9 * Tc, 0.0), (0.9 * Tc, 1.0), (0.998 * Tc, 0.5), (0.9999 * Tc, 0.5)]]
     return out
 
 
@@ -65,6 +66,17 @@ def test_h_s_round_trips_in_every_region(cls, propane):
         back = tr.solve(model, h=st.h, s=st.s, errors="raise")
         _same_state(back, st)
         assert back.h == pytest.approx(st.h, rel=1e-12, abs=1e-8)
+
+
+@pytest.mark.parametrize("cls", MODELS, ids=lambda c: c.short_name)
+def test_P_h_and_P_s_round_trip_in_every_region(cls, propane):
+    # the same states, through the valve's and the compressor's pair (issue 9 §4: to 1e-9 in
+    # every region, next to the critical point and on the saturated ends)
+    model = cls(propane)
+    for st in _states(model):
+        for name in ("h", "s"):
+            back = tr.solve(model, P=st.P, errors="raise", **{name: getattr(st, name)})
+            _same_state(back, st)
 
 
 @pytest.mark.parametrize("cls", CUBICS, ids=lambda c: c.short_name)
@@ -174,9 +186,9 @@ def test_u_with_rho_and_u_mass_with_v(cls, propane):
     model = cls(propane)
     for st in _states(model):
         back = tr.solve(model, u=st.u, rho=st.rho, errors="raise")
-        _same_state(back, st, tol=1e-8, ends_single=True)
+        _same_state(back, st, tol=1e-9, ends_single=True)   # issue 9 §4: round trips to 1e-9
         mass = tr.solve(model, u_mass=st.u_mass, v=st.v, errors="raise")
-        assert mass.T == pytest.approx(st.T, rel=1e-8)
+        assert mass.T == pytest.approx(st.T, rel=1e-9)
 
 
 def test_arrays_in_arrays_out(propane):

@@ -12,6 +12,7 @@ import numpy as np
 
 from ..errors import DomainError
 from ..models import REFERENCE_STATE_POINTS, R, _scalar_or_array
+from ..quantities import QUANTITIES
 from .phases import (_NOT_SOLVED_CODE, _PHASE_OBJECTS, NOT_SOLVED, UNSTABLE, _Phase, _PhaseCodes, _root_kinds,
                      _stable_index)
 from .saturation import saturation_pressure, saturation_temperature
@@ -26,6 +27,7 @@ class Root:
     ln_phi: float     #: ln of the fugacity coefficient [-]
     stable: bool      #: the root of lowest Gibbs energy at (T, P)
     caloric: object = field(default=None, repr=False)   #: properties.Caloric of this root (molar, SI)
+    molar_mass: float = field(default=float("nan"), repr=False)   #: of the model's fluid [kg/mol], for the _mass twins
 
     @property
     def fugacity_coefficient(self) -> float:
@@ -127,7 +129,8 @@ class State:
                 kind = str(self.root_kinds[i])
                 lowest = (kind != UNSTABLE) if coexist else (i == stable)
                 out.append(Root(float(v), float(self.P * v / (R * self.T)), kind,
-                                float(self.root_ln_phi[i]), bool(lowest), _root_caloric(self, v)))
+                                float(self.root_ln_phi[i]), bool(lowest), _root_caloric(self, v),
+                                float(self.model.molar_mass)))
         return tuple(out)
 
     @functools.cached_property
@@ -164,11 +167,7 @@ class State:
     w = property(lambda self: self._caloric.w, doc="Speed of sound [m/s]; NaN when two-phase.")
     mu_jt = property(lambda self: self._caloric.mu_jt, doc="Joule-Thomson coefficient [K/Pa]; NaN when two-phase.")
     kappa_T = property(lambda self: self._caloric.kappa_T, doc="Isothermal compressibility [1/Pa]; NaN when two-phase.")
-    h_mass = property(lambda self: _per_mass(self, self.h), doc="Specific enthalpy [J/kg].")
-    s_mass = property(lambda self: _per_mass(self, self.s), doc="Specific entropy [J/(kg K)].")
-    u_mass = property(lambda self: _per_mass(self, self.u), doc="Specific internal energy [J/kg].")
-    cp_mass = property(lambda self: _per_mass(self, self.cp), doc="Specific isobaric heat capacity [J/(kg K)].")
-    cv_mass = property(lambda self: _per_mass(self, self.cv), doc="Specific isochoric heat capacity [J/(kg K)].")
+    # h_mass, s_mass, u_mass, cp_mass, cv_mass: the quantities table's twins, set below the class
 
     # -- display
     def summary(self) -> list[tuple[str, str]]:
@@ -216,6 +215,23 @@ def _root_property(name):
 
 for _name in _CALORIC_NAMES:   # root.h, root.cp, root.w, ...
     setattr(Root, _name, _root_property(_name))
+
+#: The per-kilogram twins of the molar caloric properties, from the quantities table
+#: (h_mass -> h, ..., cp_mass -> cp; g has none).
+_MASS_TWINS = {QUANTITIES[n].twin: n for n in _CALORIC_NAMES if QUANTITIES[n].twin}
+
+
+def _mass_property(molar, of_state):
+    row = QUANTITIES[QUANTITIES[molar].twin]
+    doc = f"{row.heading} [{row.si_label}]: {molar} divided by the molar mass."
+    if of_state:
+        return property(lambda self: _per_mass(self, getattr(self, molar)), doc=doc)
+    return property(lambda root: getattr(root, molar) / root.molar_mass, doc=doc)
+
+
+for _twin, _molar in _MASS_TWINS.items():   # state.h_mass, root.cp_mass, ...
+    setattr(State, _twin, _mass_property(_molar, of_state=True))
+    setattr(Root, _twin, _mass_property(_molar, of_state=False))
 
 
 def _state_caloric(state):
@@ -410,7 +426,9 @@ def _far_pressure_warning(model, P):
 
 
 def _solid_warning(model, T):
-    """A sentence where T lies below the fluid's triple point: the real fluid is solid there."""
+    """A sentence where T lies below the fluid's triple point: no real liquid exists there; the
+    fluid is solid, solid and vapor, or (below its sublimation pressure) a vapor (common
+    practice: the phase diagram of a pure substance)."""
     T_triple = model.fluid.T_triple
     if T_triple is None:
         return ()
@@ -419,9 +437,10 @@ def _solid_warning(model, T):
         return ()
     where = "T is" if T.size == 1 else f"At {cold} of {T.size} states T is"
     solid = "solid (dry ice)" if model.fluid.library_name == "CarbonDioxide" else "solid"
-    return (f"{where} below the triple point of {model.fluid.name} ({T_triple:.6g} K): the real fluid is "
-            f"{solid} there, or solid and vapor, and solid may form and block a line; a cubic equation of "
-            "state does not represent the solid (it shows a liquid, a vapor or a liquid-vapor split).",)
+    return (f"{where} below the triple point of {model.fluid.name} ({T_triple:.6g} K): no liquid exists "
+            f"there; the real fluid is {solid}, or solid and vapor, unless it is a vapor below its "
+            "sublimation pressure. Solid may form and block a line; a cubic equation of state does not "
+            "represent the solid (it shows a liquid, a vapor or a liquid-vapor split).",)
 
 
 def _second_temperature_warning(T_other, count, total, model):

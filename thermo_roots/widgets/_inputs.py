@@ -15,7 +15,6 @@ import ipywidgets as w
 import numpy as np
 
 from .. import MODELS, Fluid, get_fluid, to_si
-from ..models import CubicModel
 from ..errors import ThermoRootsError
 from ..quantities import QUANTITIES
 from ..units import read_unit, registry, split_value
@@ -357,11 +356,9 @@ def to_si_molar_mass(grams_per_mol: float) -> float:
 def model_label(short: str) -> str:
     """The model's name and short name for a menu: "Peng-Robinson (PR)", "ideal gas (IG)".
 
-    A cubic's name is its family's (a class attribute); the ideal gas names itself on the class.
+    Every model class names its equation (``name``: a cubic's is its family's).
     """
-    cls = MODELS[short]
-    name = cls.family.name if issubclass(cls, CubicModel) else cls.name
-    return f"{name} ({short})"
+    return f"{MODELS[short].name} ({short})"
 
 
 class ModelField:
