@@ -448,8 +448,10 @@ class Model:
     short_name = ""
     reference_state = "reference"   # the ideal gas has no saturation to fix another zero on
     has_saturation = True
+    takes_mixtures = False   # True where the model has a mixing rule (the cubics): flash, bubble points, envelope
     n_components = 1
     is_mixture = False
+    kij_missing = ()         # pairs a kij="fitted" model left at 0
     fluid: Fluid
 
     @property
@@ -571,6 +573,7 @@ class CubicModel(Model):
     Peneloux, A., Rauzy, E. & Freze, R. (1982), Fluid Phase Equilib. 8, 7-23 (volume translation).
     """
 
+    takes_mixtures = True
     family: CubicFamily
 
     def __init_subclass__(cls, **kwargs):

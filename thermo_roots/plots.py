@@ -441,9 +441,9 @@ def plot_pxy(model, T, ax=None, *, n=41, reference=True, n_reference=9):
     """
     from .equilibrium.saturation_points import bubble_point, dew_point
 
-    if getattr(model, "n_components", 1) != 2:
-        raise InputError(f"plot_pxy draws a binary; the model has {getattr(model, 'n_components', 1)} "
-                         "component(s). Give a cubic on a two-component Mixture, e.g. "
+    if not (isinstance(model, Model) and model.n_components == 2):
+        raise InputError(f"plot_pxy draws a binary; got {model!r}. "
+                         "Give a cubic on a two-component Mixture, e.g. "
                          "PengRobinson(Mixture({'propane': 0.5, 'n-butane': 0.5})).")
     T = float(to_si(T, "T"))
     names = model.components.names

@@ -20,12 +20,12 @@ from thermo_roots.equilibrium.stability import StabilityResult, tangent_plane
 from thermo_roots.equilibrium.flash import FlashResult, flash_tp
 from thermo_roots.equilibrium.energy_flash import energy_flash
 from thermo_roots.equilibrium.phase_caloric import lever_caloric, split_caloric
-from thermo_roots.equilibrium.phase_words import mixture_phase_word, phase_words, pseudo_critical
+from thermo_roots.equilibrium.phase_words import mixture_phase_word, pseudo_critical
 from thermo_roots.equilibrium.mixture_state import MixtureState, solve_mixture
 from thermo_roots.equilibrium.saturation_points import SaturationPoint, bubble_point, dew_point
 from thermo_roots.equilibrium.envelope import PhaseEnvelope, phase_envelope
 
 __all__ = ["FlashResult", "MixtureState", "PhaseEnvelope", "RachfordRice", "STATUSES", "SaturationPoint",
            "StabilityResult", "bubble_point", "dew_point", "energy_flash", "flash_tp", "lever_caloric",
-           "mixture_phase_word", "phase_envelope", "phase_words", "pseudo_critical", "rachford_rice",
+           "mixture_phase_word", "phase_envelope", "pseudo_critical", "rachford_rice",
            "rachford_rice_function", "solve_mixture", "split_caloric", "tangent_plane", "wilson_k"]

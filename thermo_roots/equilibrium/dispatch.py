@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from thermo_roots.equilibrium.mixture_state import solve_mixture
 from thermo_roots.inversion import solve as _pure_solve
+from thermo_roots.models import Model
 from thermo_roots.units import STANDARD_ATMOSPHERE
 
 _MIXTURE_NOTE = """
@@ -25,7 +26,7 @@ _MIXTURE_NOTE = """
 
 
 def solve(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, errors: str = "nan", **knowns):
-    if getattr(model, "is_mixture", False):
+    if isinstance(model, Model) and model.is_mixture:
         return solve_mixture(model, branch=branch, atmosphere=atmosphere, errors=errors, **knowns)
     return _pure_solve(model, branch=branch, atmosphere=atmosphere, errors=errors, **knowns)
 

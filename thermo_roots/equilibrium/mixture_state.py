@@ -337,7 +337,7 @@ def solve_mixture(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHE
         return a
 
     warnings = ()
-    missing = getattr(model, "kij_missing", ())
+    missing = model.kij_missing
     if missing:
         pairs = ", ".join(f"{a} + {b}" for a, b in missing)
         warnings += (f"kᵢⱼ = 0 for {pairs}: the fitted table has no value for "

@@ -68,7 +68,7 @@ from thermo_roots.equilibrium.fugacity import PhaseFugacity, phase_fugacity
 from thermo_roots.equilibrium.k_values import WILSON_CONSTANT
 from thermo_roots.inversion._problems import Problems, check_errors_option, si_array
 from thermo_roots.inversion.display import CAUTION
-from thermo_roots.models import CubicModel, R
+from thermo_roots.models import Model, R
 from thermo_roots.roots import find_root
 from thermo_roots.units import to_si
 
@@ -504,7 +504,7 @@ def dew_point(model, T=None, P=None, *, z=None, branch="lower", errors="nan", ma
 
 
 def _check_model(model, who):
-    if not isinstance(model, CubicModel):
+    if not (isinstance(model, Model) and model.takes_mixtures):
         raise WrongTypeError(f"{who} needs a cubic mixture model, e.g. PengRobinson(Mixture({{'methane': 0.9, "
                              f"'ethane': 0.1}})); got {model!r} ({type(model).__name__}).")
 

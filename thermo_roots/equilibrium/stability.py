@@ -43,6 +43,7 @@ import numpy as np
 from thermo_roots.equilibrium.fugacity import phase_fugacity
 from thermo_roots.equilibrium.k_values import WILSON_CONSTANT
 from thermo_roots.errors import InputError, WrongTypeError
+from thermo_roots.models import Model
 
 #: A state is unstable when some trial reaches tm below minus this [-]: a margin for rounding
 #: (tm of a converged trivial or near-trivial trial is of the order of 1e-12).
@@ -143,7 +144,7 @@ class StabilityResult:
 # --------------------------------------------------------------------------- reading the states
 
 def _check_cubic(model, who: str) -> None:
-    if not (hasattr(model, "phase_coefficients") and hasattr(model, "component_ln_phi")):
+    if not (isinstance(model, Model) and model.takes_mixtures):
         raise WrongTypeError(f"{who}: the model must be a cubic (e.g. tr.PengRobinson(mixture)); got {model!r} "
                              f"({type(model).__name__}). The ideal gas has no phase split.")
 

@@ -43,7 +43,7 @@ import numpy as np
 from ..errors import InputError, WrongTypeError
 from ..fluids import as_fluid
 from ..mixtures import BINARY_TABLE_PATH, Mixture
-from ..models import MODELS, CubicModel
+from ..models import MODELS, Model
 
 #: |kᵢⱼ| searched (published kᵢⱼ of cubics for these pairs lie within about ±0.2, common practice).
 K_BOUND = 0.3
@@ -117,11 +117,11 @@ class KijFit:
 
 def _model_class(model):
     if isinstance(model, str):
-        if model not in MODELS or not issubclass(MODELS[model], CubicModel):
-            cubics = [name for name, cls in MODELS.items() if issubclass(cls, CubicModel)]
+        if model not in MODELS or not MODELS[model].takes_mixtures:
+            cubics = [name for name, cls in MODELS.items() if cls.takes_mixtures]
             raise InputError(f"fit_kij: model={model!r} is not a cubic; give one of {', '.join(cubics)}.")
         return MODELS[model]
-    if isinstance(model, type) and issubclass(model, CubicModel):
+    if isinstance(model, type) and issubclass(model, Model) and model.takes_mixtures:
         return model
     raise WrongTypeError(f"fit_kij: model must be a cubic's class or short name ('PR', 'SRK', ...), not {model!r}.")
 

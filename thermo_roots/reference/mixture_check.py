@@ -33,8 +33,9 @@ LARGE_FRACTION_DEVIATION = 0.05
 
 def is_mixture_state(state) -> bool:
     """True for a solved state of a mixture model (what :func:`cross_check_mixture` takes)."""
-    model = getattr(state, "model", None)
-    return bool(getattr(model, "is_mixture", False)) and hasattr(state, "vapor_fraction")
+    from ..equilibrium import MixtureState
+
+    return isinstance(state, MixtureState)
 
 
 @dataclass(frozen=True)
