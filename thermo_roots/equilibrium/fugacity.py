@@ -89,13 +89,25 @@ def _finite_or_nan(Z):
 
 
 def _lowest_gibbs_root(model, T, P, x, roots, coefficients):
-    """The root of each state whose phase has the lowest Σ xᵢ ln φᵢ (one root: that one)."""
-    best_Z = np.full(roots.shape[:-1], np.nan)
-    best_g = np.full(roots.shape[:-1], np.inf)
-    for k in range(roots.shape[-1]):
-        Zk = roots[..., k]
-        g = np.sum(x * model.component_ln_phi(T, P, x, Zk, coefficients), axis=-1)
+    """The root of each state whose phase has the lowest Σ xᵢ ln φᵢ (one root: that one).
+
+    ln φ is evaluated only for the states with more than one root (in a flash most states
+    have one; their ln φ at the chosen root is computed once by the caller).
+    """
+    finite = np.isfinite(roots)
+    best_Z = _finite_or_nan(np.where(finite, roots, -np.inf).max(axis=-1))
+    several = np.sum(finite, axis=-1) > 1
+    if not np.any(several):
+        return best_Z
+    T_s, P_s, x_s, roots_s = T[several], P[several], x[several], roots[several]
+    coefficients_s = tuple(c[several] for c in coefficients)
+    chosen = np.full(roots_s.shape[:-1], np.nan)
+    best_g = np.full(roots_s.shape[:-1], np.inf)
+    for k in range(roots_s.shape[-1]):
+        Zk = roots_s[..., k]
+        g = np.sum(x_s * model.component_ln_phi(T_s, P_s, x_s, Zk, coefficients_s), axis=-1)
         better = np.isfinite(g) & (g < best_g)
-        best_Z = np.where(better, Zk, best_Z)
+        chosen = np.where(better, Zk, chosen)
         best_g = np.where(better, g, best_g)
+    best_Z[several] = chosen
     return best_Z
