@@ -14,6 +14,7 @@ from .models import (MODELS, R, CubicFamily, CubicModel, IdealGas, Model, PengRo
                      RedlichKwong, SoaveRedlichKwong, VanDerWaals)
 from .units import to_si
 from .inversion import CAUTION, Root, Saturation, State, saturation, solve, volume_roots
+from .equilibrium.dispatch import solve  # noqa: E402,F811  (a mixture model goes to the flash)
 # The reference, sweep and accuracy layers pull in pandas and CoolProp's state objects;
 # they load on first use so that `import thermo_roots` and a first state stay quick.
 _LAZY = {

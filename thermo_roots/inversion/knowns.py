@@ -70,7 +70,7 @@ def _read_knowns(model, knowns, atmosphere):
         raise InputError(f"{' and '.join(knowns)} is not a pair solve understands; with an energy it takes "
                          f"{', '.join(ENERGY_PAIRS)} (mass-basis h_mass, s_mass, u_mass and rho, rho_mass too), "
                          "e.g. a valve outlet: solve(model, P='2 bar', h=...).")
-    M = model.fluid.molar_mass
+    M = model.molar_mass   # a mixture's too (model.fluid refuses a mixture)
     si = {k: np.asarray(si_array(to_si, val, k, molar_mass=M, atmosphere=atmosphere), dtype=float)
           for k, val in knowns.items()}
     try:

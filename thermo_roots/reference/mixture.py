@@ -29,8 +29,8 @@ CoolProp's own label of a single-phase mixture state is not a phase rule a perso
 its HEOS backend calls a state "liquid" where, as its answers suggest, the density exceeds
 the mixture's reducing density (a propane + n-butane mixture at 400 K and 10 MPa, above its
 critical point, is "liquid"), and its cubic backends call every single-phase mixture state "liquid". It is kept
-as ``library_phase``. ``phase`` follows this rule instead, stated once here
-(:func:`mixture_phase_word`):
+as ``library_phase``. ``phase`` follows the project's one rule for mixtures, the model's too
+(:func:`thermo_roots.equilibrium.phase_words.mixture_phase_word`):
 
 - "two-phase" where the reference's stability test split the feed;
 - "supercritical" where T >= T_pc and P >= P_pc, the mixture's pseudo-critical point by
@@ -66,6 +66,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ..equilibrium.phase_words import mixture_phase_word, pseudo_critical  # noqa: F401 (one rule, re-exported)
 from ..errors import InputError, WrongTypeError
 from ..mixtures import Mixture
 from ..units import to_si
@@ -95,41 +96,6 @@ _TEXT = ("phase", "library_phase", "reason")
 
 #: Per thread, {tuple of library names: CoolProp HEOS AbstractState of that mixture}.
 _THREAD_MIXTURES = threading.local()
-
-
-def mixture_phase_word(T, P, pip, T_pc, P_pc, two_phase=False) -> str:
-    """The phase word of a mixture reference state by the rule of this module's docstring.
-
-    Parameters
-    ----------
-    T : float
-        Temperature [K].
-    P : float
-        Pressure [Pa].
-    pip : float
-        Phase-identification parameter Pi [-] (NaN when unknown: then "vapor" below T_pc).
-    T_pc, P_pc : float
-        Pseudo-critical temperature [K] and pressure [Pa] by Kay's rule.
-    two_phase : bool
-        The reference split the feed into two phases.
-
-    References
-    ----------
-    Kay, W. B. (1936), Ind. Eng. Chem. 28, 1014. Venkatarathnam, G. & Oellrich, L. R. (2011),
-    Fluid Phase Equilib. 301, 225.
-    """
-    if two_phase:
-        return "two-phase"
-    if T >= T_pc:
-        return "supercritical" if P >= P_pc else "vapor"
-    return "liquid" if pip > 1.0 else "vapor"
-
-
-def pseudo_critical(mixture: Mixture) -> tuple[float, float]:
-    """(T_pc [K], P_pc [Pa]) of the mixture by Kay's rule: the mole-fraction averages of the
-    components' critical temperatures and pressures (Kay 1936, Ind. Eng. Chem. 28, 1014)."""
-    z = mixture.z
-    return float(np.dot(z, mixture.Tc)), float(np.dot(z, mixture.Pc))
 
 
 def mixture_reference_reason(mixture) -> str:

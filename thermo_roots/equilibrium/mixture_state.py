@@ -1,0 +1,367 @@
+"""A mixture's state from (T, P): :func:`solve_mixture` and its result, :class:`MixtureState`.
+
+The knowns are read as the pure solve reads them (text with units, pint quantities, SI
+floats, arrays; ``inversion.knowns``), the flash (:func:`.flash.flash_tp`) does the work,
+and the result carries the split, each phase's volume and roots, and the caloric
+properties by the lever rule over the phases (each phase's h, s, u, g from
+``properties.caloric`` at its own composition).
+
+Only (T, P) is understood today: the energy pairs of a mixture ((P, h), (P, s)) need a
+flash of their own and are refused with a clear error.
+"""
+
+from __future__ import annotations
+
+import functools
+import html
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from thermo_roots.equilibrium.flash import CONVERGED, NOT_CONVERGED, _flash_flat
+from thermo_roots.equilibrium.phase_words import model_at_compositions
+from thermo_roots.equilibrium.stability import read_states
+from thermo_roots.errors import ConvergenceError, DomainError, InputError
+from thermo_roots.inversion.cubic import cubic_real_roots
+from thermo_roots.inversion.display import CAUTION
+from thermo_roots.inversion.knowns import _check_model, _read_knowns
+from thermo_roots.models import R, _scalar_or_array
+from thermo_roots.units import STANDARD_ATMOSPHERE
+
+#: The pairs of knowns a mixture takes today.
+MIXTURE_PAIRS = ("(T, P)",)
+#: The values of ``errors=``.
+ERRORS = ("nan", "raise")
+#: The caloric fields of a mixture state (two-phase by the lever rule).
+_LEVER_FIELDS = ("h", "s", "u", "g")
+#: ... and those of one phase only (NaN in two phases).
+_CALORIC_FIELDS = _LEVER_FIELDS + ("cp", "cv", "w")
+
+
+@dataclass(frozen=True)
+class MixtureState:
+    """A mixture at (T, P), solved by the flash. Scalars for one state, arrays otherwise
+    (compositions with the components along one more, last, axis).
+
+    Attributes
+    ----------
+    model : the cubic mixture model
+    T, P : temperature [K] and pressure [Pa]
+    z : feed mole fractions [-]
+    phase : "liquid", "vapor", "supercritical", "two-phase" (:mod:`.phase_words`), or
+        "not solved" where ``reason`` says why
+    vapor_fraction : molar vapour fraction [-]; in one phase 1.0 for "vapor" and
+        "supercritical", 0.0 for "liquid" (the flash's rule)
+    x, y : liquid and vapour mole fractions [-] (both z in one phase)
+    v : molar volume of the whole [m³/mol]; Z its P v/(R T) [-]
+    v_liquid, v_vapor, Z_liquid, Z_vapor : each phase's (NaN where the phase is absent)
+    tpd_min : the stability test's lowest tangent-plane distance [-]
+    iterations : stability plus flash steps
+    status : "converged", "not converged" or "not solved"
+    reason : why an element is not solved ("" where it is)
+    knowns : the given quantities in SI
+    warnings : sentences about the whole result
+    """
+
+    model: object = field(repr=False)
+    T: object
+    P: object
+    z: object = field(repr=False)
+    phase: object
+    vapor_fraction: object
+    x: object = field(repr=False)
+    y: object = field(repr=False)
+    v: object = field(repr=False)
+    v_liquid: object = field(repr=False)
+    v_vapor: object = field(repr=False)
+    Z_liquid: object = field(repr=False)
+    Z_vapor: object = field(repr=False)
+    tpd_min: object = field(repr=False)
+    iterations: object = field(repr=False)
+    status: object = field(repr=False)
+    reason: object = field(repr=False, default="")
+    knowns: dict = field(repr=False, default_factory=dict)
+    warnings: tuple = field(repr=False, default=())
+
+    # -- derived values
+    @property
+    def Z(self):
+        """Compressibility factor of the whole, P v/(R T) [-]."""
+        return _scalar_or_array(np.asarray(self.P) * np.asarray(self.v) / (R * np.asarray(self.T)))
+
+    @property
+    def rho(self):
+        """Molar density of the whole [mol/m³]."""
+        return _scalar_or_array(1.0 / np.asarray(self.v, dtype=float))
+
+    @property
+    def molar_mass(self):
+        """Molar mass of the feed [kg/mol]."""
+        return _scalar_or_array(np.asarray(self.z, dtype=float) @ self.model.components.molar_masses)
+
+    @property
+    def rho_mass(self):
+        """Mass density of the whole [kg/m³]."""
+        return _scalar_or_array(np.asarray(self.molar_mass) / np.asarray(self.v, dtype=float))
+
+    @property
+    def convergence(self):
+        """(status, iterations) of the stability test and flash per state."""
+        return self.status, self.iterations
+
+    @functools.cached_property
+    def liquid_roots(self):
+        """Every real root v > v_min [m³/mol] of the liquid's cubic at its composition x, shape
+        (..., 3) ascending, NaN-padded; all NaN where there is no liquid phase."""
+        return self._phase_roots(self.x, np.isfinite(np.asarray(self.v_liquid, dtype=float)))
+
+    @functools.cached_property
+    def vapor_roots(self):
+        """As :attr:`liquid_roots`, for the vapour phase at its composition y."""
+        return self._phase_roots(self.y, np.isfinite(np.asarray(self.v_vapor, dtype=float)))
+
+    @property
+    def roots(self):
+        """{"liquid": liquid_roots, "vapor": vapor_roots}: each phase's cubic's roots [m³/mol]."""
+        return {"liquid": self.liquid_roots, "vapor": self.vapor_roots}
+
+    def _phase_roots(self, comp, present):
+        T, P = np.asarray(self.T, dtype=float), np.asarray(self.P, dtype=float)
+        comp = np.asarray(comp, dtype=float)
+        safe = np.where(present[..., None], comp, self.model.z)
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            c2, c1, c0, _, B, _ = self.model.phase_coefficients(T, P, safe)
+            Z = cubic_real_roots(c2, c1, c0)
+            Z = np.where(Z > B[..., None], Z, np.nan)
+            v = Z * (R * T / P)[..., None] - (safe @ self.model._c_i)[..., None]
+        return np.where(present[..., None], np.sort(v, axis=-1), np.nan)
+
+    # -- caloric properties (molar; SI)
+    @functools.cached_property
+    def _caloric(self):
+        return _lever_caloric(self)
+
+    h = property(lambda self: self._caloric["h"], doc="Enthalpy [J/mol] (lever rule over the phases).")
+    s = property(lambda self: self._caloric["s"], doc="Entropy [J/(mol K)] (lever rule over the phases).")
+    u = property(lambda self: self._caloric["u"], doc="Internal energy [J/mol] (lever rule over the phases).")
+    g = property(lambda self: self._caloric["g"], doc="Gibbs energy [J/mol] (lever rule over the phases).")
+    cp = property(lambda self: self._caloric["cp"], doc="Isobaric heat capacity [J/(mol K)]; NaN in two phases.")
+    cv = property(lambda self: self._caloric["cv"], doc="Isochoric heat capacity [J/(mol K)]; NaN in two phases.")
+    w = property(lambda self: self._caloric["w"], doc="Speed of sound [m/s]; NaN in two phases.")
+    h_mass = property(lambda self: self._per_mass(self.h), doc="Specific enthalpy [J/kg].")
+    s_mass = property(lambda self: self._per_mass(self.s), doc="Specific entropy [J/(kg K)].")
+    u_mass = property(lambda self: self._per_mass(self.u), doc="Specific internal energy [J/kg].")
+    g_mass = property(lambda self: self._per_mass(self.g), doc="Specific Gibbs energy [J/kg].")
+
+    def _per_mass(self, x):
+        return _scalar_or_array(np.asarray(x, dtype=float) / np.asarray(self.molar_mass))
+
+    # -- display
+    def summary(self) -> list[tuple[str, str]]:
+        """(label, value with unit) rows of a scalar state."""
+        if np.ndim(self.T):
+            raise ValueError("summary shows one state; index the arrays of an array solve instead.")
+        if self.reason:
+            return [("Phase", str(self.phase)), ("Not solved", str(self.reason))]
+        rows = [("Phase", str(self.phase)),
+                ("Temperature", f"{_fmt(self.T)} K ({_fmt(self.T - 273.15)} °C)"),
+                ("Pressure", f"{_fmt(self.P, 1e-5)} bar ({_fmt(self.P, 1e-6)} MPa)"),
+                ("Vapor fraction (molar)", _fmt(self.vapor_fraction, digits=6)),
+                ("Molar volume", f"{_fmt(self.v, 1e3)} L/mol"),
+                ("Mass density", f"{_fmt(self.rho_mass)} kg/m³"),
+                ("Compressibility factor Z", _fmt(self.Z))]
+        if self.phase == "two-phase":
+            rows += [("Liquid: Z, molar volume", f"{_fmt(self.Z_liquid)}, {_fmt(self.v_liquid, 1e3)} L/mol"),
+                     ("Vapor: Z, molar volume", f"{_fmt(self.Z_vapor)}, {_fmt(self.v_vapor, 1e3)} L/mol")]
+        try:
+            rows += [("Specific enthalpy h", f"{_fmt(self.h_mass, 1e-3)} kJ/kg"),
+                     ("Specific entropy s", f"{_fmt(self.s_mass, 1e-3)} kJ/(kg K)")]
+        except DomainError as error:   # a component without ideal-gas heat capacity
+            rows.append(("Enthalpy, entropy", f"unknown: {error}"))
+        return rows
+
+    def __repr__(self):
+        name = _label(self.model)
+        if np.ndim(self.T):
+            status = np.asarray(self.status)
+            bad = int(np.count_nonzero(status != CONVERGED))
+            two = int(np.count_nonzero(np.asarray(self.phase) == "two-phase"))
+            note = f", {bad} not solved (see .reason)" if bad else ""
+            return f"MixtureState({name}, {np.size(self.T)} states, shape {np.shape(self.T)}, {two} two-phase{note})"
+        if self.reason:
+            return f"MixtureState({name}, not solved: {self.reason})"
+        split = f", vapor fraction={self.vapor_fraction:.6g}" if self.phase == "two-phase" else ""
+        return (f"MixtureState({name}, T={self.T:.6g} K, P={self.P:.6g} Pa, v={self.v:.6g} m³/mol, "
+                f"rho_mass={self.rho_mass:.6g} kg/m³, Z={self.Z:.6g}, phase={self.phase!r}{split})")
+
+    def _repr_html_(self):
+        title = html.escape(f"{_label(self.model)} — {self.model.name}")
+        notes = "".join(f"<p><b>Warning.</b> {html.escape(w)}</p>" for w in self.warnings)
+        caution = f"<p style='font-size:smaller'><b>Caution.</b> {html.escape(CAUTION)}</p>"
+        if np.ndim(self.T):
+            return f"<div><b>{title}</b><pre>{html.escape(repr(self))}</pre>{notes}{caution}</div>"
+        body = "".join(f"<tr><th style='text-align:left'>{html.escape(k)}</th><td>{html.escape(v)}</td></tr>"
+                       for k, v in self.summary())
+        comp = ""
+        if not self.reason:
+            cells = "".join(f"<tr><td style='text-align:left'>{html.escape(n)}</td><td>{zi:.6g}</td>"
+                            f"<td>{_fmt(xi)}</td><td>{_fmt(yi)}</td></tr>"
+                            for n, zi, xi, yi in zip(self.model.components.names, self.z, self.x, self.y))
+            comp = ("<table><caption>Compositions (mole fractions)</caption><tr><th>component</th><th>feed z</th>"
+                    f"<th>liquid x</th><th>vapor y</th></tr>{cells}</table>")
+        return f"<div><table><caption>{title}</caption>{body}</table>{comp}{notes}{caution}</div>"
+
+
+def _fmt(x, scale=1.0, digits=6):
+    return "–" if x is None or not np.isfinite(x) else f"{x * scale:.{digits}g}"
+
+
+def _label(model) -> str:
+    c = model.components
+    return " + ".join(f"{n} {z:.4g}" for n, z in zip(c.names, c.fractions))
+
+
+def _ideal_parts_by_component(model, T, v):
+    """Each component's ideal-gas Helmholtz bundle at (T, v) [J/mol ...]: the pieces
+    properties.helmholtz sums (the fluid's ideal part on the project's gas constant),
+    to be weighted here by each state's own composition.
+
+    Raises DomainError (as properties does) for a component without ideal-gas data.
+    """
+    from thermo_roots.properties import _gas_constant_shift, _ideal_parts
+
+    parts = []
+    for ideal, _ in _ideal_parts(model):
+        parts.append([a + b for a, b in zip(ideal.helmholtz(T, v), _gas_constant_shift(ideal, T, v))])
+    return parts
+
+
+def _phase_caloric(model, T, P, v, comp):
+    """h, s, u, g, cp, cv, w of phases at flat T [K], P [Pa], v [m³/mol] and compositions comp
+    (n, nc), in one array call; NaN where v is NaN.
+
+    a(T, v) = the model's residual bundle at each state's composition + Σ xᵢ (component i's
+    ideal part) + R T Σ xᵢ ln xᵢ (the ideal mixing term, as in properties.helmholtz), then
+    properties.caloric_from_helmholtz.
+    """
+    from thermo_roots.models import Helmholtz
+    from thermo_roots.properties import caloric_from_helmholtz
+
+    n = T.size
+    out = {k: np.full(n, np.nan) for k in _CALORIC_FIELDS}
+    ok = np.flatnonzero(np.isfinite(v))
+    if ok.size == 0:
+        return out
+    T, P, v, x = T[ok], P[ok], v[ok], comp[ok]
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        A = list(model_at_compositions(model, x).residual_bundle(T, v))
+        for i, ideal in enumerate(_ideal_parts_by_component(model, T, v)):
+            A = [a + x[:, i] * b for a, b in zip(A, ideal)]
+        mixing = np.where(x > 0, x * np.log(np.where(x > 0, x, 1.0)), 0.0).sum(axis=1)
+        A = Helmholtz(*A)._replace(a=A[0] + R * T * mixing, a_T=A[1] + R * mixing)
+        values = caloric_from_helmholtz(T, v, P, x @ model.components.molar_masses, *A)
+    for name, value in zip(("P", "h", "s", "u", "g", "cp", "cv", "w"), values):
+        if name in out:
+            out[name][ok] = value
+    return out
+
+
+def _lever_caloric(state):
+    """h, s, u, g of the whole: (1 − β) × liquid's + β × vapour's (one phase: that phase's)."""
+    shape = np.shape(state.T)
+    nc = state.model.n_components
+    T, P = (np.asarray(a, dtype=float).reshape(-1) for a in (state.T, state.P))
+    x, y = (np.asarray(a, dtype=float).reshape(-1, nc) for a in (state.x, state.y))
+    vl, vv = (np.asarray(a, dtype=float).reshape(-1) for a in (state.v_liquid, state.v_vapor))
+    beta = np.asarray(state.vapor_fraction, dtype=float).reshape(-1)
+    liquid = _phase_caloric(state.model, T, P, vl, x)
+    vapour = _phase_caloric(state.model, T, P, vv, y)
+    out = {}
+    for name in _CALORIC_FIELDS:
+        lq, vp = liquid[name], vapour[name]
+        mixed = (1.0 - beta) * lq + beta * vp if name in _LEVER_FIELDS else np.nan
+        both = np.where(np.isnan(vl), vp, np.where(np.isnan(vv), lq, mixed))
+        out[name] = _scalar_or_array(both.reshape(shape))
+    return out
+
+
+# --------------------------------------------------------------------------- the entry point
+
+def solve_mixture(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHERE, errors: str = "nan",
+                  **knowns) -> MixtureState:
+    """A mixture's state from (T, P): phase, vapour fraction, compositions, volumes, h, s, u, g.
+
+    Parameters
+    ----------
+    model : CubicModel
+        A cubic on a Mixture, e.g. ``tr.PengRobinson(tr.Mixture({...}), kij=...)``.
+    branch : "stable"
+        Only the stable answer (the flash's) for a mixture.
+    atmosphere : float or str
+        Atmospheric pressure a gauge pressure ("8 barg") refers to [Pa].
+    errors : {"nan", "raise"}
+        For arrays: "nan" (default) gives NaN and a reason at every element that cannot be
+        solved and solves the rest; "raise" raises at the first, naming its index. A scalar
+        solve always raises.
+    T, P : float, array_like, str or pint quantity
+        Temperature [K] and pressure [Pa] (or text with units: "-20 °C", "45 barg").
+
+    Returns
+    -------
+    MixtureState
+
+    Raises
+    ------
+    InputError
+        Not a model, knowns other than (T, P), unreadable values, shapes that do not
+        broadcast; (scalar or errors="raise") a T or P that is not positive and finite.
+    ConvergenceError
+        (scalar or errors="raise") The stability test or flash did not converge.
+
+    References
+    ----------
+    Michelsen, M. L. & Mollerup, J. M. (2007), Thermodynamic Models: Fundamentals and
+    Computational Aspects, 2nd ed., ch. 9-10 (stability and flash).
+    """
+    _check_model(model, "solve")
+    if not (isinstance(errors, str) and errors in ERRORS):
+        raise InputError(f"errors={errors!r} is not one of 'nan', 'raise': 'nan' (the default) gives NaN and a reason "
+                         "at elements that cannot be solved and solves the rest; 'raise' raises at the first.")
+    if branch != "stable":
+        raise InputError(f"branch={branch!r}: a mixture's state is the flash's stable answer; give branch='stable' "
+                         "(a metastable single phase of a mixture is not offered).")
+    given = _read_knowns(model, knowns, atmosphere)
+    if set(given) != {"T", "P"}:
+        raise InputError(f"{' and '.join(knowns)}: a mixture takes (T, P) today, e.g. solve(model, T='-20 °C', "
+                         "P='45 bar'); the energy pairs of a mixture ((P, h), (P, s)) and its other pairs are not "
+                         "built yet. Solve at (T, P) and read .h, .s, .v from the result.")
+    shape, T, P, z, reasons = read_states(model, given["T"], given["P"], None, "solve")
+    flash = _flash_flat(model, (-1,), T, P, z, reasons, 1e-10, 60)
+    status, reason = np.asarray(flash.status), np.asarray(flash.reason, dtype=object)
+    bad = np.flatnonzero(status != CONVERGED)
+    if bad.size and (shape == () or errors == "raise"):
+        i = int(bad[0])
+        where = "" if shape == () else f" at index {tuple(int(k) for k in np.unravel_index(i, shape))}"
+        kind = ConvergenceError if status[i] == NOT_CONVERGED else InputError
+        raise kind(f"solve: the mixture state{where} is not solved: {reason[i]}.")
+    nc = model.n_components
+
+    def shaped(a, comp=False):
+        a = np.asarray(a).reshape(shape + ((nc,) if comp else ()))
+        if a.ndim == 0:
+            return a.item()
+        return a
+
+    warnings = ()
+    if bad.size:
+        warnings += (f"{bad.size} of {status.size} states are not solved (NaN); .reason says why for each.",)
+    if np.any(np.asarray(flash.phase) == "two-phase"):
+        warnings += ("Two-phase states: h, s, u and g are the lever-rule sums over the liquid and vapour; the "
+                     "phase split is the cubic's, good to a few percent in the vapour fraction at best.",)
+    phase = np.where(status == CONVERGED, np.asarray(flash.phase, dtype=object), "not solved")
+    return MixtureState(model=model, T=shaped(T), P=shaped(P), z=shaped(z, True), phase=shaped(phase.astype(str)),
+                        vapor_fraction=shaped(flash.beta), x=shaped(flash.x, True), y=shaped(flash.y, True),
+                        v=shaped(flash.v), v_liquid=shaped(flash.v_liquid), v_vapor=shaped(flash.v_vapor),
+                        Z_liquid=shaped(flash.Z_liquid), Z_vapor=shaped(flash.Z_vapor), tpd_min=shaped(flash.tpd_min),
+                        iterations=shaped(flash.iterations), status=shaped(status), reason=shaped(reason.astype(str)),
+                        knowns={k: _scalar_or_array(v) for k, v in given.items()}, warnings=warnings)
