@@ -100,6 +100,55 @@ EQUIPMENT = {
 }
 
 
+@dataclass(frozen=True)
+class MixtureDuty:
+    """One item of the invented site that holds a mixture.
+
+    Parameters
+    ----------
+    tag, service : str
+        Equipment tag and what it is.
+    composition : dict
+        {library name: fraction}; mole fractions, or mass fractions where ``by_mass``.
+    duty : dict
+        The knowns of its operating point, as text with units.
+    by_mass : bool
+        The composition is in mass fractions (how refrigerant blends are specified).
+    outlet_pressure : str, optional
+        Where a valve or regulator delivers to (invented).
+    """
+
+    tag: str
+    service: str
+    composition: dict
+    duty: dict = field(default_factory=dict)
+    by_mass: bool = False
+    outlet_pressure: str | None = None
+
+    @property
+    def title(self) -> str:
+        return f"{self.tag} {self.service}"
+
+    def mixture(self):
+        """The content as a :class:`~thermo_roots.mixtures.Mixture` (mole fractions)."""
+        from .mixtures import Mixture
+
+        return Mixture.from_mass_fractions(self.composition) if self.by_mass else Mixture(self.composition)
+
+
+#: The invented site's mixture duties, by tag (compositions invented, not a real gas analysis).
+MIXTURE_EQUIPMENT = {
+    "PCV-610": MixtureDuty("PCV-610", "fuel-gas letdown regulator to the boiler house",
+                           {"methane": 0.882, "ethane": 0.061, "propane": 0.023, "n-butane": 0.009,
+                            "isobutane": 0.005, "nitrogen": 0.012, "CO2": 0.008},
+                           dict(T="8 degC", P="62 barg"), outlet_pressure="4.5 barg"),
+    "V-640": MixtureDuty("V-640", "LPG flash drum", {"ethane": 0.05, "propane": 0.62, "isobutane": 0.09,
+                                                    "n-butane": 0.24}, dict(T="22 degC", P="6.5 bar")),
+    "E-220": MixtureDuty("E-220", "blast-freezer evaporator on R-407C", {"R32": 0.23, "R125": 0.25, "R134a": 0.52},
+                         dict(P="2.6 bar"), by_mass=True),
+}
+
+
 def _duty(item: Equipment) -> tuple[str, str, dict]:
     knowns = item.knowns()
     title = item.title
