@@ -14,7 +14,7 @@ import ipywidgets as w
 import numpy as np
 
 from .. import MODELS, solve
-from ..errors import ThermoRootsError
+from ..errors import InputError, ThermoRootsError
 from ..units import check_atmosphere
 from ._inputs import UNITS, FieldError, QuantityField, _label, message_html
 from ._render import (block, caution_html, error_html, fmt, in_unit, label_rows, side_by_side, table,
@@ -47,9 +47,9 @@ class MixtureModelField:
     def __init__(self, model="PR", kij="fitted"):
         keys = [key for _, key in MIXTURE_MODELS]
         if model not in keys:
-            raise FieldError(f"Unknown model {model!r} for a mixture; choose one of {', '.join(keys)}.")
+            raise InputError(f"Unknown model {model!r} for a mixture; choose one of {', '.join(keys)}.")
         if kij not in ("fitted", None, 0, 0.0):
-            raise FieldError(f"kij={kij!r}: the panel takes kij='fitted' (the shipped table) or kij=None "
+            raise InputError(f"kij={kij!r}: the panel takes kij='fitted' (the shipped table) or kij=None "
                              "(every kᵢⱼ = 0); for kᵢⱼ of your own build the model in Python, "
                              "e.g. tr.PengRobinson(mixture, kij={('methane', 'CO2'): 0.1}).")
         self.short = w.Dropdown(options=list(MIXTURE_MODELS), value=model, layout=w.Layout(width="217px"))
