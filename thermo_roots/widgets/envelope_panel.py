@@ -170,7 +170,7 @@ class EnvelopePanel(w.VBox):
         for field in (self.P_start, self.temperature, self.pressure):
             field.clear()
         try:
-            mixture = composition_of(self.composition)
+            mixture = composition_of(self.composition, "IsothermExplorer or plots.plot_saturation_curve")
             model = self.model_field.model(mixture)
             qualities = self._read_qualities()
             P_start = self.P_start.to_si()

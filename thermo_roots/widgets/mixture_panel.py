@@ -92,11 +92,16 @@ def kij_note(model) -> str:
     return "Binary parameters: kᵢⱼ fitted to the reference mixture model's bubble pressures." + lacking
 
 
-def composition_of(field: CompositionField):
-    """The field's Mixture, or FieldError with the field's own reason."""
-    if field.value is None:
+def composition_of(field: CompositionField, pure_panel: str):
+    """The field's Mixture of two or more components, or FieldError with the reason (the
+    field's own, or that one component is a pure fluid, for ``pure_panel``)."""
+    mixture = field.value
+    if mixture is None:
         raise FieldError(f"Composition: {field.error or 'not a mixture yet.'}")
-    return field.value
+    if len(mixture) < 2:
+        raise FieldError(f"Composition: one component ({mixture.names[0]}) is a pure fluid, not a mixture; add a "
+                         f"second component, or use {pure_panel} for a pure fluid.")
+    return mixture
 
 
 class MixturePanel(w.VBox):
@@ -184,7 +189,7 @@ class MixturePanel(w.VBox):
         for field in (self.temperature, self.pressure, self.atmosphere):
             field.clear()
         try:
-            mixture = composition_of(self.composition)
+            mixture = composition_of(self.composition, "StatePanel")
             model = self.model_field.model(mixture)
             atmosphere = self.atmosphere.to_si()
             T = self.temperature.to_si()
