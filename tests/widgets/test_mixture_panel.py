@@ -131,3 +131,17 @@ def test_refused_models_and_kij_say_what_is_allowed():
         MixturePanel(model="vdW")
     with pytest.raises(tr.InputError, match="fitted"):
         MixturePanel(kij=0.1)
+
+
+def test_large_reference_deviations_are_shaded():
+    from thermo_roots.reference import LARGE_DEVIATION_PERCENT
+
+    panel = MixturePanel(V640.mixture(), T="22 degC", P="6.5 bar")
+    state = panel.solve()
+    check = panel.check_reference()
+    shaded = re.findall(r"<td class='tr-large'[^>]*>([^<]*)</td>", panel.reference_output.value)
+    rho_l = float(state.x @ state.model.components.molar_masses) / state.v_liquid
+    ref_l = check.rho_liquid * float(check.x @ state.model.components.molar_masses)
+    large = abs(rho_l - ref_l) / ref_l * 100 > LARGE_DEVIATION_PERCENT
+    assert (f"{(rho_l - ref_l) / ref_l * 100:+.3g} %" in shaded) == large
+    assert f"{(state.rho_mass - check.rho_mass) / check.rho_mass * 100:+.3g} %" not in shaded   # about 1 %

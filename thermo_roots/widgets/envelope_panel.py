@@ -185,7 +185,7 @@ class EnvelopePanel(w.VBox):
         self.result, self.operating, self.reference, self.error = envelope, operating, reference, None
         self.status.value = ""
         fig = self.plot.clear()
-        _draw_envelope(fig.add_subplot(), envelope, operating, reference)
+        _draw_envelope(fig.add_subplot(), envelope, operating, reference, tag=self.tag.value.strip())
         self.plot.publish()
         self.summary.value = block(self._summary_html(envelope, reference))
         self.point_text.value = block((_operating_html(envelope, operating) if operating is not None else "")
@@ -319,7 +319,7 @@ def _operating_html(envelope, state) -> str:
             f"<b>Operating point.</b> {html.escape(operating_sentence(envelope, state))}</div>")
 
 
-def _draw_envelope(ax, envelope, operating=None, reference=None):
+def _draw_envelope(ax, envelope, operating=None, reference=None, tag=""):
     """The envelope in °C and bar, its special points, quality lines, the reference points
     and the operating point. A stop-gap here until plots has a phase-envelope function."""
     T_c = np.asarray(envelope.T) - 273.15
@@ -357,6 +357,7 @@ def _draw_envelope(ax, envelope, operating=None, reference=None):
     ax.set_ylabel("Pressure [bar]")
     ax.set_ylim(bottom=0)
     ax.grid(True, color="#ddd", lw=0.6)
-    ax.set_title(f"Phase envelope, {envelope.model.name}", fontsize=11)
+    ax.set_title(f"{tag + ': ' if tag else ''}phase envelope, {envelope.model.n_components}-component mixture, "
+                 f"{envelope.model.name}", fontsize=11)
     ax.legend(fontsize=8, loc="upper left", framealpha=0.9)
     return ax

@@ -324,6 +324,7 @@ def _difference(model, reference) -> str:
 
 def _reference_html(state, check) -> str:
     """The reference mixture model's values beside the model's."""
+    from ..reference import LARGE_DEVIATION_PERCENT, LARGE_DEVIATION_STYLE
     from ..reference.mixture import REFERENCE_MIXTURE_CAUTION
 
     caution = (f"<div style='font-size:0.85em;color:#555;max-width:60em'>{html.escape(REFERENCE_MIXTURE_CAUTION)}"
@@ -341,17 +342,22 @@ def _reference_html(state, check) -> str:
              "same" if state.phase == check.phase else "<b>differs</b>"),
             ("vapor fraction (molar)", fmt(state.vapor_fraction, 5), fmt(check.vapor_fraction, 5),
              _difference(state.vapor_fraction, check.vapor_fraction))]
+    marked = set() if state.phase == check.phase else {(0, 3)}
     for label, a, b in (("mass density [kg/m³]", state.rho_mass, check.rho_mass), ("Z", state.Z, check.Z),
                         ("liquid density [kg/m³]", rho_l, ref_rho_l), ("vapor density [kg/m³]", rho_v, ref_rho_v)):
+        if np.isfinite(a) and np.isfinite(b) and b != 0 and abs(a - b) / abs(b) * 100 > LARGE_DEVIATION_PERCENT:
+            marked.add((len(rows), 3))
         rows.append((label, fmt(a, 5), fmt(b, 5), _percent(a, b)))
     values = table(rows, header=("quantity", "model", "reference", "deviation"),
-                   caption="Against the reference mixture model (CoolProp)")
+                   caption="Against the reference mixture model (CoolProp)", marked=marked,
+                   marked_style=LARGE_DEVIATION_STYLE)
     comp = [(html.escape(n), fmt(x, 5), fmt(rx, 5), fmt(y, 5), fmt(ry, 5))
             for n, x, rx, y, ry in zip(state.model.components.names, state.x, ref_x, state.y, ref_y)]
     comps = table(comp, header=("component", "x model", "x reference", "y model", "y reference"),
                   caption="Phase compositions")
     note = ("deviation = (model − reference) / reference; the vapor fraction as model − reference. The reference "
-            "uses its own binary parameters (GERG-2008 type), not the cubic's kᵢⱼ. In one phase x = y = z.")
+            "uses its own binary parameters (GERG-2008 type), not the cubic's kᵢⱼ. In one phase x = y = z. "
+            f"Deviations beyond ±{LARGE_DEVIATION_PERCENT:g} %, and a phase that differs, are shaded.")
     return (side_by_side(values, comps) + warnings_html(check.warnings)
             + f"<div class='tr-legend' style='font-size:0.85em;color:#555;max-width:60em'>{html.escape(note)}</div>"
             + caution)
