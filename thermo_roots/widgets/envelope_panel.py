@@ -175,7 +175,13 @@ class EnvelopePanel(w.VBox):
             qualities = self._read_qualities()
             P_start = self.P_start.to_si()
             point = (self.temperature.to_si(), self.pressure.to_si()) if self.show_point.value else None
-            envelope = phase_envelope(model, qualities=qualities, P_start=P_start)
+            self.status.value = ("<span class='tr-busy' style='color:#555'>&#8987; Tracing the envelope "
+                                 f"{'and its quality lines ' if qualities else ''}(a few seconds)…</span>")
+            self.trace_button.disabled = True
+            try:
+                envelope = phase_envelope(model, qualities=qualities, P_start=P_start)
+            finally:
+                self.trace_button.disabled = False
             operating = solve(model, T=point[0], P=point[1]) if point else None
         except ThermoRootsError as err:
             self.error = str(err)
