@@ -285,7 +285,8 @@ def _phase_properties(state) -> list[tuple]:
             continue
         M = float(np.asarray(comp) @ masses)
         try:
-            c = caloric(state.model, state.T, v, state.P, x=np.asarray(comp))
+            with np.errstate(over="ignore", invalid="ignore"):    # 1e-300 Pa: an overflow, NaN shown as "-"
+                c = caloric(state.model, state.T, v, state.P, x=np.asarray(comp))
             h, s = float(c.h) / M, float(c.s) / M
         except DomainError:                 # a component without ideal-gas heat capacity
             h = s = float("nan")
