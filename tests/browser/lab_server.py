@@ -127,3 +127,22 @@ def run_all_cells(page, *, attempts: int = 3, started_ms: int = 30_000) -> None:
             page.keyboard.press("Escape")                 # close the menu should it still be open
             if attempt == attempts:
                 raise AssertionError(f"Run All Cells did not start the notebook in {attempts} tries")
+
+
+def open_notebook(page, base: str, token: str, name: str, *, timeout_ms: int) -> None:
+    """Open notebook ``name`` of the served folder in ``page``, wait for its kernel to be idle,
+    fold the file list and run all cells (:func:`run_all_cells`); a "Select Kernel" dialog,
+    should one appear, is answered with the notebook's own kernel."""
+    from playwright.sync_api import expect
+
+    page.set_default_timeout(timeout_ms)
+    expect.set_options(timeout=timeout_ms)
+    page.add_locator_handler(
+        page.get_by_role("dialog").filter(has_text="Select Kernel"),
+        lambda dialog: dialog.get_by_role("button", name="Select Kernel").click())
+    page.goto(f"{base}/lab/tree/{name}?token={token}")
+    expect(page.locator(".jp-StatusBar-Widget", has_text="Python 3 (ipykernel) | Idle")).to_be_visible()
+    file_list = page.locator(".jp-SideBar.jp-mod-left .lm-TabBar-tab.lm-mod-current")
+    if file_list.count():
+        file_list.click()
+    run_all_cells(page)
