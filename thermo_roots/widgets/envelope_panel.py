@@ -2,8 +2,8 @@
 critical point, cricondenbar and cricondentherm in words, optional quality lines, the
 reference mixture model's bubble and dew points, and an operating point placed by the flash.
 
-The drawing is a stop-gap inside this panel (:func:`_draw_envelope`) until ``plots`` has a
-phase-envelope function; the panel draws only what the traced envelope and the states hold.
+The drawing is :func:`thermo_roots.plots.plot_phase_envelope`, with the reference points the
+panel fetched and the operating point added (:func:`_draw_envelope`).
 """
 
 from __future__ import annotations
@@ -326,44 +326,25 @@ def _operating_html(envelope, state) -> str:
 
 
 def _draw_envelope(ax, envelope, operating=None, reference=None, tag=""):
-    """The envelope in °C and bar, its special points, quality lines, the reference points
-    and the operating point. A stop-gap here until plots has a phase-envelope function."""
-    T_c = np.asarray(envelope.T) - 273.15
-    P_b = np.asarray(envelope.P) / 1e5
-    bubble = np.asarray(envelope.side) == "bubble"
-    for mask, colour, label in ((bubble, "#1f5fa8", "bubble side (liquid starts to boil)"),
-                                (~bubble, "#b03a2e", "dew side (first drops of liquid)")):
-        idx = np.flatnonzero(mask)
-        if idx.size:      # one line per side, joined to the neighbour so the curve has no gap
-            lo, hi = idx[0], min(idx[-1] + 2, len(T_c))
-            ax.plot(T_c[lo:hi], P_b[lo:hi], color=colour, lw=2, label=label)
-    for beta, (T_line, P_line) in sorted(envelope.quality.items()):
-        ax.plot(np.asarray(T_line) - 273.15, np.asarray(P_line) / 1e5, color="#777", lw=1, ls="--")
-        ax.annotate(f"β = {beta:g}", (T_line[0] - 273.15, P_line[0] / 1e5), fontsize=8, color="#555",
-                    xytext=(2, 4), textcoords="offset points")
-    specials = (("critical point", envelope.critical, "o", "black"),
-                ("cricondenbar", envelope.cricondenbar, "^", "#6a3d9a"),
-                ("cricondentherm", envelope.cricondentherm, ">", "#6a3d9a"))
-    for label, point, marker, colour in specials:
-        if point is not None:
-            ax.plot(point[0] - 273.15, point[1] / 1e5, marker=marker, color=colour, ms=8, ls="none", label=label)
+    """The envelope by :func:`thermo_roots.plots.plot_phase_envelope`, with the reference points
+    this panel fetched (with its progress bar) and the operating point placed by the flash."""
+    from ..plots import _deduplicated_legend, plot_phase_envelope
+
+    plot_phase_envelope(envelope, ax=ax)
     if reference:
-        for side, marker, colour in (("bubble", "s", "#1f5fa8"), ("dew", "D", "#b03a2e")):
+        for side, marker in (("bubble", "o"), ("dew", "s")):
             pts = [(float(r.T), float(r.P)) for r in reference.get(side, ()) if r.available]
             if pts:
                 T_r, P_r = np.array(pts).T
-                ax.plot(T_r - 273.15, P_r / 1e5, marker=marker, mfc="none", color=colour, ms=6, ls="none",
-                        label=f"reference {side} points (CoolProp mixture model)")
+                ax.plot(T_r - 273.15, P_r / 1e5, marker=marker, markerfacecolor="white", markeredgecolor="black",
+                        linestyle="none", label=f"reference {side} points (CoolProp mixture model)")
     if operating is not None:
         inside = operating.phase == "two-phase"
-        ax.plot(float(operating.T) - 273.15, float(operating.P) / 1e5, marker="*", ms=15, ls="none",
-                color="#d98c00" if inside else "#2e7d32", mec="black",
+        ax.plot(float(operating.T) - 273.15, float(operating.P) / 1e5, marker="*", markersize=15, linestyle="none",
+                color="#d98c00" if inside else "#2e7d32", markeredgecolor="black",
                 label="operating point: " + ("two-phase" if inside else f"one phase ({operating.phase})"))
-    ax.set_xlabel("Temperature [°C]")
-    ax.set_ylabel("Pressure [bar]")
-    ax.set_ylim(bottom=0)
-    ax.grid(True, color="#ddd", lw=0.6)
-    ax.set_title(f"{tag + ': ' if tag else ''}phase envelope, {envelope.model.n_components}-component mixture, "
-                 f"{envelope.model.name}", fontsize=11)
-    ax.legend(fontsize=8, loc="upper left", framealpha=0.9)
+    if tag:
+        ax.set_title(f"{tag}\n{ax.get_title()}", fontsize=10)
+    _deduplicated_legend(ax, loc="upper left", bbox_to_anchor=(1.02, 1.0), borderaxespad=0.0, fontsize=8,
+                         frameon=False, wrap=32)
     return ax
