@@ -187,7 +187,7 @@ def caloric(model, T, v, P=None, x=None) -> Caloric:
 def _phase_caloric(model, T, v, P, x) -> Caloric:
     """:func:`caloric` of phases with their own compositions x (numpy path only)."""
     _ideal_parts(model)
-    with np.errstate(invalid="ignore", divide="ignore"):
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):   # a gas at 1e-300 Pa: NaN w, no warning
         A = helmholtz(model, T, v, x)
         P = -A.a_v if P is None else np.asarray(P, dtype=float)
         M = x @ np.array([f.molar_mass for f in model.components.fluids])

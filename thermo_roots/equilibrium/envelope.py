@@ -517,8 +517,11 @@ def phase_envelope(model, *, z=None, qualities=(), P_start=DEFAULT_P_START, max_
                          "saturation curve: use thermo_roots.saturation(model, T=...) or plots.plot_saturation_curve.")
     start = _end_point("bubble", model, P_start, z)
     if start.status != "converged":
-        raise InputError(f"phase_envelope: no bubble point at P_start = {P_start:.6g} Pa to start from "
-                         f"({start.reason}). Try another P_start, e.g. P_start='0.5 bar'.")
+        why = str(start.reason).split("; near the critical point")[0]   # its advice points back here
+        raise InputError(f"phase_envelope: no bubble point at P_start = {P_start:.6g} Pa to start from ({why}). "
+                         "Try another P_start, e.g. P_start='0.5 bar' or '5 bar'; a feed rich in a component far "
+                         "above its critical temperature (hydrogen, helium) may have no bubble point a cubic "
+                         "can reach at low pressure.")
     u0 = np.r_[np.log(start.K), np.log(start.T), np.log(start.P)]
     curve = _trace(model, z, 0.0, u0, P_end=P_start, max_points=int(max_points))
     warnings = []
