@@ -36,12 +36,14 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .errors import InputError
-from .inversion import CAUTION, State, solve
+from .equilibrium import MixtureState
+from .equilibrium.dispatch import solve
+from .inversion import CAUTION, State
 from .inversion.phases import phase_text
 from .models import _scalar_or_array
 from .reference import (LARGE_DEVIATION_K, LARGE_DEVIATION_PERCENT, convention_offset, library_reason,
                         reference_limits)
-from .reference.steps import ReferenceStep, reference_flow_step, reference_vessel_step
+from .reference.steps import ReferenceStep, reference_flow_step, reference_mixture_flow_step, reference_vessel_step
 from .units import STANDARD_ATMOSPHERE, to_si
 
 #: The kinds of step, as the results name them.
@@ -99,7 +101,13 @@ class StepResult:
     @property
     def deviation_quality(self):
         """quality_out(model) - quality_out(reference) [-]; NaN unless both are two-phase."""
-        return _difference(self.outlet.quality, _ref_attr(self.reference.outlet, "quality"))
+        name = _split_name(self.outlet)
+        out = _difference(_ref_attr(self.outlet, name), _ref_attr(self.reference.outlet, name))
+        if name == "vapor_fraction":   # a mixture's fraction is 0 or 1 in one phase: compare splits only
+            both = ((np.asarray(self.outlet.phase) == "two-phase")
+                    & (np.asarray(_ref_attr(self.reference.outlet, "phase"), dtype=object) == "two-phase"))
+            out = _scalar_or_array(np.where(both, out, np.nan))
+        return out
 
     @property
     def deviation_work_percent(self):
@@ -133,13 +141,15 @@ class StepResult:
                 return "-"
             return phase_text(st.phase, float(np.asarray(getattr(st, "quality", np.nan), dtype=float)))
 
-        M = self.inlet.model.fluid.molar_mass
+        M = self.inlet.model.molar_mass
         # the reference's h and s on the model's zero (IIR, ASHRAE, NBP), so the columns compare
-        dh, ds = convention_offset(self.inlet.model)
+        dh, ds = (0.0, 0.0) if self.inlet.model.is_mixture else convention_offset(self.inlet.model)
         shift = {"h": dh, "s": ds}
+        split = _split_name(self.inlet)
+        split_label = "Vapor fraction (molar) [-]" if split == "vapor_fraction" else "Vapor quality [-]"
         rows = [("Phase", phase(self.inlet), phase(self.outlet), phase(r_in), phase(r_out))]
         for label, name, scale, offset in (("Temperature [°C]", "T", 1.0, -273.15), ("Pressure [bar abs]", "P", 1e-5, 0.0),
-                                           ("Vapor quality [-]", "quality", 1.0, 0.0),
+                                           (split_label, split, 1.0, 0.0),
                                            ("Specific enthalpy h [kJ/kg]", "h", 1e-3 / M, 0.0),
                                            ("Specific entropy s [kJ/(kg K)]", "s", 1e-3 / M, 0.0),
                                            ("Mass density [kg/m³]", "rho_mass", 1.0, 0.0)):
@@ -165,7 +175,8 @@ class StepResult:
         else:
             lines.append("Adiabatic, no work: h_out = h_in.")
         if ref.available:
-            quality = (f"; quality {_signed(self.deviation_quality, '')}"
+            quality = (f"; {'vapor fraction' if self.inlet.model.is_mixture else 'quality'} "
+                       f"{_signed(self.deviation_quality, '')}"
                        if math.isfinite(_scalar(self.deviation_quality)) else "")
             lines.append(f"Outlet temperature, model - reference: {_signed(self.deviation_T_K, 'K')}{quality}")
         else:
@@ -190,7 +201,7 @@ class StepResult:
 
     def __repr__(self):
         model = self.inlet.model
-        head = f"StepResult({self.kind}, {model.fluid.name}, {model.name}"
+        head = f"StepResult({self.kind}, {_content(model)}, {model.name}"
         if np.ndim(self.outlet.T):
             return head + f", {np.size(self.outlet.T)} steps)"
         text = [head + f", {self.inlet.P / 1e5:.5g} bar -> {self.outlet.P / 1e5:.5g} bar, "
@@ -210,7 +221,8 @@ class StepResult:
     def _repr_html_(self):
         model = self.inlet.model
         esc = html.escape
-        title = esc(f"{self.kind.capitalize()} of {model.fluid.name} — {model.name}, reference equation beside it")
+        title = esc(f"{self.kind.capitalize()} of {_content(model)} — {model.name}, "
+                    f"{'reference mixture model' if model.is_mixture else 'reference equation'} beside it")
         vessel = (f"<p style='font-weight:bold;border:2px solid #8a1c1c;padding:4px'>{esc(VESSEL_CAUTION)}</p>"
                   if self.kind == CONSTANT_VOLUME else "")
         caution = f"<p><b>Caution.</b> {esc(CAUTION)}</p>"
@@ -226,6 +238,17 @@ class StepResult:
 
 
 _BEYOND = "Beyond the screening thresholds"   # the display's line of large deviations
+
+
+def _split_name(state):
+    """The attribute that says how much of a state is vapor: a pure fluid's quality, a mixture's
+    molar vapor fraction."""
+    return "vapor_fraction" if isinstance(state, MixtureState) else "quality"
+
+
+def _content(model) -> str:
+    """What flows through a step: the fluid's name, or a mixture's components."""
+    return " + ".join(model.components.names) if model.is_mixture else model.fluid.name
 
 
 def _ref_attr(state, name):
@@ -269,7 +292,7 @@ def _signed(x, unit):
 # --------------------------------------------------------------------------- input checks
 
 def _check_inlet(model, inlet, caller):
-    if not isinstance(inlet, State):
+    if not isinstance(inlet, (State, MixtureState)):
         raise TypeError(f"{caller}(model, inlet, ...) needs the inlet as a State from thermo_roots.solve, e.g. "
                         f"solve(model, P='10 bar', quality=0); got {type(inlet).__name__} {inlet!r:.60}.")
     if inlet.model is not model and inlet.model != model:
@@ -279,9 +302,11 @@ def _check_inlet(model, inlet, caller):
     if np.any(reason != ""):
         first = next(str(r) for r in reason.ravel() if r != "")
         raise InputError(f"{caller}: the inlet is not solved everywhere ({first}); solve a valid inlet first.")
-    if model.fluid.ideal_gas is None:
-        raise InputError(f"{caller}: {model.fluid.name} has no ideal-gas heat capacity, so its enthalpy and entropy "
-                         "are unknown; give Fluid(..., cp0=...) or use a library fluid (get_fluid).")
+    fluids = model.components.fluids if model.is_mixture else (model.fluid,)
+    for fluid in fluids:
+        if fluid.ideal_gas is None:
+            raise InputError(f"{caller}: {fluid.name} has no ideal-gas heat capacity, so its enthalpy and entropy "
+                             "are unknown; give Fluid(..., cp0=...) or use a library fluid (get_fluid).")
 
 
 def _pressure(value, name, caller, atmosphere):
@@ -325,6 +350,8 @@ def _outlet_warnings(model, outlet, P_out):
     sublimation curve lies below the triple-point temperature), so it is not warned of.
     """
     notes = list(outlet.warnings)
+    if model.is_mixture:
+        return _mixture_outlet_warnings(model, outlet, notes)
     fluid = model.fluid
     solid = "dry ice" if fluid.library_name == "CarbonDioxide" or fluid.name == "carbon dioxide" else "solid"
     T = np.asarray(outlet.T, dtype=float)
@@ -348,6 +375,20 @@ def _outlet_warnings(model, outlet, P_out):
                      f"{'Dry ice can block the line or the valve. ' if solid == 'dry ice' else ''}"
                      f"The cubic equation does not model the solid, so its outlet temperature and quality there "
                      f"are not physical.")
+    return notes
+
+
+def _mixture_outlet_warnings(model, outlet, notes):
+    """A mixture outlet colder than a component's triple point: that component may freeze out
+    (CO2 in a cold natural gas, water anywhere below 0 °C); the cubic has no solid phase."""
+    T = float(np.min(np.asarray(outlet.T, dtype=float)))
+    frozen = [f"{f.name} (triple point {f.T_triple - 273.15:.4g} °C)" for f, zi in
+              zip(model.components.fluids, model.z) if zi > 0 and f.T_triple is not None and T < f.T_triple]
+    if frozen:
+        notes.insert(0, f"Solid may form at the outlet: it is colder ({T - 273.15:.4g} °C) than the triple point of "
+                     f"{', '.join(frozen)}, which can freeze out of the mixture and block the line; the cubic has "
+                     "no solid phase, so its outlet here is not physical. Check the solubility of that component "
+                     "at the outlet's conditions.")
     return notes
 
 
@@ -415,10 +456,18 @@ def throttle(model, inlet, P_out, *, atmosphere=STANDARD_ATMOSPHERE) -> StepResu
         raise InputError(f"throttle: P_out = {np.max(P):.6g} Pa is above the inlet pressure {np.min(inlet.P):.6g} Pa; "
                          "a valve or regulator only lowers the pressure. For a rise use compress().")
     outlet = solve(model, P=P, h=inlet.h)
-    ref = reference_flow_step(model.fluid, inlet, P)
+    ref = _reference_flow(model, inlet, P)
     zero = _scalar_or_array(np.zeros(np.shape(outlet.T)))
     return StepResult(THROTTLE, inlet, outlet, None, 1.0, zero, zero, zero, zero, math.nan, math.nan, math.nan, ref,
                       tuple(_outlet_warnings(model, outlet, P)))
+
+
+def _reference_flow(model, inlet, P, rule=None):
+    """The same flow step through the reference: the fluid's reference equation, or for a
+    mixture the reference mixture model from its own state at the inlet's T and P."""
+    if model.is_mixture:
+        return reference_mixture_flow_step(model.components, inlet.T, inlet.P, P, rule)
+    return reference_flow_step(model.fluid, inlet, P, rule)
 
 
 def _machine(model, inlet, P_out, efficiency, kind, atmosphere):
@@ -443,16 +492,16 @@ def _machine(model, inlet, P_out, efficiency, kind, atmosphere):
     outlet = isentropic if eta == 1.0 else solve(model, P=P, h=h_out)
     work = _scalar_or_array(h_out - h_in)
     zero = _scalar_or_array(np.zeros(np.shape(outlet.T)))
-    ref = reference_flow_step(model.fluid, inlet, P, rule)
+    ref = _reference_flow(model, inlet, P, rule)
     notes = _efficiency_warnings(eta) + _outlet_warnings(model, outlet, P)
-    wet = (np.asarray(inlet.phase) == "two-phase") & ~(np.asarray(inlet.quality) >= 1.0 - 1e-9)
+    wet = (np.asarray(inlet.phase) == "two-phase") & ~(np.asarray(_ref_attr(inlet, _split_name(inlet))) >= 1.0 - 1e-9)
     if kind == COMPRESSION and np.any(wet):   # saturated vapor (quality 1) carries no liquid
         notes.append("The compressor inlet is two-phase: liquid entering a compressor can damage it (liquid "
                      "slugging); compressors are normally fed with superheated vapor (common practice).")
     if np.any(np.asarray(outlet.phase) == "two-phase") and kind == EXPANSION:
         notes.append("The expander outlet is two-phase: condensate forms in the machine.")
     return StepResult(kind, inlet, outlet, isentropic, eta, work,
-                      _scalar_or_array(np.asarray(work) / model.fluid.molar_mass), zero, zero, math.nan, math.nan,
+                      _scalar_or_array(np.asarray(work) / model.molar_mass), zero, zero, math.nan, math.nan,
                       math.nan, ref, tuple(notes))
 
 
@@ -544,6 +593,9 @@ def heat_at_constant_volume(model, inlet, *, mass, P=None, T=None, atmosphere=ST
     Smith, Van Ness & Abbott (2005), 7th ed., sec. 2.5 (closed system at constant volume:
     Q = delta U).
     """
+    if model.is_mixture:
+        raise InputError("heat_at_constant_volume takes a pure fluid today; a closed vessel of a mixture (a (u, v) "
+                         "flash) is not built yet. Use throttle, compress or expand for a mixture's flow steps.")
     caller = "heat_at_constant_volume"
     _check_inlet(model, inlet, caller)
     if isinstance(mass, (bool, np.bool_)) or not isinstance(mass, (int, float, np.integer, np.floating)):

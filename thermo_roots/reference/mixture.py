@@ -75,7 +75,9 @@ from .driver import _coolprop, library_reason, thread_state
 from .states import constant_warnings
 
 #: What a mixture reference call evaluates: a (T, P) state, or a bubble or dew point at T or at P.
-MIXTURE_KINDS = ("T,P", "bubble,T", "bubble,P", "dew,T", "dew,P")
+MIXTURE_KINDS = ("T,P", "bubble,T", "bubble,P", "dew,T", "dew,P", "P,h", "P,s")
+#: The kinds whose second known is an energy (a = P [Pa], b = h [J/mol] or s [J/(mol K)]).
+_ENERGY_KINDS = ("P,h", "P,s")
 #: States per chunk of mixture reference work (a chunk is the unit of progress, interruption and
 #: parallel dispatch): about one to five seconds of CoolProp work each.
 DEFAULT_MIXTURE_CHUNK = 16
@@ -91,7 +93,7 @@ REFERENCE_MIXTURE_CAUTION = (
     "its flash can also fail or converge to the wrong split. Do not fill, heat or pressurise equipment on "
     "this number alone; follow local codes and have a licensed engineer check the design.")
 
-_SCALARS = ("T", "P", "rho", "Z", "vapor_fraction", "rho_liquid", "rho_vapor", "pip")
+_SCALARS = ("T", "P", "rho", "Z", "vapor_fraction", "rho_liquid", "rho_vapor", "pip", "h", "s")
 _TEXT = ("phase", "library_phase", "reason")
 
 #: Per thread, {tuple of library names: CoolProp HEOS AbstractState of that mixture}.
@@ -134,6 +136,10 @@ def _empty_values(n: int, nc: int, reason: str = "") -> dict:
 
 def _knowns_reason(kind: str, a: float, b: float) -> str:
     """Why the knowns cannot go to the reference at all, or "" (before CoolProp is called)."""
+    if kind in _ENERGY_KINDS:
+        if not (math.isfinite(a) and a > 0.0):
+            return f"P = {a:.6g} Pa is not a positive finite number"
+        return "" if math.isfinite(b) else f"{kind[-1]} = {b!r} is not a finite number"
     names = ("T", "P") if kind == "T,P" else (kind.split(",")[1],)
     values = (a, b) if kind == "T,P" else (a,)
     for name, value in zip(names, values):
@@ -150,13 +156,15 @@ def _knowns_reason(kind: str, a: float, b: float) -> str:
 def _knowns_text(kind: str, a: float, b: float) -> str:
     if kind == "T,P":
         return f"T = {a:.6g} K, P = {b:.6g} Pa"
+    if kind in _ENERGY_KINDS:
+        return f"P = {a:.6g} Pa, {kind[-1]} = {b:.6g} {'J/mol' if kind == 'P,h' else 'J/(mol K)'}"
     which, known = kind.split(",")
     return f"{'a bubble' if which == 'bubble' else 'a dew'} point at {known} = {a:.6g} {'K' if known == 'T' else 'Pa'}"
 
 
 def _failure_reason(kind, a, b, error) -> str:
     detail = str(error).strip() or type(error).__name__
-    if kind == "T,P":
+    if kind == "T,P" or kind in _ENERGY_KINDS:
         what = (f"the reference mixture model found no state at {_knowns_text(kind, a, b)}: its flash did not "
                 "converge there, or the state lies outside its range; try a state nearby")
     else:
@@ -169,6 +177,10 @@ def _failure_reason(kind, a, b, error) -> str:
 def _update(state, CoolProp, kind, a, b):
     if kind == "T,P":
         state.update(CoolProp.PT_INPUTS, b, a)
+    elif kind == "P,h":
+        state.update(CoolProp.HmolarP_INPUTS, b, a)
+    elif kind == "P,s":
+        state.update(CoolProp.PSmolar_INPUTS, a, b)
     elif kind.endswith(",T"):
         state.update(CoolProp.QT_INPUTS, 0.0 if kind.startswith("bubble") else 1.0, a)
     else:
@@ -179,6 +191,7 @@ def _read(out, i, state, CoolProp, phases, z, T_pc, P_pc):
     """Store the state CoolProp has just solved in row i."""
     T, P, rho = state.T(), state.p(), state.rhomolar()
     out["T"][i], out["P"][i], out["rho"][i] = T, P, rho
+    out["h"][i], out["s"][i] = state.hmolar(), state.smolar()
     out["Z"][i] = P / (rho * state.gas_constant() * T)
     code = state.phase()
     out["library_phase"][i] = phases.get(code, "")
@@ -367,6 +380,8 @@ class ReferenceMixtureState:
     rho_liquid, rho_vapor : each phase's molar density [mol/m^3] (in one phase, the state's
         density in its own slot and NaN in the other; both NaN when supercritical)
     pip : phase-identification parameter [-] of a single-phase state (NaN in two phases)
+    h, s : molar enthalpy [J/mol] and entropy [J/(mol K)] on the reference model's own zero
+        (each component's reference equation's), the whole feed
     available : bool
     reason : why a state is unavailable ("" where available)
     completed : how many leading states were evaluated (fewer than the size if interrupted)
@@ -388,6 +403,8 @@ class ReferenceMixtureState:
     rho_liquid: object = field(repr=False)
     rho_vapor: object = field(repr=False)
     pip: object = field(repr=False)
+    h: object = field(repr=False)
+    s: object = field(repr=False)
     available: object = field(repr=False)
     reason: object = field(repr=False)
     completed: int = field(repr=False, default=0)
@@ -585,6 +602,48 @@ def reference_mixture_state(mixture, T, P, *, progress=False, executor=None, chu
                          "together; give arrays of one shape, or one of them as a single number.") from None
     return _result(mixture, "T,P", T, P, dict(progress=progress, executor=executor, chunk_size=chunk_size,
                                               on_interrupt=on_interrupt))
+
+
+def reference_mixture_energy_state(mixture, P, *, h=None, s=None, progress=False, executor=None, chunk_size=None,
+                                   on_interrupt="raise") -> ReferenceMixtureState:
+    """The reference mixture model's own (P, h) or (P, s) state: a valve's or an isentropic
+    machine's outlet as the reference finds it.
+
+    Parameters
+    ----------
+    mixture : Mixture
+    P : float, array_like or str
+        Pressure [Pa] (or text with a unit).
+    h, s : float or array_like
+        Molar enthalpy [J/mol] or entropy [J/(mol K)] on the reference's own zero (a
+        ReferenceMixtureState's ``h``, ``s``); give exactly one.
+    progress, executor, chunk_size, on_interrupt
+        As in :func:`reference_mixture_state`.
+
+    Returns
+    -------
+    ReferenceMixtureState
+        ``kind`` "P,h" or "P,s"; unavailable with the reason where CoolProp's solver fails.
+
+    References
+    ----------
+    Bell, I. H. et al. (2014), Ind. Eng. Chem. Res. 53, 2498 (CoolProp's HmolarP and PSmolar inputs).
+    """
+    where = "reference_mixture_energy_state"
+    mixture = _as_mixture(mixture, where)
+    _check_options(progress, executor, chunk_size, on_interrupt)
+    if (h is None) == (s is None):
+        raise InputError(f"{where}: give exactly one of h [J/mol] or s [J/(mol K)] with P.")
+    kind, energy = ("P,h", h) if h is not None else ("P,s", s)
+    P = _known(P, "P", where)
+    energy = np.asarray(energy, dtype=float)
+    try:
+        np.broadcast(P, energy)
+    except ValueError:
+        raise InputError(f"{where}: P has shape {P.shape} and {kind[-1]} has shape {energy.shape}, which do not "
+                         "broadcast together.") from None
+    return _result(mixture, kind, P, energy, dict(progress=progress, executor=executor, chunk_size=chunk_size,
+                                                  on_interrupt=on_interrupt))
 
 
 def _saturation_point(which, mixture, T, P, options, where):

@@ -146,6 +146,40 @@ def reference_flow_step(fluid, inlet, P_out, outlet_enthalpy=None) -> ReferenceS
                          _scalar_or_array(np.asarray(work) / fluid.molar_mass), 0.0, 0.0, math.nan)
 
 
+def reference_mixture_flow_step(mixture, T_in, P_in, P_out, outlet_enthalpy=None) -> ReferenceStep:
+    """A steady-flow adiabatic step of a mixture through the reference mixture model, from its
+    own state at the model inlet's T and P (which fix a mixture's state, split or not).
+
+    Parameters and returns as :func:`reference_flow_step`; the states are
+    :class:`~thermo_roots.reference.mixture.ReferenceMixtureState` (CoolProp's HEOS mixture
+    model, GERG-2008 type), the outlet its own (P_out, h_out) solve and the isentropic outlet
+    its own (P_out, s_in) solve.
+    """
+    from .mixture import mixture_reference_reason, reference_mixture_energy_state, reference_mixture_state
+
+    reason = mixture_reference_reason(mixture)
+    if reason:
+        return _unavailable(reason)
+    r_in = reference_mixture_state(mixture, T_in, P_in)
+    if _reason_of(r_in):
+        return _unavailable(f"the reference inlet: {_reason_of(r_in)}", r_in)
+    isentropic = None
+    h_in = np.asarray(r_in.h, dtype=float)
+    if outlet_enthalpy is None:
+        h_out = h_in
+    else:
+        isentropic = reference_mixture_energy_state(mixture, P_out, s=r_in.s)
+        if _reason_of(isentropic):
+            return _unavailable(f"the reference's isentropic outlet: {_reason_of(isentropic)}", r_in)
+        h_out = outlet_enthalpy(h_in, np.asarray(isentropic.h, dtype=float))
+    r_out = reference_mixture_energy_state(mixture, P_out, h=h_out)
+    if _reason_of(r_out):
+        return ReferenceStep(False, f"unavailable: the reference outlet: {_reason_of(r_out)}", r_in, None, isentropic)
+    work = _scalar_or_array(h_out - h_in)
+    return ReferenceStep(True, "", r_in, r_out, isentropic, work,
+                         _scalar_or_array(np.asarray(work) / mixture.molar_mass), 0.0, 0.0, math.nan)
+
+
 def reference_vessel_step(fluid, inlet, target, mass) -> ReferenceStep:
     """A closed rigid vessel heated or cooled through the reference equation.
 
