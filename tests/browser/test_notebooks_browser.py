@@ -15,7 +15,7 @@ from .test_state_point_browser import ARGS, CHROMIUM, OUTPUT, REPO, TIMEOUT_MS, 
 NOTEBOOKS = sorted(p.name for p in (REPO / "notebooks").glob("*.ipynb"))
 #: Pictures each notebook shows after "Run all" (01 is tables only).
 PICTURES = {"01_state_point.ipynb": 0, "02_isotherm.ipynb": 3, "03_model_accuracy.ipynb": 2,
-            "04_closed_vessel_heatup.ipynb": 1, "05_energy_duties.ipynb": 1}
+            "04_closed_vessel_heatup.ipynb": 1, "05_energy_duties.ipynb": 1, "06_mixtures.ipynb": 3}
 
 #: JavaScript: every output picture and table, with its width and that of the cell's output area.
 _MEASURE = """() => {
