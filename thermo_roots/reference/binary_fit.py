@@ -61,6 +61,8 @@ TABLE_PAIRS = (
     ("ethane", "propane"), ("ethane", "n-butane"), ("ethane", "nitrogen"), ("ethane", "CO2"),
     ("propane", "n-butane"), ("propane", "isobutane"), ("propane", "nitrogen"), ("propane", "CO2"),
     ("n-butane", "isobutane"), ("n-butane", "n-pentane"), ("nitrogen", "CO2"), ("CO2", "hydrogen sulfide"),
+    ("ethane", "isobutane"), ("nitrogen", "n-butane"), ("CO2", "n-butane"), ("nitrogen", "isobutane"),
+    ("CO2", "isobutane"), ("isobutane", "n-pentane"), ("nitrogen", "n-pentane"), ("CO2", "n-pentane"),
     ("R32", "R125"), ("R32", "R134a"), ("R125", "R134a"), ("R125", "R143a"), ("R32", "R1234yf"),
     ("R134a", "R1234yf"), ("R32", "R1234ze(E)"), ("CO2", "R32"), ("propane", "R134a"),
 )
