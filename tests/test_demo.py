@@ -37,6 +37,27 @@ def test_demo_numbers_are_the_library_numbers(capsys):
     assert np.isclose(shown, state.rho_mass, rtol=1e-5)
 
 
+def test_the_tour_prints_the_mixture_duties_with_the_librarys_numbers(capsys):
+    """The letdown's outlet, the drum's split and the blend's glide in the tour are the library's
+    own answers for demo.MIXTURE_EQUIPMENT (PCV-610, V-640, E-220: invented duties)."""
+    from thermo_roots import steps
+
+    demo.main([])
+    out = capsys.readouterr().out
+    for tag in demo.MIXTURE_EQUIPMENT:
+        assert tag in out
+    pcv, drum = demo.MIXTURE_EQUIPMENT["PCV-610"], demo.MIXTURE_EQUIPMENT["V-640"]
+    fuel = tr.PengRobinson(pcv.mixture(), kij="fitted")
+    valve = steps.throttle(fuel, tr.solve(fuel, **pcv.duty), pcv.outlet_pressure)
+    assert f"outlet {valve.outlet.T - 273.15:.1f} °C, {valve.outlet.phase}" in out
+    assert f"reference mixture model {valve.reference.outlet.T - 273.15:.1f} °C" in out
+    split = tr.solve(tr.PengRobinson(drum.mixture(), kij="fitted"), **drum.duty)
+    assert f"vapor fraction {split.vapor_fraction:.3f}" in out
+    assert re.search(r"glide \d+\.\d K", out)
+    demo.main(["--model", "IG"])
+    assert "no mixing rule" in capsys.readouterr().out
+
+
 # --------------------------------------------------------------------------- one source of equipment data
 
 def test_closed_vessel_fill_density_is_charge_over_volume():

@@ -349,6 +349,38 @@ def step_text(item: Equipment, model_name: str = "PR") -> str:
     return "\n".join([line] + [f"  warning: {w}" for w in notes])
 
 
+def mixture_text(item: MixtureDuty, model_name: str = "PR") -> str:
+    """Text block for one mixture duty: the letdown's outlet (with the reference mixture model's
+    outlet beside it and the dew point), the drum's split, or the blend's glide."""
+    from . import bubble_point, dew_point
+    from .steps import throttle
+
+    cls = MODELS[model_name]
+    if not cls.takes_mixtures:
+        return f"{item.title}: {model_name} has no mixing rule; the mixture duties use a cubic."
+    model = cls(item.mixture(), kij="fitted")
+    lines = [f"{item.title} — {' + '.join(model.components.names)}, {model.name} (fitted kij)"]
+    if item.outlet_pressure is not None:
+        inlet = solve(model, **item.duty)
+        step = throttle(model, inlet, item.outlet_pressure)
+        out, ref = step.outlet, step.reference
+        dew = dew_point(model, P=out.P)
+        lines.append(f"  {_given(item.duty)} -> {item.outlet_pressure}: outlet {out.T - 273.15:.1f} °C, {out.phase}"
+                     + (f" (reference mixture model {ref.outlet.T - 273.15:.1f} °C)" if ref.available else ""))
+        if dew.status == "converged":
+            lines.append(f"  dew point at the outlet pressure {dew.T - 273.15:.1f} °C: "
+                         f"{out.T - dew.T:+.1f} K of margin against liquid dropping out")
+    elif "T" in item.duty:
+        state = solve(model, **item.duty)
+        lines.append(f"  {_given(item.duty)}: {state.phase}, vapor fraction {state.vapor_fraction:.3f}, "
+                     f"{state.rho_mass:.4g} kg/m³ as a whole")
+    else:
+        bubble, dew = bubble_point(model, **item.duty), dew_point(model, **item.duty)
+        lines.append(f"  {_given(item.duty)}: bubble point {bubble.T - 273.15:.1f} °C, dew point "
+                     f"{dew.T - 273.15:.1f} °C, glide {dew.T - bubble.T:.1f} K")
+    return "\n".join(lines)
+
+
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description="Solve and print the demo site's state points; "
                                                  "with --lab, then open the notebooks in JupyterLab.")
@@ -373,6 +405,12 @@ def main(argv=None) -> int:
                 print(step)
         except ThermoRootsError as err:
             print(f"{tag}: {err}")
+        print()
+    for item in MIXTURE_EQUIPMENT.values():
+        try:
+            print(mixture_text(item, args.model))
+        except ThermoRootsError as err:
+            print(f"{item.title}: {err}")
         print()
     print("CAUTION: " + CAUTION)
     if args.lab:
