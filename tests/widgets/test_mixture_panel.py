@@ -39,7 +39,12 @@ def test_two_phase_state_is_the_librarys_flash_and_is_shown():
     for name, x, y in zip(direct.model.components.names, direct.x, direct.y):
         assert f"{name} " in shown and f"{x:.6g}" in shown and f"{y:.6g}" in shown
     assert "Caution." in shown and "licensed engineer" in shown
-    assert "lacks ethane–isobutane" in shown        # the fitted table's gap is said
+    assert "kᵢⱼ fitted to the reference mixture model" in shown
+    from thermo_roots.widgets.mixture_panel import kij_note    # a pair the fitted table lacks is said
+    odd = tr.PengRobinson(tr.Mixture({"methane": 0.9, "n-decane": 0.1}), kij="fitted")
+    assert "lacks methane–n-decane" in kij_note(tr.PengRobinson(tr.Mixture({"methane": 0.9, "CO2": 0.05,
+                                                                             "n-decane": 0.05}), kij="fitted"))
+    assert "every kᵢⱼ = 0 (the fitted table has none" in kij_note(odd)
 
 
 def test_each_phases_h_and_s_add_up_to_the_states_by_the_lever_rule():

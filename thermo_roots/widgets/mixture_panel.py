@@ -84,9 +84,9 @@ class MixtureModelField:
 
 def kij_note(model) -> str:
     """One sentence on the binary parameters a mixture model was built with."""
+    missing = model.kij_missing
     if not np.any(model.kij):
-        return "Binary parameters: every kᵢⱼ = 0."
-    missing = getattr(model, "kij_missing", ())
+        return "Binary parameters: every kᵢⱼ = 0" + (" (the fitted table has none of these pairs)." if missing else ".")
     lacking = (" The table lacks " + ", ".join(f"{a}–{b}" for a, b in missing) + ": kᵢⱼ = 0 there."
                if missing else "")
     return "Binary parameters: kᵢⱼ fitted to the reference mixture model's bubble pressures." + lacking
