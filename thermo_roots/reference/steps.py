@@ -127,6 +127,14 @@ def reference_flow_step(fluid, inlet, P_out, outlet_enthalpy=None) -> ReferenceS
     if reason:
         return _unavailable(reason)
     r_in = reference_inlet(inlet, fluid)
+    return _flow_from(r_in, lambda s: reference_state(fluid, P=P_out, s=s, with_saturation=False),
+                      lambda h: reference_state(fluid, P=P_out, h=h, with_saturation=False),
+                      outlet_enthalpy, fluid.molar_mass)
+
+
+def _flow_from(r_in, at_entropy, at_enthalpy, outlet_enthalpy, molar_mass) -> ReferenceStep:
+    """The reference's flow step from its own inlet r_in: ``at_entropy(s)`` and ``at_enthalpy(h)``
+    are its own (P_out, s) and (P_out, h) solves (a pure fluid's or a mixture's)."""
     if _reason_of(r_in):
         return _unavailable(f"the reference inlet: {_reason_of(r_in)}", r_in)
     isentropic = None
@@ -134,16 +142,16 @@ def reference_flow_step(fluid, inlet, P_out, outlet_enthalpy=None) -> ReferenceS
     if outlet_enthalpy is None:
         h_out = h_in
     else:
-        isentropic = reference_state(fluid, P=P_out, s=r_in.s, with_saturation=False)
+        isentropic = at_entropy(r_in.s)
         if _reason_of(isentropic):
             return _unavailable(f"the reference's isentropic outlet: {_reason_of(isentropic)}", r_in)
         h_out = outlet_enthalpy(h_in, np.asarray(isentropic.h, dtype=float))
-    r_out = reference_state(fluid, P=P_out, h=h_out, with_saturation=False)
+    r_out = at_enthalpy(h_out)
     if _reason_of(r_out):
         return ReferenceStep(False, f"unavailable: the reference outlet: {_reason_of(r_out)}", r_in, None, isentropic)
     work = _scalar_or_array(h_out - h_in)
     return ReferenceStep(True, "", r_in, r_out, isentropic, work,
-                         _scalar_or_array(np.asarray(work) / fluid.molar_mass), 0.0, 0.0, math.nan)
+                         _scalar_or_array(np.asarray(work) / molar_mass), 0.0, 0.0, math.nan)
 
 
 def reference_mixture_flow_step(mixture, T_in, P_in, P_out, outlet_enthalpy=None) -> ReferenceStep:
@@ -160,24 +168,10 @@ def reference_mixture_flow_step(mixture, T_in, P_in, P_out, outlet_enthalpy=None
     reason = mixture_reference_reason(mixture)
     if reason:
         return _unavailable(reason)
-    r_in = reference_mixture_state(mixture, T_in, P_in)
-    if _reason_of(r_in):
-        return _unavailable(f"the reference inlet: {_reason_of(r_in)}", r_in)
-    isentropic = None
-    h_in = np.asarray(r_in.h, dtype=float)
-    if outlet_enthalpy is None:
-        h_out = h_in
-    else:
-        isentropic = reference_mixture_energy_state(mixture, P_out, s=r_in.s)
-        if _reason_of(isentropic):
-            return _unavailable(f"the reference's isentropic outlet: {_reason_of(isentropic)}", r_in)
-        h_out = outlet_enthalpy(h_in, np.asarray(isentropic.h, dtype=float))
-    r_out = reference_mixture_energy_state(mixture, P_out, h=h_out)
-    if _reason_of(r_out):
-        return ReferenceStep(False, f"unavailable: the reference outlet: {_reason_of(r_out)}", r_in, None, isentropic)
-    work = _scalar_or_array(h_out - h_in)
-    return ReferenceStep(True, "", r_in, r_out, isentropic, work,
-                         _scalar_or_array(np.asarray(work) / mixture.molar_mass), 0.0, 0.0, math.nan)
+    return _flow_from(reference_mixture_state(mixture, T_in, P_in),
+                      lambda s: reference_mixture_energy_state(mixture, P_out, s=s),
+                      lambda h: reference_mixture_energy_state(mixture, P_out, h=h),
+                      outlet_enthalpy, mixture.molar_mass)
 
 
 def reference_vessel_step(fluid, inlet, target, mass) -> ReferenceStep:
