@@ -348,7 +348,7 @@ def solve_mixture(model, *, branch: str = "stable", atmosphere=STANDARD_ATMOSPHE
     if np.any(np.asarray(flash.phase) == "two-phase"):
         warnings += ("Two-phase states: h, s, u and g are the lever-rule sums over the liquid and vapour, and "
                      "the split is the cubic's own (with the kij given); compare it with the reference mixture "
-                     "model (thermo_roots.reference.reference_mixture_state) before relying on it.",)
+                     "model (thermo_roots.cross_check(state)) before relying on it.",)
     phase = np.where(status == CONVERGED, np.asarray(flash.phase, dtype=object), "not solved")
     return MixtureState(model=model, T=shaped(T), P=shaped(P), z=shaped(z, True), phase=shaped(phase.astype(str)),
                         vapor_fraction=shaped(flash.beta), x=shaped(flash.x, True), y=shaped(flash.y, True),
