@@ -23,6 +23,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import InputError
+from ..inversion.pairs_energy import _known_ends
 from ..roots import find_root
 from .flash import flash_tp
 from .phase_caloric import split_caloric
@@ -60,8 +61,9 @@ def energy_flash(model, P, value, name: str, *, xtol: float = 1e-9, maxiter: int
     -------
     T : ndarray
         The temperatures (NaN where not solved).
-    record : RootResult
-        The bracketed root finder's status and iterations per state.
+    record : RootResult or None
+        The bracketed root finder's status and iterations for the bracketed states only, in
+        their order (None when no state could be bracketed).
     reasons : ndarray of str
         Why a state is not solved ("" where solved): the value outside what the model gives
         between the bracket's ends, or a flash that did not converge there.
@@ -82,9 +84,15 @@ def energy_flash(model, P, value, name: str, *, xtol: float = 1e-9, maxiter: int
         return (f"{x / 1e3:.6g} kJ/mol ({x / M / 1e3:.6g} kJ/kg)" if name == "h"
                 else f"{x:.6g} J/(mol K) ({x / M / 1e3:.6g} kJ/(kg K))")
 
+    unit = "J/mol" if name == "h" else "J/(mol K)"
     for i in np.flatnonzero(~(np.isfinite(lo) & np.isfinite(hi))):
-        reasons[i] = (f"the flash at the bracket's end ({T_cold:.1f} K or {T_hot:.1f} K, {P[i]:.6g} Pa) did not "
-                      "converge, so no bracket of the temperature")
+        if not (np.isfinite(P[i]) and P[i] > 0):
+            reasons[i] = f"P = {P[i]:.6g} Pa is not a positive finite number"
+        elif not np.isfinite(value[i]):
+            reasons[i] = f"{name} = {value[i]} {unit} is not a finite number"
+        else:
+            reasons[i] = (f"the flash at the bracket's end ({T_cold:.1f} K or {T_hot:.1f} K, {P[i]:.6g} Pa) did not "
+                          "converge, so no bracket of the temperature")
     below, above = np.isfinite(lo) & (lo > 0), np.isfinite(hi) & (hi < 0)
     for i in np.flatnonzero(below | above):
         end, T_end = ("lowest", T_cold) if below[i] else ("highest", T_hot)
@@ -92,14 +100,17 @@ def energy_flash(model, P, value, name: str, *, xtol: float = 1e-9, maxiter: int
         reasons[i] = (f"{name} = {quoted(value[i])} is {'below' if below[i] else 'above'} the model's {name} at "
                       f"{P[i] / 1e5:.6g} bar over the temperatures it solves ({quoted(edge)} at the {end}, "
                       f"{T_end:.1f} K)")
-    bracketed = reasons == ""
+    rows = np.flatnonzero(reasons == "")
     T = np.full(P.shape, np.nan)
-    record = find_root(gap, (np.full(P.shape, T_cold), np.full(P.shape, T_hot)), args=(P, value, np.full(P.shape, scale)),
-                       xtol=xtol, rtol=1e-12, maxiter=maxiter) if np.any(bracketed) else None
-    if record is not None:
-        status = np.asarray(record.status)
-        good = bracketed & (status == "converged")
-        T[good] = np.asarray(record.root)[good]
-        for i in np.flatnonzero(bracketed & ~good):
-            reasons[i] = f"the temperature search stopped: {status[i]}"
+    record = None
+    if rows.size:   # only the bracketed states, their ends' flashes handed over (not flashed again)
+        ends = [np.full(rows.size, T_cold), lo[rows], np.full(rows.size, T_hot), hi[rows]]
+        record = find_root(_known_ends(gap), (ends[0], ends[2]),
+                           args=(P[rows], value[rows], np.full(rows.size, scale), *ends),
+                           xtol=xtol, rtol=1e-12, maxiter=maxiter)
+        status = np.atleast_1d(np.asarray(record.status))
+        good = status == "converged"
+        T[rows[good]] = np.atleast_1d(np.asarray(record.root))[good]
+        for i, s in zip(rows[~good], status[~good]):
+            reasons[i] = f"the temperature search stopped: {s}"
     return T, record, reasons.astype(str)
