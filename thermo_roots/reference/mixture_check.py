@@ -24,7 +24,6 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import WrongTypeError
-from ..models import _scalar_or_array as _scalar
 from .comparison import LARGE_DEVIATION_LEGEND, LARGE_DEVIATION_PERCENT, LARGE_DEVIATION_STYLE
 from .mixture import REFERENCE_MIXTURE_CAUTION, ReferenceMixtureState, reference_mixture_state
 
@@ -150,6 +149,11 @@ def _number(x) -> str:
 def _percent(model, reference):
     with np.errstate(invalid="ignore", divide="ignore"):
         return 100.0 * (np.asarray(model, dtype=float) / np.asarray(reference, dtype=float) - 1.0)
+
+
+def _scalar(x):
+    x = np.asarray(x)
+    return x.item() if x.ndim == 0 else x
 
 
 def cross_check_mixture(state, *, progress=False, executor=None, chunk_size=None,
